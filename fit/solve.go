@@ -1,0 +1,391 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+)
+
+// Problem is a weighted nonlinear least-squares problem:
+// minimise S(p) = Σᵢ wᵢ (yᵢ − fᵢ(p))².
+type Problem struct {
+	// Func writes the model values fᵢ(p) into f (len N). When jac is not nil
+	// it also writes ∂fᵢ/∂pⱼ into jac[i*P+j] (row-major, N×P).
+	Func func(p, f, jac []float64)
+	Y    []float64 // observations, len N
+	W    []float64 // weights, len N; nil means all 1
+	// Free marks the parameters the solver may move; nil means all.
+	Free []bool
+}
+
+// Settings tune Solve. A zero field takes the value from DefaultSettings.
+type Settings struct {
+	// MaxIter is the largest number of Jacobian evaluations.
+	MaxIter int
+	// FTol stops when the actual and predicted relative reductions of S
+	// are both below it.
+	FTol float64
+	// XTol stops when the scaled step is below XTol times the scaled parameters.
+	XTol float64
+	// GTol stops when the largest cosine between the residual vector and a
+	// Jacobian column is below it (the gradient vanishes).
+	GTol float64
+	// CondMax is the largest condition number of the scaled JᵀWJ at the
+	// solution for the parameters to count as identified.
+	CondMax float64
+}
+
+// DefaultSettings returns tolerances tight enough to reproduce certified
+// reference values to about eight significant digits.
+func DefaultSettings() Settings {
+	return Settings{MaxIter: 200, FTol: 1e-14, XTol: 1e-12, GTol: 1e-12, CondMax: 1e13}
+}
+
+func (s *Settings) withDefaults() Settings {
+	d := DefaultSettings()
+	if s == nil {
+		return d
+	}
+	out := *s
+	if out.MaxIter <= 0 {
+		out.MaxIter = d.MaxIter
+	}
+	if out.FTol <= 0 {
+		out.FTol = d.FTol
+	}
+	if out.XTol <= 0 {
+		out.XTol = d.XTol
+	}
+	if out.GTol <= 0 {
+		out.GTol = d.GTol
+	}
+	if out.CondMax <= 0 {
+		out.CondMax = d.CondMax
+	}
+	return out
+}
+
+// Solution is the outcome of Solve: the answer and how it was obtained.
+type Solution struct {
+	P          []float64 // all parameters (fixed ones unchanged)
+	F          []float64 // model values at P
+	RSS        float64   // weighted residual sum of squares at P
+	Iterations int       // Jacobian evaluations
+	Converged  bool
+	// Reason says why the iteration stopped, in words.
+	Reason string
+	// JTJ is JᵀWJ over the free parameters at P (k×k, row-major).
+	JTJ []float64
+	// Jac is the N×P Jacobian at P.
+	Jac []float64
+}
+
+// Solve minimises the problem by Levenberg–Marquardt with Moré's scaling
+// (J. J. Moré, "The Levenberg–Marquardt algorithm: implementation and
+// theory", Lecture Notes in Mathematics 630, 1978): the damped normal
+// equations (JᵀWJ + λ·diag(d²)) δ = JᵀW r, with d the running maximum of the
+// column norms, solved by Cholesky. We keep our own small solver rather than
+// gonum/optimize so that one fit allocates only its workspace: a profile
+// has 2–6 parameters and the normal equations are tiny.
+//
+// A point where the free parameters are not identified (condition number of
+// the scaled JᵀWJ above Settings.CondMax, or a Jacobian column that vanishes)
+// is returned with Converged false: it is not a minimum worth reporting.
+func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
+	set := s.withDefaults()
+	n, np := len(pr.Y), len(p0)
+	if pr.Func == nil || n == 0 || np == 0 {
+		return nil, fmt.Errorf("%w: empty least-squares problem", ErrBadInput)
+	}
+	if pr.W != nil && len(pr.W) != n {
+		return nil, fmt.Errorf("%w: %d weights for %d observations", ErrBadInput, len(pr.W), n)
+	}
+	idx := make([]int, 0, np)
+	for j := 0; j < np; j++ {
+		if pr.Free == nil || pr.Free[j] {
+			idx = append(idx, j)
+		}
+	}
+	k := len(idx)
+	if k == 0 {
+		return nil, fmt.Errorf("%w: no free parameter", ErrBadInput)
+	}
+	if n < k {
+		return nil, fmt.Errorf("%w: %d observations for %d free parameters", ErrBadInput, n, k)
+	}
+
+	// One workspace block: p, trial, f, ftrial, jac, a (JᵀWJ), chol, g, diag, delta.
+	buf := make([]float64, 2*np+2*n+n*np+2*k*k+3*k)
+	take := func(m int) []float64 { v := buf[:m:m]; buf = buf[m:]; return v }
+	p, trial := take(np), take(np)
+	f, ftr := take(n), take(n)
+	jac := take(n * np)
+	a, chol := take(k*k), take(k*k)
+	g, diag, delta := take(k), take(k), take(k)
+	copy(p, p0)
+
+	rss := func(fv []float64) float64 {
+		var sum float64
+		for i, y := range pr.Y {
+			r := y - fv[i]
+			if pr.W != nil {
+				sum += pr.W[i] * r * r
+			} else {
+				sum += r * r
+			}
+		}
+		return sum
+	}
+	// normal builds a = JᵀWJ and g = JᵀW r over the free parameters.
+	normal := func() {
+		for i := range a {
+			a[i] = 0
+		}
+		for i := range g {
+			g[i] = 0
+		}
+		for i := 0; i < n; i++ {
+			w := 1.0
+			if pr.W != nil {
+				w = pr.W[i]
+			}
+			r := pr.Y[i] - f[i]
+			row := jac[i*np : (i+1)*np]
+			for aa, ja := range idx {
+				wj := w * row[ja]
+				g[aa] += wj * r
+				for bb := 0; bb <= aa; bb++ {
+					a[aa*k+bb] += wj * row[idx[bb]]
+				}
+			}
+		}
+		for aa := 0; aa < k; aa++ {
+			for bb := 0; bb < aa; bb++ {
+				a[bb*k+aa] = a[aa*k+bb]
+			}
+		}
+	}
+
+	sol := &Solution{}
+	pr.Func(p, f, jac)
+	if !allFinite(f) || !allFinite(jac) {
+		return nil, fmt.Errorf("%w: the model cannot be evaluated at the starting values", ErrNoAnswer)
+	}
+	cur := rss(f)
+	lambda := 0.0
+	reason := ""
+	converged := false
+	iter := 1
+	for ; iter <= set.MaxIter; iter++ {
+		normal()
+		// Moré's scaling: d_j = max over iterations of the column norm.
+		var gmax float64
+		for aa := 0; aa < k; aa++ {
+			cn := math.Sqrt(a[aa*k+aa])
+			if cn > diag[aa] {
+				diag[aa] = cn
+			}
+			if cn > 0 && cur > 0 {
+				gmax = math.Max(gmax, math.Abs(g[aa])/(cn*math.Sqrt(cur)))
+			}
+		}
+		if gmax <= set.GTol {
+			converged, reason = true, "gradient vanished"
+			break
+		}
+		if lambda == 0 {
+			var m float64
+			for aa := 0; aa < k; aa++ {
+				m = math.Max(m, a[aa*k+aa])
+			}
+			lambda = 1e-3 * m
+			if lambda == 0 {
+				lambda = 1e-3
+			}
+		}
+		// Inner loop: raise λ until the step reduces S.
+		stepped := false
+		for tries := 0; tries < 60; tries++ {
+			for aa := 0; aa < k; aa++ {
+				for bb := 0; bb < k; bb++ {
+					chol[aa*k+bb] = a[aa*k+bb]
+				}
+				d := diag[aa]
+				if d == 0 {
+					d = 1
+				}
+				chol[aa*k+aa] += lambda * d * d
+			}
+			if !cholSolve(chol, g, delta, k) {
+				lambda *= 10
+				continue
+			}
+			copy(trial, p)
+			for aa, ja := range idx {
+				trial[ja] += delta[aa]
+			}
+			pr.Func(trial, ftr, nil)
+			next := math.Inf(1)
+			if allFinite(ftr) {
+				next = rss(ftr)
+			}
+			// Predicted reduction of the quadratic model: δᵀ(2g − Aδ).
+			var pred float64
+			for aa := 0; aa < k; aa++ {
+				var ad float64
+				for bb := 0; bb < k; bb++ {
+					ad += a[aa*k+bb] * delta[bb]
+				}
+				pred += delta[aa] * (2*g[aa] - ad)
+			}
+			var dx, xn float64
+			for aa, ja := range idx {
+				d := diag[aa]
+				if d == 0 {
+					d = 1
+				}
+				dx += (d * delta[aa]) * (d * delta[aa])
+				xn += (d * p[ja]) * (d * p[ja])
+			}
+			dx, xn = math.Sqrt(dx), math.Sqrt(xn)
+			if next < cur {
+				actRel := (cur - next) / math.Max(cur, tiny)
+				predRel := pred / math.Max(cur, tiny)
+				rho := (cur - next) / math.Max(pred, tiny)
+				copy(p, trial)
+				copy(f, ftr)
+				cur = next
+				if rho > 0.75 {
+					lambda = math.Max(lambda/3, 1e-300)
+				} else if rho < 0.25 {
+					lambda *= 2
+				}
+				stepped = true
+				if actRel <= set.FTol && predRel <= set.FTol {
+					converged, reason = true, "relative reduction of the residual sum below tolerance"
+				} else if dx <= set.XTol*math.Max(xn, tiny) {
+					converged, reason = true, "relative step below tolerance"
+				}
+				break
+			}
+			if dx <= set.XTol*math.Max(xn, tiny) || pred <= set.FTol*cur*1e-2 {
+				// No further descent possible at machine precision.
+				converged, reason = true, "no further reduction possible at machine precision"
+				break
+			}
+			lambda *= 4
+		}
+		if converged {
+			if stepped {
+				pr.Func(p, f, jac)
+			}
+			break
+		}
+		if !stepped {
+			reason = "the damped step could not reduce the residual sum"
+			break
+		}
+		pr.Func(p, f, jac)
+		if !allFinite(jac) {
+			reason = "the Jacobian is not finite at the current parameters"
+			break
+		}
+	}
+	if iter > set.MaxIter {
+		iter = set.MaxIter
+		reason = fmt.Sprintf("iteration limit (%d) reached", set.MaxIter)
+	}
+	normal()
+	sol.P = append([]float64(nil), p...)
+	sol.F = append([]float64(nil), f...)
+	sol.Jac = append([]float64(nil), jac...)
+	sol.JTJ = append([]float64(nil), a...)
+	sol.RSS = cur
+	sol.Iterations = iter
+	sol.Converged = converged
+	sol.Reason = reason
+	if converged {
+		// A free parameter whose whole-size change moves the model by a
+		// negligible amount has run off to an asymptote (BoxBOD from its
+		// first NIST start is the classic case): not a minimum.
+		var yn float64
+		for _, y := range pr.Y {
+			yn += y * y
+		}
+		yn = math.Sqrt(yn) + math.Sqrt(cur)
+		for aa, ja := range idx {
+			if math.Sqrt(a[aa*k+aa]/wmax(pr.W))*math.Max(math.Abs(p[ja]), 1) < 1e-9*yn {
+				sol.Converged = false
+				sol.Reason = fmt.Sprintf("parameter %d has no effect on the model at the final point (it ran off towards an asymptote)", ja+1)
+				return sol, nil
+			}
+		}
+		if c := scaledCond(a, k); !(c <= set.CondMax) {
+			sol.Converged = false
+			sol.Reason = fmt.Sprintf("the free parameters are not identified by the data (condition number of the scaled JᵀWJ %.2g)", c)
+		}
+	}
+	return sol, nil
+}
+
+const tiny = 1e-300
+
+// wmax returns the largest weight (1 when unweighted), used to put JᵀWJ back
+// on the scale of the observations.
+func wmax(w []float64) float64 {
+	m := 0.0
+	for _, v := range w {
+		m = math.Max(m, v)
+	}
+	if w == nil || m == 0 {
+		return 1
+	}
+	return m
+}
+
+func allFinite(v []float64) bool {
+	for _, x := range v {
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return false
+		}
+	}
+	return true
+}
+
+// cholSolve solves a x = b for symmetric positive definite a (k×k,
+// row-major), overwriting a with its Cholesky factor. It reports false when
+// a is not numerically positive definite.
+func cholSolve(a, b, x []float64, k int) bool {
+	for j := 0; j < k; j++ {
+		s := a[j*k+j]
+		for m := 0; m < j; m++ {
+			s -= a[j*k+m] * a[j*k+m]
+		}
+		if !(s > 0) {
+			return false
+		}
+		d := math.Sqrt(s)
+		a[j*k+j] = d
+		for i := j + 1; i < k; i++ {
+			t := a[i*k+j]
+			for m := 0; m < j; m++ {
+				t -= a[i*k+m] * a[j*k+m]
+			}
+			a[i*k+j] = t / d
+		}
+	}
+	for i := 0; i < k; i++ {
+		t := b[i]
+		for m := 0; m < i; m++ {
+			t -= a[i*k+m] * x[m]
+		}
+		x[i] = t / a[i*k+i]
+	}
+	for i := k - 1; i >= 0; i-- {
+		t := x[i]
+		for m := i + 1; m < k; m++ {
+			t -= a[m*k+i] * x[m]
+		}
+		x[i] = t / a[i*k+i]
+	}
+	return true
+}
