@@ -1,0 +1,75 @@
+package fit
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"github.com/fickfit/fickfit/profile"
+)
+
+// benchProfile is the 50-point constant-surface profile of the reference
+// timing scripts in shared/bench (x in 0–2 mm, D = 3e-11 m²/s, t = 4 h,
+// Cs = 0.95, C0 = 0.20, noise 0.01), generated with our own seeded noise.
+func benchProfile() *profile.Profile {
+	rng := rand.New(rand.NewPCG(1, 1))
+	p := &profile.Profile{ID: "bench", Time: 4 * 3600}
+	for i := 0; i < 50; i++ {
+		x := 2e-3 * float64(i) / 49
+		p.Depth = append(p.Depth, x)
+		p.Value = append(p.Value, 0.95-(0.95-0.20)*math.Erf(x/(2*math.Sqrt(3e-11*4*3600)))+0.01*rng.NormFloat64())
+	}
+	return p
+}
+
+// BenchmarkFitErfWald is the core target: one 50-point, 3-parameter erf fit
+// with Wald intervals and all statistics.
+func BenchmarkFitErfWald(b *testing.B) {
+	p := benchProfile()
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Fit(p, Options{CI: "wald"}); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Microseconds())/float64(b.N), "µs/fit")
+}
+
+// BenchmarkSolveErf times the least-squares engine alone on the same problem.
+func BenchmarkSolveErf(b *testing.B) {
+	p := benchProfile()
+	d := &Data{X: p.Depth, Y: p.Value, Time: p.Time}
+	m := Erf{}
+	p0 := make([]float64, 4)
+	free := []bool{true, true, true, false}
+	pr := Problem{Y: d.Y, Free: free, Func: func(p, f, jac []float64) { m.Eval(p, d, f, jac) }}
+	b.ReportAllocs()
+	for b.Loop() {
+		m.Start(d, p0)
+		if _, err := Solve(pr, p0, nil); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkProfileCI: profile-likelihood intervals for all three parameters.
+func BenchmarkFitErfProfile(b *testing.B) {
+	p := benchProfile()
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Fit(p, Options{CI: "profile"}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkFitErfBootstrap: 2000 residual resamples with BCa.
+func BenchmarkFitErfBootstrap(b *testing.B) {
+	p := benchProfile()
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Fit(p, Options{CI: "bootstrap", Bootstrap: BootstrapOptions{Seed: 7}}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

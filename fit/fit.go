@@ -1,0 +1,309 @@
+package fit
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"runtime"
+	"sort"
+	"strings"
+	"sync"
+
+	"github.com/fickfit/fickfit/profile"
+)
+
+// Fit fits the model named in o to one measured profile.
+//
+// A fit that does not converge, or whose parameters the data cannot
+// identify, returns an error wrapping ErrNoAnswer (and no numbers); a
+// request the data cannot support (too few points, unknown parameter…)
+// returns an error wrapping ErrBadInput. Both name the profile and file.
+func Fit(p *profile.Profile, o Options) (*Result, error) {
+	m := o.Custom
+	if m == nil {
+		name := o.Model
+		if name == "" {
+			name = "erf"
+		}
+		var err error
+		if m, err = NewModel(name); err != nil {
+			return nil, errAt(p, err)
+		}
+	}
+	return FitModel(p, m, o)
+}
+
+// FitModel fits the given model to one profile; see Fit.
+func FitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
+	r, err := fitModel(p, m, o)
+	if err != nil {
+		return nil, errAt(p, err)
+	}
+	return r, nil
+}
+
+// FitAll fits every profile, in parallel over the available cores, and
+// returns results in input order. errs[i] is the error of profile i (nil
+// when it was fitted); results[i] is nil where errs[i] is not.
+func FitAll(ps []profile.Profile, o Options) (results []*Result, errs []error) {
+	results = make([]*Result, len(ps))
+	errs = make([]error, len(ps))
+	workers := runtime.GOMAXPROCS(0)
+	if workers > len(ps) {
+		workers = len(ps)
+	}
+	var wg sync.WaitGroup
+	next := make(chan int)
+	for w := 0; w < workers; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range next {
+				results[i], errs[i] = Fit(&ps[i], o)
+			}
+		}()
+	}
+	for i := range ps {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+	return results, errs
+}
+
+// errAt prefixes an error with the profile's id and source.
+func errAt(p *profile.Profile, err error) error {
+	where := p.ID
+	if p.Source != "" && p.Source != p.ID {
+		where = fmt.Sprintf("%s (%s)", p.ID, p.Source)
+	}
+	return fmt.Errorf("profile %s: %w", where, err)
+}
+
+// newData builds the model's view of a profile, in SI units.
+func newData(p *profile.Profile, o Options) (*Data, error) {
+	n := p.Len()
+	if n == 0 || len(p.Value) != n {
+		return nil, fmt.Errorf("%w: the profile has no data points", ErrBadInput)
+	}
+	d := &Data{X: p.Depth, Y: p.Value, Time: p.Time, Thickness: p.Thickness, Faces: o.Faces}
+	if d.Time <= 0 {
+		d.Time = 1 // D then stands for Dt
+	}
+	if o.Thickness > 0 {
+		d.Thickness = o.Thickness
+	}
+	if d.Faces == 0 {
+		d.Faces = 2
+	}
+	for i := 0; i < n; i++ {
+		if !finite(p.Depth[i]) || !finite(p.Value[i]) {
+			return nil, fmt.Errorf("%w: point %d%s is not a finite number", ErrBadInput, i+1, lineOf(p, i))
+		}
+	}
+	if p.Sigma != nil {
+		if len(p.Sigma) != n {
+			return nil, fmt.Errorf("%w: %d sigma values for %d points", ErrBadInput, len(p.Sigma), n)
+		}
+		d.W = make([]float64, n)
+		for i, s := range p.Sigma {
+			if !(s > 0) || !finite(s) {
+				return nil, fmt.Errorf("%w: sigma %g at point %d%s must be a positive number (it is the standard uncertainty of the value)", ErrBadInput, s, i+1, lineOf(p, i))
+			}
+			d.W[i] = 1 / (s * s)
+		}
+	}
+	return d, nil
+}
+
+func lineOf(p *profile.Profile, i int) string {
+	if i < len(p.Line) && p.Line[i] > 0 {
+		return fmt.Sprintf(" (line %d)", p.Line[i])
+	}
+	return ""
+}
+
+// setup resolves which parameters are free and their starting values.
+func setup(m Model, d *Data, o Options) (p0 []float64, free []bool, err error) {
+	params := m.Params()
+	p0 = make([]float64, len(params))
+	if err := m.Start(d, p0); err != nil {
+		return nil, nil, err
+	}
+	free = make([]bool, len(params))
+	index := map[string]int{}
+	var names []string
+	for j, pa := range params {
+		free[j] = pa.Free
+		index[strings.ToLower(pa.Name)] = j
+		names = append(names, pa.Name)
+	}
+	lookup := func(name string) (int, error) {
+		j, ok := index[strings.ToLower(strings.TrimSpace(name))]
+		if !ok {
+			return 0, fmt.Errorf("%w: the %s model has no parameter %q (its parameters: %s)", ErrBadInput, m.Name(), name, strings.Join(names, ", "))
+		}
+		return j, nil
+	}
+	for _, name := range o.Free {
+		j, err := lookup(name)
+		if err != nil {
+			return nil, nil, err
+		}
+		free[j] = true
+	}
+	fixedNames := make([]string, 0, len(o.Fixed))
+	for name := range o.Fixed {
+		fixedNames = append(fixedNames, name)
+	}
+	sort.Strings(fixedNames)
+	for _, name := range fixedNames {
+		v := o.Fixed[name]
+		j, err := lookup(name)
+		if err != nil {
+			return nil, nil, err
+		}
+		if !finite(v) {
+			return nil, nil, fmt.Errorf("%w: fixed value of %s is not a finite number", ErrBadInput, params[j].Name)
+		}
+		if params[j].Log {
+			if v <= 0 {
+				return nil, nil, fmt.Errorf("%w: %s must be positive to be fixed (got %g)", ErrBadInput, params[j].Name, v)
+			}
+			v = math.Log(v)
+		}
+		p0[j] = v
+		free[j] = false
+	}
+	for j := range p0 {
+		if !finite(p0[j]) {
+			return nil, nil, fmt.Errorf("%w: no usable starting value for %s from these data", ErrNoAnswer, params[j].Name)
+		}
+	}
+	return p0, free, nil
+}
+
+func fitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
+	d, err := newData(p, o)
+	if err != nil {
+		return nil, err
+	}
+	p0, free, err := setup(m, d, o)
+	if err != nil {
+		return nil, err
+	}
+	k := 0
+	for _, f := range free {
+		if f {
+			k++
+		}
+	}
+	n := len(d.X)
+	if k == 0 {
+		return nil, fmt.Errorf("%w: every parameter is fixed; free at least one", ErrBadInput)
+	}
+	if n < k+2 {
+		return nil, fmt.Errorf("%w: %d points cannot support %d free parameters with an error estimate (need at least %d); add points or fix a parameter with --fix", ErrBadInput, n, k, k+2)
+	}
+	if constant(d.Y) {
+		return nil, fmt.Errorf("%w: all %d values are equal (%g): there is no profile to fit", ErrBadInput, n, d.Y[0])
+	}
+	sol, err := solveRobust(m, d, p0, free, o.Settings)
+	if err != nil {
+		return nil, err
+	}
+	if !sol.Converged {
+		return nil, fmt.Errorf("%w: the %s fit did not converge: %s. Try fixing a parameter (--fix), adding deeper or shallower points, or another model", ErrNoAnswer, m.Name(), sol.Reason)
+	}
+	r := &Result{
+		ID: p.ID, Source: p.Source, Lot: p.Lot, Material: p.Material, Model: m.Name(),
+		ValueUnit: p.ValueUnit, Converged: true, Time: p.Time, Temperature: p.Temperature,
+		TemperatureSigma: p.TemperatureSigma, Thickness: d.Thickness, Meta: p.Meta,
+		model: m, data: d, pint: sol.P, free: free,
+	}
+	if err := r.finish(sol, o); err != nil {
+		return nil, err
+	}
+	return r, nil
+}
+
+func constant(y []float64) bool {
+	for _, v := range y[1:] {
+		if v != y[0] {
+			return false
+		}
+	}
+	return true
+}
+
+// solveRobust runs the solver from the model's start and, if that fails,
+// from starts with D scaled by 10^±1, 10^±2 and 10^±3 (and other Log
+// parameters left alone), keeping the best converged answer. Users never
+// supply starting values.
+func solveRobust(m Model, d *Data, p0 []float64, free []bool, s *Settings) (*Solution, error) {
+	np := len(p0)
+	pr := Problem{Y: d.Y, W: d.W, Free: free, Func: func(p, f, jac []float64) { m.Eval(p, d, f, jac) }}
+	best, err := Solve(pr, p0, s)
+	if err != nil {
+		return nil, err
+	}
+	if best.Converged {
+		return best, nil
+	}
+	params := m.Params()
+	jd := -1
+	for j, pa := range params {
+		if pa.Log && free[j] {
+			jd = j
+			break
+		}
+	}
+	if jd < 0 {
+		return best, nil
+	}
+	start := make([]float64, np)
+	for _, shift := range []float64{1, -1, 2, -2, 3, -3} {
+		copy(start, p0)
+		start[jd] += shift * math.Ln10
+		sol, err := Solve(pr, start, s)
+		if err != nil {
+			continue
+		}
+		if sol.Converged && (!best.Converged || sol.RSS < best.RSS) {
+			best = sol
+		}
+	}
+	return best, nil
+}
+
+// Data returns the data the model was fitted to.
+func (r *Result) Data() *Data { return r.data }
+
+// ModelValue returns the fitted model (nil for a result read from JSON).
+func (r *Result) ModelValue() Model { return r.model }
+
+// Internal returns copies of the fitted parameter vector (internal scale:
+// ln for Log parameters), the free mask, and the covariance of the free
+// parameters (internal scale, in the order of the free ones).
+func (r *Result) Internal() (p []float64, free []bool, cov [][]float64) {
+	p = append([]float64(nil), r.pint...)
+	free = append([]bool(nil), r.free...)
+	cov = make([][]float64, len(r.cov))
+	for i := range r.cov {
+		cov[i] = append([]float64(nil), r.cov[i]...)
+	}
+	return p, free, cov
+}
+
+// LnD returns ln D and its standard error (D is Dt in m² when the time was
+// not given). ok is false when the model has no D.
+func (r *Result) LnD() (lnD, se float64, ok bool) {
+	e := r.Param("D")
+	if e == nil || !(e.Value > 0) {
+		return 0, 0, false
+	}
+	return math.Log(e.Value), e.StdErrLn, true
+}
+
+// errNoCurve is returned by Curve for results read back from JSON.
+var errNoCurve = errors.New("this result carries no model (it was read from a file); refit the profile to draw its curve")

@@ -1,0 +1,260 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// finish fills statistics, covariance, intervals, residuals and warnings
+// from a converged solution.
+func (r *Result) finish(sol *Solution, o Options) error {
+	d, m := r.data, r.model
+	params := m.Params()
+	n := len(d.X)
+	var idx []int
+	for j, f := range r.free {
+		if f {
+			idx = append(idx, j)
+			r.FreeNames = append(r.FreeNames, params[j].Name)
+		}
+	}
+	k := len(idx)
+	dof := n - k
+	r.Stats = Stats{N: n, DOF: dof, RSS: sol.RSS, Iterations: sol.Iterations}
+	r.Stats.Chi2Red = sol.RSS / float64(dof)
+	r.Stats.RMSE = math.Sqrt(r.Stats.Chi2Red)
+	r.Stats.R2 = 1 - sol.RSS/totalSS(d)
+	r.Stats.AICc = aicc(sol.RSS, n, k)
+	r.Stats.Chi2P = math.NaN()
+	if d.W != nil {
+		r.Stats.Chi2P = distuv.ChiSquared{K: float64(dof)}.Survival(sol.RSS)
+	}
+	r.Stats.Cond = scaledCond(sol.JTJ, k)
+
+	level := o.Level
+	if level == 0 {
+		level = 0.95
+	}
+	if !(level > 0 && level < 1) {
+		return fmt.Errorf("%w: confidence level %g must be between 0 and 1 (e.g. 0.95)", ErrBadInput, level)
+	}
+	r.CILevel = level
+	cov, ok := invertSPD(sol.JTJ, k)
+	if !ok {
+		return fmt.Errorf("%w: the parameters %v cannot be separated by these data (singular Jacobian); fix one of them with --fix or add points where the profile changes", ErrNoAnswer, r.FreeNames)
+	}
+	r.Covariance = "scaled"
+	scale := r.Stats.Chi2Red
+	if o.AbsoluteSigma {
+		if d.W == nil {
+			return fmt.Errorf("%w: --absolute-sigma needs a sigma column with the standard uncertainty of each value", ErrBadInput)
+		}
+		r.Covariance, scale = "absolute", 1
+	}
+	for i := range cov {
+		for j := range cov[i] {
+			cov[i][j] *= scale
+		}
+	}
+	r.cov = cov
+	r.Correlation = make([][]float64, k)
+	for i := range cov {
+		r.Correlation[i] = make([]float64, k)
+		for j := range cov[i] {
+			r.Correlation[i][j] = cov[i][j] / math.Sqrt(cov[i][i]*cov[j][j])
+		}
+	}
+
+	tq := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(dof)}.Quantile(0.5 + level/2)
+	r.Params = make([]Estimate, len(params))
+	fi := 0
+	for j, pa := range params {
+		e := Estimate{Name: pa.Name, Unit: unitFor(pa, r), Value: external(pa, r.pint[j]), Fixed: !r.free[j]}
+		if e.Name == "D" && r.Time == 0 {
+			e.Unit = "m2" // D stands for Dt when the time is unknown
+		}
+		if r.free[j] {
+			se := math.Sqrt(cov[fi][fi])
+			lo, hi := r.pint[j]-tq*se, r.pint[j]+tq*se
+			if pa.Log {
+				e.StdErrLn = se
+				e.StdErr = e.Value * se
+				e.CI = Interval{math.Exp(lo), math.Exp(hi)}
+			} else {
+				e.StdErr = se
+				e.CI = Interval{lo, hi}
+			}
+			fi++
+		} else {
+			e.CI = Interval{e.Value, e.Value}
+		}
+		r.Params[j] = e
+	}
+	r.CIMethod = "wald"
+
+	r.Residuals = make([]Residual, n)
+	res := make([]float64, n)
+	for i := range d.X {
+		res[i] = d.Y[i] - sol.F[i]
+		r.Residuals[i] = Residual{Depth: d.X[i], Observed: d.Y[i], Fitted: sol.F[i], Residual: res[i]}
+	}
+	r.Stats.RunsP = runsTest(d.X, res)
+
+	switch o.CI {
+	case "", "profile":
+		if err := r.profileIntervals(o); err != nil {
+			return err
+		}
+	case "wald":
+	case "bootstrap":
+		if err := r.bootstrapIntervals(o); err != nil {
+			return err
+		}
+	default:
+		return fmt.Errorf("%w: unknown interval method %q (use profile, wald or bootstrap)", ErrBadInput, o.CI)
+	}
+	r.diagnose()
+	return nil
+}
+
+// external maps an internal parameter value to its reported value.
+func external(pa Param, v float64) float64 {
+	if pa.Log {
+		return math.Exp(v)
+	}
+	return v
+}
+
+// unitFor resolves the "value" placeholders of a parameter's unit.
+func unitFor(pa Param, r *Result) string {
+	vu := r.ValueUnit
+	if vu == "" {
+		vu = "value"
+	}
+	switch pa.Unit {
+	case "value":
+		return vu
+	case "value*m":
+		return vu + "*m"
+	case "1/value":
+		return "1/" + vu
+	}
+	return pa.Unit
+}
+
+// totalSS is the (weighted) sum of squares about the (weighted) mean.
+func totalSS(d *Data) float64 {
+	var sw, swy float64
+	for i, y := range d.Y {
+		w := 1.0
+		if d.W != nil {
+			w = d.W[i]
+		}
+		sw += w
+		swy += w * y
+	}
+	mean := swy / sw
+	var ss float64
+	for i, y := range d.Y {
+		w := 1.0
+		if d.W != nil {
+			w = d.W[i]
+		}
+		ss += w * (y - mean) * (y - mean)
+	}
+	return ss
+}
+
+// aicc is the small-sample corrected Akaike criterion for least squares
+// with Gaussian errors, counting the error variance as a parameter:
+// AICc = n ln(RSS/n) + 2K + 2K(K+1)/(n−K−1), K = k+1 (Burnham & Anderson,
+// Model Selection and Multimodel Inference, 2nd ed., 2002, §2.4; from
+// memory). Only differences between models on the same data mean anything.
+func aicc(rss float64, n, k int) float64 {
+	K := float64(k + 1)
+	nf := float64(n)
+	if nf-K-1 <= 0 || rss <= 0 {
+		return math.NaN()
+	}
+	return nf*math.Log(rss/nf) + 2*K + 2*K*(K+1)/(nf-K-1)
+}
+
+// runsTest is the Wald–Wolfowitz runs test on the signs of the residuals
+// taken in depth order (A. Wald and J. Wolfowitz, Ann. Math. Statist. 11,
+// 147–162, 1940). It returns the two-sided p-value from the exact
+// conditional distribution of the number of runs given the counts of
+// positive and negative residuals; zero residuals are dropped. Too few
+// signs of either kind give NaN.
+func runsTest(x, res []float64) float64 {
+	idx := make([]int, len(x))
+	for i := range idx {
+		idx[i] = i
+	}
+	sortIdx(idx, x)
+	var n1, n2, runs int
+	prev := 0
+	for _, i := range idx {
+		s := 0
+		switch {
+		case res[i] > 0:
+			s, n1 = 1, n1+1
+		case res[i] < 0:
+			s, n2 = -1, n2+1
+		default:
+			continue
+		}
+		if s != prev {
+			runs++
+			prev = s
+		}
+	}
+	if n1 < 2 || n2 < 2 {
+		return math.NaN()
+	}
+	var lo, hi float64 // P(R ≤ runs), P(R ≥ runs)
+	for r := 2; r <= n1+n2; r++ {
+		pr := runsPMF(r, n1, n2)
+		if r <= runs {
+			lo += pr
+		}
+		if r >= runs {
+			hi += pr
+		}
+	}
+	return math.Min(1, 2*math.Min(lo, hi))
+}
+
+// runsPMF is P(R = r) for n1 and n2 signs in random order: with r = 2m,
+// 2·C(n1−1, m−1)·C(n2−1, m−1)/C(n1+n2, n1); with r = 2m+1,
+// [C(n1−1, m)·C(n2−1, m−1) + C(n1−1, m−1)·C(n2−1, m)]/C(n1+n2, n1).
+func runsPMF(r, n1, n2 int) float64 {
+	den := lchoose(n1+n2, n1)
+	m := r / 2
+	if r%2 == 0 {
+		return 2 * math.Exp(lchoose(n1-1, m-1)+lchoose(n2-1, m-1)-den)
+	}
+	return math.Exp(lchoose(n1-1, m)+lchoose(n2-1, m-1)-den) +
+		math.Exp(lchoose(n1-1, m-1)+lchoose(n2-1, m)-den)
+}
+
+// lchoose is ln C(n, k), −Inf outside 0 ≤ k ≤ n.
+func lchoose(n, k int) float64 {
+	if k < 0 || k > n {
+		return math.Inf(-1)
+	}
+	a, _ := math.Lgamma(float64(n + 1))
+	b, _ := math.Lgamma(float64(k + 1))
+	c, _ := math.Lgamma(float64(n - k + 1))
+	return a - b - c
+}
+
+// sortIdx orders idx by x (insertion sort: profiles are short and usually sorted).
+func sortIdx(idx []int, x []float64) {
+	for i := 1; i < len(idx); i++ {
+		for j := i; j > 0 && x[idx[j]] < x[idx[j-1]]; j-- {
+			idx[j], idx[j-1] = idx[j-1], idx[j]
+		}
+	}
+}
