@@ -72,16 +72,17 @@ func (Erf) Eval(p []float64, d *Data, f, jac []float64) {
 	}
 }
 
-// sortedByDepth returns copies of the data ordered by depth.
+// sortedByDepth returns the data ordered by depth: the data themselves when
+// they already are (the usual case), sorted copies otherwise.
 func sortedByDepth(d *Data) (x, y []float64) {
+	if sort.Float64sAreSorted(d.X) {
+		return d.X, d.Y
+	}
 	idx := make([]int, len(d.X))
 	for i := range idx {
 		idx[i] = i
 	}
-	sorted := sort.SliceIsSorted(idx, func(a, b int) bool { return d.X[idx[a]] < d.X[idx[b]] })
-	if !sorted {
-		sort.SliceStable(idx, func(a, b int) bool { return d.X[idx[a]] < d.X[idx[b]] })
-	}
+	sort.SliceStable(idx, func(a, b int) bool { return d.X[idx[a]] < d.X[idx[b]] })
 	x = make([]float64, len(idx))
 	y = make([]float64, len(idx))
 	for k, i := range idx {

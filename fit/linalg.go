@@ -64,8 +64,9 @@ func invertSPD(a []float64, k int) ([][]float64, bool) {
 		return nil, false
 	}
 	out := make([][]float64, k)
+	back := make([]float64, k*k)
 	for i := range out {
-		out[i] = make([]float64, k)
+		out[i] = back[i*k : (i+1)*k]
 		for j := range out[i] {
 			out[i][j] = inv.At(i, j) * sc[i] * sc[j]
 		}

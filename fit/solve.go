@@ -113,12 +113,14 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 		return nil, fmt.Errorf("%w: %d observations for %d free parameters", ErrBadInput, n, k)
 	}
 
-	// One workspace block: p, trial, f, ftrial, jac, a (JᵀWJ), chol, g, diag, delta.
-	buf := make([]float64, 2*np+2*n+n*np+2*k*k+3*k)
+	// One workspace block: p, trial, f, ftrial, jac, jtrial, a (JᵀWJ), chol, g, diag, delta.
+	// Trial points are evaluated with their Jacobian: most trials are
+	// accepted, and the Jacobian costs little beyond the values.
+	buf := make([]float64, 2*np+2*n+2*n*np+2*k*k+3*k)
 	take := func(m int) []float64 { v := buf[:m:m]; buf = buf[m:]; return v }
 	p, trial := take(np), take(np)
 	f, ftr := take(n), take(n)
-	jac := take(n * np)
+	jac, jtr := take(n*np), take(n*np)
 	a, chol := take(k*k), take(k*k)
 	g, diag, delta := take(k), take(k), take(k)
 	copy(p, p0)
@@ -223,7 +225,7 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 			for aa, ja := range idx {
 				trial[ja] += delta[aa]
 			}
-			pr.Func(trial, ftr, nil)
+			pr.Func(trial, ftr, jtr)
 			next := math.Inf(1)
 			if allFinite(ftr) {
 				next = rss(ftr)
@@ -252,7 +254,8 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 				predRel := pred / math.Max(cur, tiny)
 				rho := (cur - next) / math.Max(pred, tiny)
 				copy(p, trial)
-				copy(f, ftr)
+				f, ftr = ftr, f
+				jac, jtr = jtr, jac
 				cur = next
 				if rho > 0.75 {
 					lambda = math.Max(lambda/3, 1e-300)
@@ -275,16 +278,12 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 			lambda *= 4
 		}
 		if converged {
-			if stepped {
-				pr.Func(p, f, jac)
-			}
 			break
 		}
 		if !stepped {
 			reason = "the damped step could not reduce the residual sum"
 			break
 		}
-		pr.Func(p, f, jac)
 		if !allFinite(jac) {
 			reason = "the Jacobian is not finite at the current parameters"
 			break
@@ -295,10 +294,8 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 		reason = fmt.Sprintf("iteration limit (%d) reached", set.MaxIter)
 	}
 	normal()
-	sol.P = append([]float64(nil), p...)
-	sol.F = append([]float64(nil), f...)
-	sol.Jac = append([]float64(nil), jac...)
-	sol.JTJ = append([]float64(nil), a...)
+	// The solution keeps the workspace it was computed in: no copies.
+	sol.P, sol.F, sol.Jac, sol.JTJ = p, f, jac, a
 	sol.RSS = cur
 	sol.Iterations = iter
 	sol.Converged = converged

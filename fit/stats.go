@@ -3,6 +3,8 @@ package fit
 import (
 	"fmt"
 	"math"
+	"sort"
+	"sync"
 
 	"gonum.org/v1/gonum/stat/distuv"
 )
@@ -60,14 +62,15 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	}
 	r.cov = cov
 	r.Correlation = make([][]float64, k)
+	corr := make([]float64, k*k)
 	for i := range cov {
-		r.Correlation[i] = make([]float64, k)
+		r.Correlation[i] = corr[i*k : (i+1)*k]
 		for j := range cov[i] {
 			r.Correlation[i][j] = cov[i][j] / math.Sqrt(cov[i][i]*cov[j][j])
 		}
 	}
 
-	tq := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(dof)}.Quantile(0.5 + level/2)
+	tq := tQuantile(dof, level)
 	r.Params = make([]Estimate, len(params))
 	fi := 0
 	for j, pa := range params {
@@ -188,14 +191,21 @@ func aicc(rss float64, n, k int) float64 {
 // positive and negative residuals; zero residuals are dropped. Too few
 // signs of either kind give NaN.
 func runsTest(x, res []float64) float64 {
-	idx := make([]int, len(x))
-	for i := range idx {
-		idx[i] = i
+	var idx []int
+	if !sort.Float64sAreSorted(x) {
+		idx = make([]int, len(x))
+		for i := range idx {
+			idx[i] = i
+		}
+		sort.SliceStable(idx, func(a, b int) bool { return x[idx[a]] < x[idx[b]] })
 	}
-	sortIdx(idx, x)
 	var n1, n2, runs int
 	prev := 0
-	for _, i := range idx {
+	for k := range res {
+		i := k
+		if idx != nil {
+			i = idx[k]
+		}
 		s := 0
 		switch {
 		case res[i] > 0:
@@ -213,9 +223,9 @@ func runsTest(x, res []float64) float64 {
 	if n1 < 2 || n2 < 2 {
 		return math.NaN()
 	}
+	pmf := runsDist(n1, n2)
 	var lo, hi float64 // P(R ≤ runs), P(R ≥ runs)
-	for r := 2; r <= n1+n2; r++ {
-		pr := runsPMF(r, n1, n2)
+	for r, pr := range pmf {
 		if r <= runs {
 			lo += pr
 		}
@@ -226,17 +236,49 @@ func runsTest(x, res []float64) float64 {
 	return math.Min(1, 2*math.Min(lo, hi))
 }
 
-// runsPMF is P(R = r) for n1 and n2 signs in random order: with r = 2m,
-// 2·C(n1−1, m−1)·C(n2−1, m−1)/C(n1+n2, n1); with r = 2m+1,
+// runsDist returns P(R = r) for r = 0…n1+n2 when n1 and n2 signs are in
+// random order (Swed & Eisenhart, Ann. Math. Statist. 14, 66–87, 1943):
+// with r = 2m, 2·C(n1−1, m−1)·C(n2−1, m−1)/C(n1+n2, n1); with r = 2m+1,
 // [C(n1−1, m)·C(n2−1, m−1) + C(n1−1, m−1)·C(n2−1, m)]/C(n1+n2, n1).
-func runsPMF(r, n1, n2 int) float64 {
+// The binomial coefficients are stepped in logs, so only three Lgamma
+// calls are needed.
+func runsDist(n1, n2 int) []float64 {
 	den := lchoose(n1+n2, n1)
-	m := r / 2
-	if r%2 == 0 {
-		return 2 * math.Exp(lchoose(n1-1, m-1)+lchoose(n2-1, m-1)-den)
+	mmax := min(n1, n2) + 1
+	buf := make([]float64, n1+n2+1+2*(mmax+1))
+	pmf := buf[:n1+n2+1]
+	// la[m] = ln C(n1−1, m), lb[m] = ln C(n2−1, m), for m = 0…mmax.
+	la := buf[n1+n2+1 : n1+n2+mmax+2]
+	lb := buf[n1+n2+mmax+2:]
+	step := func(l []float64, nn int) {
+		l[0] = 0
+		for m := 1; m < len(l); m++ {
+			if m > nn {
+				l[m] = math.Inf(-1)
+				continue
+			}
+			l[m] = l[m-1] + math.Log(float64(nn-m+1)/float64(m))
+		}
 	}
-	return math.Exp(lchoose(n1-1, m)+lchoose(n2-1, m-1)-den) +
-		math.Exp(lchoose(n1-1, m-1)+lchoose(n2-1, m)-den)
+	step(la, n1-1)
+	step(lb, n2-1)
+	for m := 1; m <= mmax; m++ {
+		if r := 2 * m; r < len(pmf) {
+			pmf[r] = 2 * math.Exp(la[m-1]+lb[m-1]-den)
+		}
+		if r := 2*m + 1; r < len(pmf) && m < len(la) {
+			pmf[r] = math.Exp(la[m]+lb[m-1]-den) + math.Exp(la[m-1]+lb[m]-den)
+		}
+	}
+	return pmf
+}
+
+// runsPMF is P(R = r) for n1 and n2 signs in random order (see runsDist).
+func runsPMF(r, n1, n2 int) float64 {
+	if r < 0 || r > n1+n2 {
+		return 0
+	}
+	return runsDist(n1, n2)[r]
 }
 
 // lchoose is ln C(n, k), −Inf outside 0 ≤ k ≤ n.
@@ -250,11 +292,16 @@ func lchoose(n, k int) float64 {
 	return a - b - c
 }
 
-// sortIdx orders idx by x (insertion sort: profiles are short and usually sorted).
-func sortIdx(idx []int, x []float64) {
-	for i := 1; i < len(idx); i++ {
-		for j := i; j > 0 && x[idx[j]] < x[idx[j-1]]; j-- {
-			idx[j], idx[j-1] = idx[j-1], idx[j]
-		}
+// tQuantile returns the two-sided Student-t quantile t_{dof, (1+level)/2},
+// cached: a batch of fits asks for the same few values again and again.
+func tQuantile(dof int, level float64) float64 {
+	key := [2]float64{float64(dof), level}
+	if v, ok := tCache.Load(key); ok {
+		return v.(float64)
 	}
+	q := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(dof)}.Quantile(0.5 + level/2)
+	tCache.Store(key, q)
+	return q
 }
+
+var tCache sync.Map
