@@ -1,0 +1,54 @@
+package arrhenius
+
+import (
+	"fmt"
+	"strings"
+
+	"github.com/fickfit/fickfit/fit"
+)
+
+// Error is an error from this package. It says what it concerns (file,
+// line, profile or point, field), what is wrong and what to do, and
+// unwraps to fit.ErrBadInput or fit.ErrNoAnswer so that the command line
+// can choose its exit status with errors.Is.
+type Error struct {
+	Source string // file the value came from; "" when not from a file
+	Line   int    // 1-based line or row in Source; 0 when not known
+	ID     string // profile, point, group or reference name concerned
+	Field  string // the quantity concerned: "temperature", "time", "Q"…
+	Msg    string // what is wrong and what to do
+	Kind   error  // fit.ErrBadInput or fit.ErrNoAnswer
+}
+
+// Error implements error.
+func (e *Error) Error() string {
+	var b strings.Builder
+	b.WriteString("arrhenius")
+	if e.Source != "" {
+		b.WriteString(": ")
+		b.WriteString(e.Source)
+		if e.Line > 0 {
+			fmt.Fprintf(&b, ":%d", e.Line)
+		}
+	}
+	if e.ID != "" {
+		fmt.Fprintf(&b, ": %s", e.ID)
+	}
+	if e.Field != "" {
+		fmt.Fprintf(&b, ": %s", e.Field)
+	}
+	b.WriteString(": ")
+	b.WriteString(e.Msg)
+	return b.String()
+}
+
+// Unwrap returns the error kind (fit.ErrBadInput or fit.ErrNoAnswer).
+func (e *Error) Unwrap() error { return e.Kind }
+
+func badInput(id, field, format string, args ...any) *Error {
+	return &Error{ID: id, Field: field, Msg: fmt.Sprintf(format, args...), Kind: fit.ErrBadInput}
+}
+
+func noAnswer(id, field, format string, args ...any) *Error {
+	return &Error{ID: id, Field: field, Msg: fmt.Sprintf(format, args...), Kind: fit.ErrNoAnswer}
+}

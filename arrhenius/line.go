@@ -1,0 +1,149 @@
+package arrhenius
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/fickfit/fickfit/fit"
+)
+
+// Line is a fitted Arrhenius line ln D = ln D0 − Q/(RT) with everything
+// needed to judge and reuse it.
+type Line struct {
+	// Group is the group's name and By the grouping column ("" when not grouped).
+	Group, By string
+	// Method is "two-stage" or "global".
+	Method string
+	LnD0   float64 // ln(D0 / (m²/s))
+	Q      float64 // J/mol
+	// Cov is the covariance of (ln D0, Q) used for the intervals: from the
+	// stated errors, times B² when Scaled.
+	Cov [2][2]float64
+	// DOF is the degrees of freedom of the t quantile: points − 2
+	// (two-stage) or profiles − 2 (global).
+	DOF   int
+	Level float64
+	// ChiSq is the weighted residual sum of squares about the line (for the
+	// global fit: the extra sum of squares over the separate fits) and
+	// ChiSqP = P(χ²_DOF ≥ ChiSq) when the weights come from stated errors.
+	ChiSq, ChiSqP float64
+	// BirgeRatio = √(ChiSq/DOF): about 1 when the scatter matches the stated
+	// errors. Scaled tells whether the covariance was multiplied by its square.
+	BirgeRatio float64
+	Scaled     bool
+	// NTemperatures is the number of distinct temperatures; HasCI is false
+	// below 3 (estimates without intervals).
+	NTemperatures int
+	HasCI         bool
+	Points        []LinePoint
+	// TempBudget splits Q's interval into temperature and profile parts;
+	// nil when no temperature uncertainty was given.
+	TempBudget *TemperatureBudget
+	// Iterations of the effective-variance (two-stage) or random-effect
+	// (global) loop for temperature uncertainty; 0 when not needed.
+	Iterations int
+	Warnings   []fit.Warning
+}
+
+// LinePoint is one point of the line with its fitted value.
+type LinePoint struct {
+	Point
+	Fitted   float64 // ln D on the line at T
+	Residual float64 // LnD − Fitted
+	// Weight is the final weight 1/(Var ln D + (Q/RT²)²σ_T²) (two-stage) or
+	// 1/Var(ln D) of the separate fit (global).
+	Weight float64
+}
+
+// TemperatureBudget tells how much of Q's uncertainty comes from the
+// temperatures and how much from the profiles: the same data are fitted
+// with the temperature uncertainties and with σ_T = 0.
+type TemperatureBudget struct {
+	// HalfWidthQ is the half-width (J/mol) of Q's interval with temperature
+	// uncertainty; HalfWidthQProfiles the half-width with σ_T = 0, each with
+	// its own Birge scaling. NaN without interval.
+	HalfWidthQ, HalfWidthQProfiles float64
+	// ShareTemperature = 1 − Var₀(Q)/Var(Q) (unscaled variances, without and
+	// with σ_T) is the fraction of Var(Q) due to the temperatures;
+	// ShareProfiles = 1 − ShareTemperature.
+	ShareTemperature, ShareProfiles float64
+	Iterations                      int
+	Converged                       bool
+}
+
+// D0 returns the pre-exponential factor in m²/s.
+func (l *Line) D0() float64 { return math.Exp(l.LnD0) }
+
+// StdErrLnD0 and StdErrQ return the standard errors used for the intervals.
+func (l *Line) StdErrLnD0() float64 { return math.Sqrt(l.Cov[0][0]) }
+
+// StdErrQ returns the standard error of Q (J/mol).
+func (l *Line) StdErrQ() float64 { return math.Sqrt(l.Cov[1][1]) }
+
+// Corr returns the correlation of ln D0 and Q.
+func (l *Line) Corr() float64 {
+	return l.Cov[0][1] / math.Sqrt(l.Cov[0][0]*l.Cov[1][1])
+}
+
+func (l *Line) k() float64 { return quantile(l.Level, l.DOF) }
+
+// QCI returns the Wald interval Q ± t·se(Q) (J/mol); open (NaN) without CI.
+func (l *Line) QCI() fit.Interval {
+	if !l.HasCI {
+		return fit.Interval{Lo: nan, Hi: nan}
+	}
+	h := l.k() * l.StdErrQ()
+	return fit.Interval{Lo: l.Q - h, Hi: l.Q + h}
+}
+
+// D0CI returns exp(ln D0 ± t·se(ln D0)) (m²/s); open (NaN) without CI.
+func (l *Line) D0CI() fit.Interval {
+	if !l.HasCI {
+		return fit.Interval{Lo: nan, Hi: nan}
+	}
+	h := l.k() * l.StdErrLnD0()
+	return fit.Interval{Lo: math.Exp(l.LnD0 - h), Hi: math.Exp(l.LnD0 + h)}
+}
+
+// LnDAt returns ln D on the line at T (K) and its standard error.
+func (l *Line) LnDAt(T float64) (lnD, se float64) {
+	lnD, v := l.Calibration().LnD(T)
+	return lnD, math.Sqrt(v)
+}
+
+// DAt returns D (m²/s) on the line at T (K) with the confidence band of
+// the mean line, exp(ln D ± t·se); the band is open without CI.
+func (l *Line) DAt(T float64) (D float64, ci fit.Interval) {
+	lnD, se := l.LnDAt(T)
+	if !l.HasCI {
+		return math.Exp(lnD), fit.Interval{Lo: nan, Hi: nan}
+	}
+	h := l.k() * se
+	return math.Exp(lnD), fit.Interval{Lo: math.Exp(lnD - h), Hi: math.Exp(lnD + h)}
+}
+
+// TRange returns the lowest and highest temperature of the points (K).
+func (l *Line) TRange() (lo, hi float64) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, p := range l.Points {
+		lo, hi = math.Min(lo, p.T), math.Max(hi, p.T)
+	}
+	if len(l.Points) == 0 {
+		return 0, 0
+	}
+	return lo, hi
+}
+
+// Calibration returns the line in the form back-calculation and prediction use.
+func (l *Line) Calibration() Calibration {
+	c := Calibration{LnD0: l.LnD0, Q: l.Q, Cov: l.Cov, DOF: l.DOF, NoInterval: !l.HasCI, Method: l.Method}
+	c.Source = fmt.Sprintf("%s Arrhenius fit of %d points at %d temperatures", l.Method, len(l.Points), l.NTemperatures)
+	if l.Group != "" {
+		c.Source += fmt.Sprintf(" (%s %s)", l.By, l.Group)
+	}
+	c.TMin, c.TMax = l.TRange()
+	if c.DOF < 0 {
+		c.DOF = 0
+	}
+	return c
+}

@@ -1,0 +1,139 @@
+package arrhenius
+
+import (
+	"math"
+	"strings"
+
+	"github.com/fickfit/fickfit/fit"
+)
+
+// Point is one diffusion coefficient measured at one temperature: the
+// input of the two-stage regression.
+type Point struct {
+	ID     string
+	Source string // file the profile came from
+	Lot    string
+	// Meta holds the profile's metadata (lower-case keys) for grouping.
+	Meta map[string]string
+	// T is the hold temperature in K; SigmaT its standard uncertainty in K
+	// (0 when not given).
+	T, SigmaT float64
+	// LnD is ln(D / (m²/s)); VarLnD its variance from the profile fit
+	// (NaN when the fit gave none).
+	LnD, VarLnD float64
+	// CI is the profile fit's own interval of D (m²/s); an interval with
+	// both ends 0 means none was given, and a Wald interval on ln D is shown.
+	CI fit.Interval
+}
+
+// PointFromResult reads the point of one fitted profile: T, ln D and
+// Var(ln D) = StdErrLn² of the "D" estimate. It refuses a result whose
+// time was unknown (its "D" is then the product Dt in m²), one that did
+// not converge, one with D fixed, and one without a temperature.
+func PointFromResult(r *fit.Result) (Point, error) {
+	if r == nil {
+		return Point{}, badInput("", "result", "missing fit result")
+	}
+	e := func(field, format string, args ...any) error {
+		err := badInput(r.ID, field, format, args...)
+		err.Source = r.Source
+		return err
+	}
+	if !r.Converged {
+		return Point{}, e("fit", "the profile fit did not converge; fix the fit or leave this profile out")
+	}
+	d := r.Param("D")
+	if d == nil {
+		return Point{}, e("D", "the %s model has no parameter D; Arrhenius analysis needs a fitted D", r.Model)
+	}
+	if d.Fixed {
+		return Point{}, e("D", "D was fixed in the fit, not measured; free it to use this profile")
+	}
+	if r.Time <= 0 {
+		return Point{}, e("time", "the hold time is unknown, so the fit gave Dt (m²), not D; give the time (e.g. --time 4h or a `# time:` line) or use the profile for back-calculation instead")
+	}
+	if !(r.Temperature > 0) {
+		return Point{}, e("temperature", "the hold temperature is not given; add a `# temperature:` line or --temperature")
+	}
+	if !(d.Value > 0) || !finite(d.Value) {
+		return Point{}, e("D", "D = %g is not a positive number", d.Value)
+	}
+	v := nan
+	switch {
+	case d.StdErrLn > 0:
+		v = d.StdErrLn * d.StdErrLn
+	case d.StdErr > 0:
+		v = (d.StdErr / d.Value) * (d.StdErr / d.Value)
+	}
+	meta := make(map[string]string, len(r.Meta)+2)
+	for k, val := range r.Meta {
+		meta[strings.ToLower(k)] = val
+	}
+	if _, ok := meta["material"]; !ok && r.Material != "" {
+		meta["material"] = r.Material
+	}
+	if _, ok := meta["lot"]; !ok && r.Lot != "" {
+		meta["lot"] = r.Lot
+	}
+	return Point{
+		ID: r.ID, Source: r.Source, Lot: r.Lot, Meta: meta,
+		T: r.Temperature, SigmaT: r.TemperatureSigma,
+		LnD: math.Log(d.Value), VarLnD: v, CI: d.CI,
+	}, nil
+}
+
+// PointsFromResults reads the points of many fitted profiles; the first
+// unusable result stops it with an error naming the profile.
+func PointsFromResults(rs []*fit.Result) ([]Point, error) {
+	pts := make([]Point, 0, len(rs))
+	for _, r := range rs {
+		p, err := PointFromResult(r)
+		if err != nil {
+			return nil, err
+		}
+		pts = append(pts, p)
+	}
+	return pts, nil
+}
+
+// GroupKey returns the point's value of the grouping column by: "lot"
+// (the Lot field, else Meta["lot"]) or any metadata key (case-insensitive).
+// ok is false when the point has no such value.
+func (p Point) GroupKey(by string) (string, bool) {
+	key := strings.ToLower(strings.TrimSpace(by))
+	if key == "lot" && p.Lot != "" {
+		return p.Lot, true
+	}
+	v, ok := p.Meta[key]
+	if !ok || strings.TrimSpace(v) == "" {
+		return "", false
+	}
+	return strings.TrimSpace(v), true
+}
+
+// GroupPoints splits points by the column by (see Point.GroupKey), keeping
+// groups in order of first appearance. by == "" gives one group named "".
+// A point without a value for the column is an error naming it.
+func GroupPoints(pts []Point, by string) (names []string, groups [][]Point, err error) {
+	if strings.TrimSpace(by) == "" {
+		return []string{""}, [][]Point{pts}, nil
+	}
+	index := map[string]int{}
+	for _, p := range pts {
+		g, ok := p.GroupKey(by)
+		if !ok {
+			e := badInput(p.ID, by, "this profile has no value for the grouping column %q; add it to the file's metadata or choose another column", by)
+			e.Source = p.Source
+			return nil, nil, e
+		}
+		i, seen := index[g]
+		if !seen {
+			i = len(names)
+			index[g] = i
+			names = append(names, g)
+			groups = append(groups, nil)
+		}
+		groups[i] = append(groups[i], p)
+	}
+	return names, groups, nil
+}
