@@ -1,0 +1,207 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+)
+
+// Slab is a plane sheet of finite thickness L, initially at a uniform level
+// C0, whose exposed faces are held at Cs from t = 0 (D constant):
+//
+//	(C − C0)/(Cs − C0) = 1 − (4/π) Σₙ 1/(2n+1)·sin((2n+1)πx/L)·exp(−(2n+1)²π²Dt/L²)
+//
+// with x measured from one face (Crank, The Mathematics of Diffusion, 2nd
+// ed., 1975, ch. 4, §4.3.1, eq. 4.17 written for 0 ≤ x ≤ L; section and
+// equation numbers from memory). For small τ = Dt/L² the Fourier series
+// converges slowly and the equivalent series of images (Crank eq. 4.16,
+// from memory)
+//
+//	(C − C0)/(Cs − C0) = Σₙ (−1)ⁿ [erfc((nL + x)/(2√(Dt))) + erfc(((n+1)L − x)/(2√(Dt)))]
+//
+// converges in two or three terms; Eval uses the images for τ < 0.05 and
+// the Fourier series above, each summed until the bound on the remaining
+// terms (of the value and of its derivative in ln D) is below 1e-15 of
+// |Cs − C0|.
+//
+// With Data.Faces == 1 the far face is sealed (no flux): by symmetry the
+// profile is that of a sheet of thickness 2L exposed on both faces, so L
+// is replaced by 2L. Depths must lie in [0, L]. The thickness comes from
+// Data.Thickness and is required.
+//
+// Parameters: D (fitted as ln D), Cs, C0.
+type Slab struct{}
+
+func init() { register("slab", func() Model { return Slab{} }) }
+
+// Name implements Model.
+func (Slab) Name() string { return "slab" }
+
+// Params implements Model.
+func (Slab) Params() []Param {
+	return []Param{
+		{Name: "D", Log: true, Unit: "m2/s", Free: true},
+		{Name: "Cs", Unit: "value", Free: true},
+		{Name: "C0", Unit: "value", Free: true},
+	}
+}
+
+// slabTauSwitch is the τ = Dt/L² below which the series of images is used.
+// At τ = 0.05 both series need about five terms (common practice, no source).
+const slabTauSwitch = 0.05
+
+// slabTol is the bound on the neglected terms of either series, relative to
+// the step Cs − C0.
+const slabTol = 1e-15
+
+// slabSeries evaluates θ = (C − C0)/(Cs − C0) and ∂θ/∂ln τ at one τ.
+type slabSeries struct {
+	tau, sq float64 // τ and 2√τ
+	fourier bool
+	n       int         // Fourier terms kept
+	ek      [64]float64 // exp(−k²π²τ), k = 1, 3, 5…
+}
+
+func newSlabSeries(tau float64) slabSeries {
+	s := slabSeries{tau: tau, sq: 2 * math.Sqrt(tau), fourier: tau >= slabTauSwitch}
+	if !s.fourier {
+		return s
+	}
+	for j := 0; j < len(s.ek); j++ {
+		k := float64(2*j + 1)
+		a := k * k * math.Pi * math.Pi * tau
+		s.ek[j] = math.Exp(-a)
+		s.n = j + 1
+		// Bound on every later term of θ and of ∂θ/∂lnτ: the next envelope
+		// (4/π)(1 + a')e^{−a'} times a geometric tail factor.
+		k2 := k + 2
+		a2 := k2 * k2 * math.Pi * math.Pi * tau
+		r := math.Exp(-(4*k2 + 4) * math.Pi * math.Pi * tau)
+		if 4/math.Pi*(1+a2)*math.Exp(-a2)/(1-r) < slabTol {
+			break
+		}
+	}
+	return s
+}
+
+// at returns θ and ∂θ/∂lnτ at ξ = x/L.
+func (s *slabSeries) at(xi float64) (theta, dtheta float64) {
+	if s.fourier {
+		// sin(kφ) for odd k by the recurrence sin((k+2)φ) = 2cos(2φ)sin(kφ) − sin((k−2)φ).
+		phi := math.Pi * xi
+		s1, c1 := math.Sincos(phi)
+		c2 := 2 * (c1*c1 - s1*s1)
+		prev, cur := -s1, s1 // sin(−φ), sin(φ)
+		var sum, dsum float64
+		for j := 0; j < s.n; j++ {
+			k := float64(2*j + 1)
+			sum += cur / k * s.ek[j]
+			dsum += k * cur * s.ek[j]
+			prev, cur = cur, c2*cur-prev
+		}
+		return 1 - 4/math.Pi*sum, 4 * math.Pi * s.tau * dsum
+	}
+	// Series of images; d erfc(w)/dlnτ = (w/√π)e^{−w²} for w = z/(2√τ).
+	sign := 1.0
+	for n := 0; n < 1000; n++ {
+		w1 := (float64(n) + xi) / s.sq
+		w2 := (float64(n+1) - xi) / s.sq
+		theta += sign * (math.Erfc(w1) + math.Erfc(w2))
+		dtheta += sign * (w1*math.Exp(-w1*w1) + w2*math.Exp(-w2*w2)) / math.SqrtPi
+		sign = -sign
+		wn := float64(n+1) / s.sq // smallest argument of the next group
+		if 2*(math.Erfc(wn)+wn*math.Exp(-wn*wn)) < slabTol {
+			break
+		}
+	}
+	return theta, dtheta
+}
+
+// slabLength returns the effective sheet thickness (2L for one sealed face).
+func slabLength(d *Data) float64 {
+	if d.Faces == 1 {
+		return 2 * d.Thickness
+	}
+	return d.Thickness
+}
+
+// Eval implements Model. ∂C/∂lnD = (Cs − C0)·∂θ/∂lnτ since τ ∝ D. Without
+// a thickness it writes NaN (Start refuses such data first).
+func (Slab) Eval(p []float64, d *Data, f, jac []float64) {
+	L := slabLength(d)
+	if !(L > 0) {
+		for i := range f {
+			f[i] = math.NaN()
+		}
+		return
+	}
+	s := newSlabSeries(math.Exp(p[0]) * d.Time / (L * L))
+	cs, c0 := p[1], p[2]
+	dc := cs - c0
+	for i, x := range d.X {
+		th, dth := s.at(x / L)
+		f[i] = c0 + dc*th
+		if jac != nil {
+			row := jac[3*i : 3*i+3]
+			row[0] = dc * dth
+			row[1] = th
+			row[2] = 1 - th
+		}
+	}
+}
+
+// Start implements Model. It checks the thickness, the number of faces and
+// that every depth lies inside the specimen, then scans diffusion lengths
+// 2√(Dt) from 1/100 of the deepest depth to 4× the (effective) thickness,
+// with Cs and C0 from linear least squares at each length (separable least
+// squares, as in MassTransfer.Start).
+func (Slab) Start(d *Data, p []float64) error {
+	if !(d.Thickness > 0) {
+		return fmt.Errorf("%w: the slab model needs the specimen thickness: add `# thickness: 12 mm` or --thickness", ErrBadInput)
+	}
+	if d.Faces != 1 && d.Faces != 2 {
+		return fmt.Errorf("%w: the slab model takes 1 exposed face (far face sealed) or 2 (both faces exposed), not %d: use --faces 1 or --faces 2", ErrBadInput, d.Faces)
+	}
+	for i, x := range d.X {
+		if x < 0 || x > d.Thickness*(1+1e-9) {
+			return fmt.Errorf("%w: point %d at depth %s lies outside the specimen (thickness %s, depths measured from an exposed face): check the thickness (`# thickness:` or --thickness) and the depth unit", ErrBadInput, i+1, fmtLength(x), fmtLength(d.Thickness))
+		}
+	}
+	L := slabLength(d)
+	g := make([]float64, len(d.X))
+	s := scanLengths(d, depthScale(d)/100, 4*L, 64, g, func(l float64, g []float64) {
+		ss := newSlabSeries(l * l / (4 * L * L))
+		for i, x := range d.X {
+			g[i], _ = ss.at(x / L)
+		}
+	}, nil)
+	if !s.ok {
+		return errNoStart("slab")
+	}
+	p[0] = math.Log(s.l * s.l / (4 * d.Time))
+	p[1], p[2] = s.a+s.b, s.a
+	return nil
+}
+
+// Diagnose implements Diagnoser: it says when the specimen is practically
+// saturated, when only the first Fourier mode is left (D and C0 are then
+// confounded unless C0 is fixed), or when the specimen is so thick that the
+// far face plays no part.
+func (Slab) Diagnose(r *Result) {
+	D := r.Param("D")
+	L := slabLength(r.data)
+	if D == nil || !(L > 0) {
+		return
+	}
+	tau := D.Value * r.data.Time / (L * L)
+	c0 := r.Param("C0")
+	switch {
+	case tau > 0.5:
+		// Centre deficit (4/π)·exp(−π²τ) < 1 % of the step at τ = 0.5 (Crank eq. 4.17, first term).
+		r.Warn("slab-saturated", "The specimen is practically saturated (Dt/L² = %.2g > 0.5; the centre is within %.2g %% of Cs): D rests on a small remaining difference and is poorly determined. A shorter time or a thicker specimen would measure it better.", tau, 100*4/math.Pi*math.Exp(-math.Pi*math.Pi*tau))
+	case tau > 0.1 && c0 != nil && !c0.Fixed:
+		// The second mode is (1/3)e^{−8π²τ} ≈ 1e-4 of the first at τ = 0.1.
+		r.Warn("slab-single-mode", "Late in the uptake (Dt/L² = %.2g > 0.1) the profile is a single sine arch, which fixes (Cs − C0)·exp(−π²Dt/L²) but not D and C0 apart. Fix C0 at the known initial level with --fix C0=… for a trustworthy D.", tau)
+	case tau < 0.005:
+		r.Warn("slab-thick", "The diffusion length is small against the thickness (Dt/L² = %.2g): the far face plays no part and the semi-infinite erf model gives the same D with fewer assumptions.", tau)
+	}
+}
