@@ -1,0 +1,175 @@
+// Package report writes fickfit's results for people and for programs:
+// aligned text for the terminal, JSON and CSV for scripts and lab
+// databases, SVG/PNG figures, an XLSX workbook with native charts and a
+// self-contained HTML report. Campaign runs the whole job — read, fit,
+// Arrhenius per lot, lot comparison, back-calculation of unknown parts —
+// and WriteCampaign writes the report folder.
+//
+// Internal units are SI; report converts only on the way out (see
+// format.go). Machine outputs (JSON, CSV) carry SI numbers in full
+// precision, with the unit in the key; text, HTML, figures and the
+// workbook carry numbers rounded to what their intervals support.
+//
+// Identical inputs give byte-identical JSON and CSV: no timestamps, maps
+// written with sorted keys, profiles in a fixed order.
+package report
+
+import (
+	"errors"
+	"fmt"
+	"sort"
+	"strings"
+
+	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/profile"
+)
+
+// DefaultVersion is written as the software version when the caller gives none.
+const DefaultVersion = "devel"
+
+// FitCautions accompany every set of fitted diffusion coefficients.
+var FitCautions = []string{
+	"Each D is the estimate of a model: the stated solution of Fick's second law (constant D, the stated boundary condition and geometry) is assumed to describe the profile. The warnings say where these data do not support that.",
+	"Intervals cover the statistical scatter of the measured points only, not bias of the measurement method, surface preparation or the depth scale.",
+	"Verify by metallography (microstructure, microhardness traverse or chemical profile) before acting on a number.",
+	"The applicable specifications decide acceptance; defer to local codes and to licensed engineering judgement.",
+}
+
+// Failure is a profile that gave no fit.
+type Failure struct {
+	ID     string `json:"id"`
+	Source string `json:"source,omitempty"`
+	Lot    string `json:"lot,omitempty"`
+	// Kind is "bad input" (exit status 2) or "no answer" (exit status 1).
+	Kind  string `json:"kind"`
+	Error string `json:"error"`
+}
+
+// NewFailure describes the error of fitting profile p.
+func NewFailure(p *profile.Profile, err error) Failure {
+	kind := "no answer"
+	if errors.Is(err, fit.ErrBadInput) {
+		kind = "bad input"
+	}
+	return Failure{ID: p.ID, Source: p.Source, Lot: p.Lot, Kind: kind, Error: err.Error()}
+}
+
+// Fits is what the fit writers take: the fitted profiles and the ones that
+// gave no answer, each in input order.
+type Fits struct {
+	Results []*fit.Result
+	Failed  []Failure
+	// Version is the software version written into JSON; "" means DefaultVersion.
+	Version string
+}
+
+// NewFits pairs FitAll's output with its profiles: results[i] and errs[i]
+// belong to ps[i].
+func NewFits(ps []profile.Profile, results []*fit.Result, errs []error) Fits {
+	var f Fits
+	for i := range ps {
+		switch {
+		case i < len(errs) && errs[i] != nil:
+			f.Failed = append(f.Failed, NewFailure(&ps[i], errs[i]))
+		case i < len(results) && results[i] != nil:
+			f.Results = append(f.Results, results[i])
+		}
+	}
+	return f
+}
+
+func versionOr(v string) string {
+	if strings.TrimSpace(v) == "" {
+		return DefaultVersion
+	}
+	return v
+}
+
+// modelNames describes the models in words for people.
+var modelNames = map[string]string{
+	"erf":          "constant surface concentration (erf solution)",
+	"masstransfer": "surface mass transfer (erfc with surface coefficient)",
+	"thinfilm":     "thin-film source (Gaussian)",
+	"couple":       "diffusion couple of two semi-infinite bodies",
+	"slab":         "finite slab (Fourier series)",
+	"numeric":      "numerical solution with concentration-dependent D",
+}
+
+// ModelDescription is the model's name in words ("constant surface
+// concentration (erf solution)"), or the flag name when not known.
+func ModelDescription(name string) string {
+	if d, ok := modelNames[name]; ok {
+		return d
+	}
+	return name
+}
+
+// ciMethodNames describes the interval methods.
+var ciMethodNames = map[string]string{
+	"wald":                 "Wald (Student t)",
+	"profile":              "profile likelihood",
+	"bootstrap-percentile": "bootstrap percentile",
+	"bootstrap-bca":        "bootstrap BCa",
+}
+
+// CIMethodDescription is the interval method in words.
+func CIMethodDescription(m string) string {
+	if d, ok := ciMethodNames[m]; ok {
+		return d
+	}
+	return m
+}
+
+// paramOrder is the canonical order of parameter columns.
+var paramOrder = []string{"D", "Cs", "Cp", "C0", "CL", "CR", "M", "beta", "x0", "xm"}
+
+// paramNames returns the names of every parameter in rs, canonical ones
+// first, then others sorted.
+func paramNames(rs []*fit.Result) []string {
+	seen := map[string]bool{}
+	for _, r := range rs {
+		for _, e := range r.Params {
+			seen[e.Name] = true
+		}
+	}
+	var out []string
+	for _, n := range paramOrder {
+		if seen[n] {
+			out = append(out, n)
+			delete(seen, n)
+		}
+	}
+	var rest []string
+	for n := range seen {
+		rest = append(rest, n)
+	}
+	sort.Strings(rest)
+	return append(out, rest...)
+}
+
+// warningTarget tells next to which number a warning belongs: a parameter
+// name, "stats", or "" for the profile as a whole.
+func warningTarget(r *fit.Result, w fit.Warning) string {
+	switch w.Code {
+	case "time-missing", "d-uncertain", "penetration-beyond-data", "penetration-below-first-step", "thin-section":
+		if r.Param("D") != nil {
+			return "D"
+		}
+	case "plateau-not-reached":
+		if r.Param("C0") != nil {
+			return "C0"
+		}
+	case "residual-pattern", "ill-conditioned":
+		return "stats"
+	case "ci-open":
+		for _, e := range r.Params {
+			if strings.HasPrefix(w.Message, e.Name+" ") || strings.Contains(w.Message, " bound "+e.Name+" ") {
+				return e.Name
+			}
+		}
+	}
+	return ""
+}
+
+// errorf is fmt.Errorf, named for symmetry with the other packages.
+func errorf(format string, args ...any) error { return fmt.Errorf(format, args...) }

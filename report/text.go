@@ -1,0 +1,272 @@
+package report
+
+import (
+	"bufio"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+
+	"github.com/fickfit/fickfit/fit"
+)
+
+// TextOptions control the text views. The zero value writes temperatures
+// in °C with kelvin beside, wraps at 100 columns and ends with the cautions.
+type TextOptions struct {
+	// TempUnit is the user's temperature unit; "" means °C.
+	TempUnit TempUnit
+	// Width is the column at which warnings and cautions wrap; 0 means 100.
+	Width int
+	// NoCautions leaves the cautions out (for a caller that writes them once
+	// at the end of a longer output).
+	NoCautions bool
+}
+
+func (o TextOptions) width() int {
+	if o.Width <= 0 {
+		return 100
+	}
+	return o.Width
+}
+
+// paramText is one parameter written for people.
+type paramText struct {
+	Name, Value, SE, CI string
+}
+
+// formatParam writes a parameter: value with unit (D also in µm²/s or
+// cm²/s), standard error with two significant digits, interval with the
+// value's digits; lengths in µm or mm.
+func formatParam(e fit.Estimate) paramText {
+	pt := paramText{Name: e.Name}
+	v, iv, se, unit := e.Value, e.CI, e.StdErr, e.Unit
+	switch unit {
+	case "m", "m2":
+		if unit == "m" {
+			ref := math.Abs(v)
+			if finite(iv.Lo) {
+				ref = math.Max(ref, math.Abs(iv.Lo))
+			}
+			if finite(iv.Hi) {
+				ref = math.Max(ref, math.Abs(iv.Hi))
+			}
+			f, u := DepthScale(ref)
+			v, se, iv, unit = v/f, se/f, fit.Interval{Lo: iv.Lo / f, Hi: iv.Hi / f}, u
+		}
+	}
+	last := LastDigit(v, iv)
+	if e.Fixed {
+		last = SigDigits(v, DefaultDigits)
+		if v == 0 {
+			last = 0
+		}
+	}
+	pt.Value = Number(v, last)
+	if u := PrettyUnit(unit); u != "" {
+		pt.Value += " " + u
+	}
+	if unit == "m2/s" {
+		if alt := DAlternative(v, iv); alt != "" {
+			pt.Value += " (" + alt + ")"
+		}
+	}
+	if e.Fixed {
+		pt.SE, pt.CI = "", "fixed"
+		return pt
+	}
+	if se > 0 && finite(se) {
+		pt.SE = Sig(se, 2)
+	}
+	pt.CI = IntervalAt(v, iv, last)
+	return pt
+}
+
+// statsText writes the statistics line of a fit.
+func statsText(r *fit.Result) string { return strings.Join(statsParts(r), " · ") }
+
+// statsParts lists the statistics of a fit, each "name value".
+func statsParts(r *fit.Result) []string {
+	s := r.Stats
+	weighted := finite(s.Chi2P)
+	vu := r.ValueUnit
+	rssUnit, rmseUnit := "", ""
+	if !weighted && vu != "" {
+		rssUnit, rmseUnit = " ("+vu+")²", " "+vu
+	}
+	parts := []string{
+		"n " + strconv.Itoa(s.N),
+		"dof " + strconv.Itoa(s.DOF),
+		"RSS " + Sig(s.RSS, 2) + rssUnit,
+		"RMSE " + Sig(s.RMSE, 2) + rmseUnit,
+		"R² " + r2Text(s.R2),
+		"AICc " + Number(s.AICc, -1),
+		"χ²red " + Sig(s.Chi2Red, 2),
+	}
+	if weighted {
+		parts = append(parts, "P(χ²) "+Sig(s.Chi2P, 2))
+	}
+	parts = append(parts, "runs p "+Sig(s.RunsP, 2), "cond "+Sig(s.Cond, 2), covarianceText(r.Covariance))
+	return parts
+}
+
+// r2Text writes R² with four decimals (more only say how close to 1).
+func r2Text(v float64) string { return Number(v, -4) }
+
+// covarianceText says how the covariance was scaled.
+func covarianceText(c string) string {
+	if c == "absolute" {
+		return "covariance absolute (σ taken as known)"
+	}
+	return "covariance scaled by χ²red"
+}
+
+// conditionsText writes "880 °C (1153.15 K), 5 h".
+func conditionsText(r *fit.Result, u TempUnit) string {
+	var parts []string
+	if r.Temperature > 0 {
+		t := Temperature(r.Temperature, u)
+		if r.TemperatureSigma > 0 {
+			t += " ± " + trimmed(r.TemperatureSigma, 2) + " K"
+		}
+		parts = append(parts, t)
+	} else {
+		parts = append(parts, "temperature not given")
+	}
+	if r.Time > 0 {
+		parts = append(parts, Duration(r.Time))
+	} else {
+		parts = append(parts, "time not given")
+	}
+	if r.Thickness > 0 {
+		parts = append(parts, Depth(r.Thickness)+" thick")
+	}
+	return strings.Join(parts, ", ")
+}
+
+// WriteText writes one compact block per profile, then the profiles that
+// gave no fit, then the cautions.
+func (f Fits) WriteText(w io.Writer, o TextOptions) error {
+	bw := bufio.NewWriter(w)
+	for i, r := range f.Results {
+		if i > 0 {
+			bw.WriteString("\n")
+		}
+		writeResultText(bw, r, o)
+	}
+	if len(f.Failed) > 0 {
+		if len(f.Results) > 0 {
+			bw.WriteString("\n")
+		}
+		bw.WriteString("Not fitted:\n")
+		for _, fl := range f.Failed {
+			writeWrapped(bw, "  "+fl.ID+": ", fl.Error, o.width())
+		}
+	}
+	if !o.NoCautions {
+		bw.WriteString("\n")
+		writeCautions(bw, FitCautions, o.width())
+	}
+	return bw.Flush()
+}
+
+// writeCautions writes a numbered list of cautions.
+func writeCautions(w *bufio.Writer, cautions []string, width int) {
+	w.WriteString("Cautions:\n")
+	for i, c := range cautions {
+		writeWrapped(w, "  "+strconv.Itoa(i+1)+". ", c, width)
+	}
+}
+
+// writeResultText writes one profile's block.
+func writeResultText(w *bufio.Writer, r *fit.Result, o TextOptions) {
+	head := r.ID
+	if r.Lot != "" {
+		head += "   lot " + r.Lot
+	}
+	if r.Source != "" && r.Source != r.ID {
+		head += "   " + r.Source
+	}
+	w.WriteString(head + "\n")
+	w.WriteString("  " + conditionsText(r, o.TempUnit) + " · " + ModelDescription(r.Model) +
+		" · " + Level(r.CILevel) + " CI by " + CIMethodDescription(r.CIMethod) + "\n")
+	if !r.Converged {
+		w.WriteString("  the fit did not converge: no numbers are reported\n")
+	}
+	byTarget := map[string][]fit.Warning{}
+	for _, wn := range r.Warnings {
+		t := warningTarget(r, wn)
+		byTarget[t] = append(byTarget[t], wn)
+	}
+	tb := Table{Header: []string{"", "estimate", "SE", Level(r.CILevel) + " CI"}, Indent: "  ", Align: []Align{Left, Left, Right, Left}}
+	for _, e := range r.Params {
+		p := formatParam(e)
+		if e.Name == "D" && r.Time == 0 {
+			p.Name = "Dt" // the time is unknown: the fitted quantity is Dt in m²
+		}
+		tb.Add(p.Name, p.Value, p.SE, p.CI)
+	}
+	lines := strings.Split(strings.TrimRight(tb.String(), "\n"), "\n")
+	// lines[0] header, lines[1] rule, then one per parameter.
+	for i, l := range lines {
+		w.WriteString(l + "\n")
+		if k := i - 2; k >= 0 && k < len(r.Params) {
+			for _, wn := range byTarget[r.Params[k].Name] {
+				writeWrapped(w, "      ! ", wn.Message, o.width())
+			}
+		}
+	}
+	writeParts(w, "  ", statsParts(r), " · ", o.width())
+	for _, wn := range byTarget["stats"] {
+		writeWrapped(w, "      ! ", wn.Message, o.width())
+	}
+	for _, wn := range byTarget[""] {
+		writeWrapped(w, "  ! ", wn.Message, o.width())
+	}
+}
+
+// writeWrapped writes prefix+text wrapped at width, continuation lines
+// indented under the text.
+func writeWrapped(w *bufio.Writer, prefix, text string, width int) {
+	indent := strings.Repeat(" ", utf8.RuneCountInString(prefix))
+	line := prefix
+	n := utf8.RuneCountInString(prefix)
+	first := true
+	for _, word := range strings.Fields(text) {
+		wl := utf8.RuneCountInString(word)
+		if !first && n+1+wl > width {
+			w.WriteString(line + "\n")
+			line, n, first = indent, len(indent), true
+		}
+		if !first {
+			line += " "
+			n++
+		}
+		line += word
+		n += wl
+		first = false
+	}
+	w.WriteString(line + "\n")
+}
+
+// writeParts writes parts joined by sep, breaking lines only between parts.
+func writeParts(w *bufio.Writer, prefix string, parts []string, sep string, width int) {
+	indent := strings.Repeat(" ", utf8.RuneCountInString(prefix))
+	line := prefix
+	n := utf8.RuneCountInString(prefix)
+	for i, p := range parts {
+		pl := utf8.RuneCountInString(p)
+		switch {
+		case i == 0:
+		case n+utf8.RuneCountInString(sep)+pl > width:
+			w.WriteString(strings.TrimRight(line+sep, " ") + "\n")
+			line, n = indent, len(indent)
+		default:
+			line += sep
+			n += utf8.RuneCountInString(sep)
+		}
+		line += p
+		n += pl
+	}
+	w.WriteString(line + "\n")
+}
