@@ -16,19 +16,19 @@ import (
 const gasR = 8.314462618 // J/(mol K), CODATA 2018
 
 type synth struct {
-	id, lot    string
-	tempC      float64 // °C
-	hours      float64
-	d0, q      float64 // invented Arrhenius line for D
-	cs, c0     float64
-	noise      float64
-	xmax       float64 // m
-	n          int
-	unknown    string // value of the "unknown" metadata key, if any
-	hideTemp   bool   // leave the temperature out (unknown part)
-	hideTime   bool
-	sigmaCol   bool
-	dOverride  float64
+	id, lot   string
+	tempC     float64 // °C
+	hours     float64
+	d0, q     float64 // invented Arrhenius line for D
+	cs, c0    float64
+	noise     float64
+	xmax      float64 // m
+	n         int
+	unknown   string // value of the "unknown" metadata key, if any
+	hideTemp  bool   // leave the temperature out (unknown part)
+	hideTime  bool
+	sigmaCol  bool
+	dOverride float64
 }
 
 func (s synth) profile(rng *rand.Rand) profile.Profile {
