@@ -68,6 +68,24 @@ func (c Calibration) D(T float64) float64 {
 // calibration's degrees of freedom.
 func (c Calibration) quantile(level float64) float64 { return quantile(level, c.DOF) }
 
+// quantileWith returns the two-sided quantile for an answer whose variance
+// is vCal from the calibration (with the calibration's dof) plus vObs from
+// the part's profile fit (taken as known: a profile has tens of points).
+// The Student-t dof is Satterthwaite's effective value
+// ν = (vCal + vObs)²/(vCal²/ν_cal) (F. E. Satterthwaite, Biometrics
+// Bulletin 2 (1946) 110; from memory), which is ν_cal when the part adds
+// nothing and tends to the normal quantile when the part dominates.
+func (c Calibration) quantileWith(level, vCal, vObs float64) float64 {
+	if c.DOF <= 0 || !(vCal > 0) {
+		return quantile(level, 0)
+	}
+	nu := float64(c.DOF) * (vCal + vObs) * (vCal + vObs) / (vCal * vCal)
+	if nu > 1e7 {
+		return quantile(level, 0)
+	}
+	return distuv.StudentsT{Mu: 0, Sigma: 1, Nu: nu}.Quantile(0.5 + level/2)
+}
+
 // hasCov reports whether any uncertainty of (ln D0, Q) is known.
 func (c Calibration) hasCov() bool { return c.Cov[0][0] > 0 || c.Cov[1][1] > 0 }
 
