@@ -1,0 +1,581 @@
+package profile
+
+import (
+	"errors"
+	"fmt"
+	"maps"
+	"math"
+	"strings"
+
+	"github.com/xuri/excelize/v2"
+)
+
+// origin says where rows come from, to build errors that point at them.
+type origin struct {
+	file  string // file name as given by the caller
+	sheet string // worksheet name, "" for text files
+}
+
+// source is the Profile.Source of profiles from this origin.
+func (o origin) source() string {
+	if o.sheet != "" {
+		return o.file + ":" + o.sheet
+	}
+	return o.file
+}
+
+// cell returns the worksheet reference of 0-based column col in row line.
+func (o origin) cell(line, col int) string {
+	if o.sheet == "" || line <= 0 || col < 0 {
+		return ""
+	}
+	ref, err := excelize.CoordinatesToCellName(col+1, line)
+	if err != nil {
+		return ""
+	}
+	return ref
+}
+
+// place names a position in a message: "line 4" or "cell B4".
+func (o origin) place(line, col int) string {
+	if c := o.cell(line, col); c != "" {
+		return "cell " + c
+	}
+	if o.sheet != "" {
+		return fmt.Sprintf("row %d", line)
+	}
+	return fmt.Sprintf("line %d", line)
+}
+
+// errAt builds an *Error at line (row) and 0-based column col (-1: none).
+func (o origin) errAt(line, col int, column string, err error, hint string) *Error {
+	return &Error{File: o.file, Sheet: o.sheet, Line: line, Cell: o.cell(line, col),
+		Column: column, Err: err, Hint: hint}
+}
+
+// table turns a header and data rows into profiles. It serves the
+// per-profile layout (no id column: every row belongs to one profile) and
+// the long layout (an id column groups rows into profiles), for text files
+// and worksheets alike.
+type table struct {
+	org        origin
+	cols       []column
+	headerLine int
+	idCol      int
+	depthCol   int
+	valueCol   int // -1 until the first data row decides it
+	sigmaCol   int
+	comma      bool      // a decimal comma is accepted in cells
+	sepComma   bool      // columns are separated by ',' (for hints)
+	valueKey   metaEntry // "value" metadata naming the value column
+	template   Profile   // metadata applied once, copied into every profile
+	profiles   []*building
+	index      map[string]int
+	rows       int
+}
+
+// building is a profile being assembled.
+type building struct {
+	p     Profile
+	fixed []fixedCell // per column: the value of a per-profile column
+}
+
+// fixedCell remembers the first non-blank cell of a per-profile column.
+type fixedCell struct {
+	set  bool
+	text string
+	v    float64
+	line int
+}
+
+// tableOptions describe the input around the header.
+type tableOptions struct {
+	org        origin
+	meta       *metaSet
+	headerLine int
+	defaultID  string
+	comma      bool
+	sepComma   bool
+}
+
+// newTable classifies the header cells and applies the metadata.
+func newTable(header []string, o tableOptions) (*table, error) {
+	t := &table{org: o.org, headerLine: o.headerLine, comma: o.comma, sepComma: o.sepComma,
+		idCol: -1, depthCol: -1, valueCol: -1, sigmaCol: -1, index: map[string]int{}}
+	if err := t.classifyHeader(header); err != nil {
+		return nil, err
+	}
+	if err := t.applyMeta(o.meta, o.defaultID); err != nil {
+		return nil, err
+	}
+	if t.idCol < 0 {
+		t.profiles = []*building{t.newBuilding(t.template.ID)}
+	}
+	return t, nil
+}
+
+// classifyHeader classifies every header cell and checks that the
+// columns make one table: one depth column, no duplicates.
+func (t *table) classifyHeader(header []string) error {
+	seen := map[string]int{}
+	byKind := map[colKind]int{}
+	for i, h := range header {
+		c, err := classify(h)
+		if err != nil {
+			return t.org.errAt(t.headerLine, i, c.name, err, unitHint(c.kind))
+		}
+		if c.kind == colIgnore {
+			t.cols = append(t.cols, c)
+			continue
+		}
+		if j, dup := seen[c.key]; dup {
+			return t.org.errAt(t.headerLine, i, c.name, errorf(ErrColumn,
+				"duplicate column (also column %d)", j+1), "rename or remove one of them")
+		}
+		seen[c.key] = i
+		if j, dup := byKind[c.kind]; dup && c.kind != colUnknown && c.kind != colText {
+			return t.twoColumns(t.cols[j], c, i)
+		}
+		byKind[c.kind] = i
+		t.cols = append(t.cols, c)
+	}
+	t.idCol, t.depthCol, t.sigmaCol = kindIndex(byKind, colID), kindIndex(byKind, colDepth), kindIndex(byKind, colSigma)
+	if t.depthCol < 0 {
+		return t.org.errAt(t.headerLine, -1, "", errorf(ErrColumn, "no depth column in the header %q",
+			strings.Join(trimAll(header), " | ")), t.depthHint())
+	}
+	return nil
+}
+
+func kindIndex(m map[colKind]int, k colKind) int {
+	if i, ok := m[k]; ok {
+		return i
+	}
+	return -1
+}
+
+func trimAll(s []string) []string {
+	out := make([]string, len(s))
+	for i, v := range s {
+		out[i] = strings.TrimSpace(latin1(v))
+	}
+	return out
+}
+
+// twoColumns reports two columns of the same kind.
+func (t *table) twoColumns(a, b column, i int) error {
+	if a.kind == colDepth && !strings.EqualFold(a.unit, b.unit) {
+		return t.org.errAt(t.headerLine, i, b.name, errorf(ErrUnit,
+			"depth columns in two units, %q and %q (mixed units)", a.name, b.name),
+			"keep one depth column, in one unit")
+	}
+	return t.org.errAt(t.headerLine, i, b.name, errorf(ErrColumn,
+		"two %s columns, %q and %q", a.kind.describe(), a.name, b.name), "keep one of them")
+}
+
+// depthHint suggests a depth header, pointing at a column that looks like
+// one, or says what else the table looks like.
+func (t *table) depthHint() string {
+	kinds := map[colKind]bool{}
+	hardness, conc := 0, 0
+	for _, c := range t.cols {
+		kinds[c.kind] = true
+		if c.kind == colUnknown && c.quantity == "hardness" {
+			hardness++
+		} else if c.kind == colUnknown && c.valueUnit != "" {
+			conc++
+		}
+	}
+	switch {
+	case kinds[colTime] && kinds[colTemp]:
+		return "this looks like a temperature history (time and temperature columns), not a depth profile"
+	case hardness == 1 && conc == 1:
+		return "this looks like a hardness–concentration calibration table, not a depth profile"
+	}
+	for _, c := range t.cols {
+		if c.kind != colUnknown {
+			continue
+		}
+		if _, u := splitHeader(c.name); u != "" {
+			if _, err := LengthUnit(u); err == nil {
+				return fmt.Sprintf("rename %q to \"depth_%s\" (the depth column is named depth_<unit> or distance_<unit>)", c.name, u)
+			}
+		}
+	}
+	return "name the depth column depth_<unit>, e.g. depth_mm, depth_um or depth (in)"
+}
+
+// applyMeta interprets the file's metadata into the template profile.
+func (t *table) applyMeta(m *metaSet, defaultID string) error {
+	if m == nil {
+		m = &metaSet{}
+	}
+	t.template.ID = defaultID
+	t.template.Source = t.org.source()
+	if err := m.apply(&t.template, t.org); err != nil {
+		return err
+	}
+	if e, ok := m.get("id"); ok && t.idCol >= 0 {
+		return t.org.errAt(e.line, e.col, "", errorf(ErrMetadata,
+			"metadata id %q in a table with a profile id column %q", e.value, t.cols[t.idCol].name),
+			"remove the id metadata; the column names the profiles")
+	}
+	if e, ok := m.get("value"); ok {
+		t.valueKey = e
+	}
+	return nil
+}
+
+// newBuilding starts a profile from the template.
+func (t *table) newBuilding(id string) *building {
+	b := &building{p: t.template, fixed: make([]fixedCell, len(t.cols))}
+	b.p.ID = id
+	if t.template.Meta != nil {
+		b.p.Meta = maps.Clone(t.template.Meta)
+	}
+	return b
+}
+
+// add reads one data row (cells may be fewer than the header: missing
+// cells are blank). Blank rows are skipped.
+func (t *table) add(cells []string, line int) error {
+	if blankRow(cells) {
+		return nil
+	}
+	if err := t.checkWidth(cells, line); err != nil {
+		return err
+	}
+	if t.valueCol < 0 {
+		if err := t.decideValue(cells, line); err != nil {
+			return err
+		}
+	}
+	b, err := t.profileFor(cells, line)
+	if err != nil {
+		return err
+	}
+	if err := t.addPoint(b, cells, line); err != nil {
+		return err
+	}
+	t.rows++
+	return t.addFixed(b, cells, line)
+}
+
+func blankRow(cells []string) bool {
+	for _, c := range cells {
+		if strings.TrimSpace(c) != "" {
+			return false
+		}
+	}
+	return true
+}
+
+func cellAt(cells []string, i int) string {
+	if i < len(cells) {
+		return strings.TrimSpace(cells[i])
+	}
+	return ""
+}
+
+// checkWidth refuses cells beyond the header and cells under a blank header.
+func (t *table) checkWidth(cells []string, line int) error {
+	for i, c := range cells {
+		if strings.TrimSpace(c) == "" {
+			continue
+		}
+		if i >= len(t.cols) {
+			hint := "remove the extra cells or give them a header"
+			if t.sepComma {
+				hint = "a decimal comma splits numbers in a comma-separated file: separate columns with ';' or tab, or write decimals with a point"
+			}
+			return t.org.errAt(line, i, "", errorf(ErrColumn,
+				"the row has %d cells but the header has %d columns", lastNonBlank(cells)+1, len(t.cols)), hint)
+		}
+		if t.cols[i].kind == colIgnore {
+			return t.org.errAt(line, i, "", errorf(ErrColumn,
+				"cell %q is under a column without a header (column %d)", c, i+1),
+				"give the column a header or remove the cell")
+		}
+	}
+	return nil
+}
+
+func lastNonBlank(cells []string) int {
+	for i := len(cells) - 1; i >= 0; i-- {
+		if strings.TrimSpace(cells[i]) != "" {
+			return i
+		}
+	}
+	return -1
+}
+
+// decideValue picks the measured-value column on the first data row: the
+// one undecided column that holds a number or names a known value unit.
+// The other undecided columns hold text kept in Meta.
+func (t *table) decideValue(cells []string, line int) error {
+	var cand, open []int
+	for i, c := range t.cols {
+		if c.kind != colUnknown {
+			continue
+		}
+		open = append(open, i)
+		if t.valueKey.value != "" {
+			if strings.EqualFold(c.name, t.valueKey.value) {
+				cand = append(cand, i)
+			}
+			continue
+		}
+		if _, err := parseNumber(cellAt(cells, i), t.comma); err == nil || c.valueUnit != "" {
+			cand = append(cand, i)
+		}
+	}
+	if len(cand) == 0 && len(open) == 1 && t.valueKey.value == "" {
+		cand = open
+	}
+	if err := t.valueProblem(cand, open, line); err != nil {
+		return err
+	}
+	t.valueCol = cand[0]
+	for _, i := range open {
+		t.cols[i].kind = colText
+	}
+	t.cols[t.valueCol].kind = colValue
+	return t.checkSigmaUnit()
+}
+
+// valueProblem explains why no single value column was found.
+func (t *table) valueProblem(cand, open []int, line int) error {
+	switch {
+	case len(cand) == 1:
+		return nil
+	case t.valueKey.value != "":
+		return t.org.errAt(t.valueKey.line, t.valueKey.col, "", errorf(ErrMetadata,
+			"the metadata names the value column %q but the header has no such column", t.valueKey.value),
+			"correct the value metadata to one of the column headers")
+	case len(cand) > 1:
+		names := make([]string, len(cand))
+		for k, i := range cand {
+			names[k] = fmt.Sprintf("%q", t.cols[i].name)
+		}
+		return t.org.errAt(t.headerLine, cand[1], t.cols[cand[1]].name, errorf(ErrColumn,
+			"%s could each be the measured value", strings.Join(names, " and ")),
+			"keep one value column per file: rename or remove the others, or name it with a \"value: <column>\" metadata line")
+	case len(open) == 0:
+		return t.org.errAt(t.headerLine, -1, "", errorf(ErrColumn, "no column for the measured value"),
+			"add a value column such as C_wt% or HV0.5 next to the depth column")
+	}
+	return t.org.errAt(line, -1, "", errorf(ErrColumn,
+		"no column on this row holds a number besides depth"), "the measured value must be a number; check the row")
+}
+
+// checkSigmaUnit refuses a sigma column in another unit than the value.
+func (t *table) checkSigmaUnit() error {
+	if t.sigmaCol < 0 {
+		return nil
+	}
+	s, v := t.cols[t.sigmaCol], t.cols[t.valueCol]
+	if s.unit != "" && (s.valueUnit == "" || v.valueUnit == "" || s.valueUnit != v.valueUnit) {
+		return t.org.errAt(t.headerLine, t.sigmaCol, s.name, errorf(ErrUnit,
+			"sigma unit %q does not match the value column %q", s.unit, v.name),
+			"give sigma in the unit of the value (or name the column just \"sigma\")")
+	}
+	return nil
+}
+
+// profileFor finds or starts the profile a row belongs to.
+func (t *table) profileFor(cells []string, line int) (*building, error) {
+	if t.idCol < 0 {
+		return t.profiles[0], nil
+	}
+	id := cellAt(cells, t.idCol)
+	if id == "" {
+		return nil, t.org.errAt(line, t.idCol, t.cols[t.idCol].name,
+			errorf(ErrValue, "the profile id is blank"), "fill the id cell or remove the row")
+	}
+	if k, ok := t.index[id]; ok {
+		return t.profiles[k], nil
+	}
+	t.index[id] = len(t.profiles)
+	b := t.newBuilding(id)
+	t.profiles = append(t.profiles, b)
+	return b, nil
+}
+
+// number parses cell i of a row as a finite number.
+func (t *table) number(cells []string, i, line int) (float64, error) {
+	return t.numberAt(cellAt(cells, i), i, line)
+}
+
+// numberAt parses s, the cell in column i of row line, as a finite number.
+func (t *table) numberAt(s string, i, line int) (float64, error) {
+	v, err := parseNumber(s, t.comma)
+	if err != nil {
+		hint := "fix the cell or remove the row"
+		if s == "" {
+			hint = "fill the cell or remove the row"
+		} else if !t.comma && strings.Contains(s, ",") {
+			hint = "write decimals with a point, or separate columns with ';' or tab to use a decimal comma"
+		}
+		return 0, t.org.errAt(line, i, t.cols[i].name, err, hint)
+	}
+	return v, nil
+}
+
+// addPoint appends depth, value and sigma of one row.
+func (t *table) addPoint(b *building, cells []string, line int) error {
+	d, err := t.number(cells, t.depthCol, line)
+	if err != nil {
+		return err
+	}
+	if d < 0 {
+		return t.org.errAt(line, t.depthCol, t.cols[t.depthCol].name,
+			errorf(ErrValue, "depth %s is negative", fmtNum(d)),
+			"depth is measured from the surface and cannot be negative; check the sign")
+	}
+	v, err := t.number(cells, t.valueCol, line)
+	if err != nil {
+		return err
+	}
+	p := &b.p
+	if t.sigmaCol >= 0 {
+		s, err := t.number(cells, t.sigmaCol, line)
+		if err != nil {
+			return err
+		}
+		if !(s > 0) {
+			return t.org.errAt(line, t.sigmaCol, t.cols[t.sigmaCol].name,
+				errorf(ErrValue, "sigma %s is not positive", fmtNum(s)),
+				"sigma is a standard uncertainty and must be > 0; fix the cell or remove the sigma column")
+		}
+		p.Sigma = append(p.Sigma, s)
+	}
+	p.Depth = append(p.Depth, t.cols[t.depthCol].size.si(d))
+	p.Value = append(p.Value, v)
+	p.Line = append(p.Line, line)
+	return nil
+}
+
+// addFixed reads the per-profile columns (temperature, time, lot…) of a
+// row; each must keep one value within a profile. Blank cells are skipped.
+func (t *table) addFixed(b *building, cells []string, line int) error {
+	for i := range t.cols {
+		c := &t.cols[i]
+		if !c.kind.perProfile() {
+			continue
+		}
+		s := cellAt(cells, i)
+		f := &b.fixed[i]
+		if s == "" || (f.set && s == f.text) {
+			continue
+		}
+		if err := t.setFixed(b, i, s, line); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// setFixed interprets a per-profile cell, or checks it against the first one.
+func (t *table) setFixed(b *building, i int, s string, line int) error {
+	c, f := &t.cols[i], &b.fixed[i]
+	v := 0.0
+	if c.kind.numeric() {
+		var err error
+		if v, err = t.numberAt(s, i, line); err != nil {
+			return err
+		}
+	}
+	if f.set {
+		if c.kind.numeric() && v == f.v {
+			return nil
+		}
+		return t.org.errAt(line, i, c.name, errorf(ErrValue,
+			"profile %q has %s %q here but %q at %s", b.p.ID, c.kind.describe(), s, f.text, t.org.place(f.line, i)),
+			fmt.Sprintf("one profile has one %s: correct the cell, or give the other rows their own profile id", c.kind.describe()))
+	}
+	*f = fixedCell{set: true, text: s, v: v, line: line}
+	if b.p.Meta == nil {
+		b.p.Meta = map[string]string{}
+	}
+	b.p.Meta[c.key] = s
+	if err := setColumnField(&b.p, t.template, *c, s, v); err != nil {
+		hint := "fix the cell"
+		if errors.Is(err, ErrMetadata) {
+			hint = "fix the cell, or remove the metadata line that disagrees"
+		}
+		return t.org.errAt(line, i, c.name, err, hint)
+	}
+	return nil
+}
+
+// setColumnField stores a per-profile column value in its field, checking
+// its domain and that it agrees with file metadata given for the same field.
+func setColumnField(p *Profile, meta Profile, c column, s string, v float64) error {
+	switch c.kind {
+	case colTemp:
+		return setNumber(&p.Temperature, meta.Temperature, c.scale.ToKelvin(v), "temperature", s, false)
+	case colTempSigma:
+		return setNumber(&p.TemperatureSigma, meta.TemperatureSigma, c.scale.DeltaToKelvin(v), "temperature sigma", s, true)
+	case colTime:
+		return setNumber(&p.Time, meta.Time, c.size.si(v), "time", s, false)
+	case colThickness:
+		return setNumber(&p.Thickness, meta.Thickness, c.size.si(v), "thickness", s, false)
+	case colLot:
+		return setText(&p.Lot, meta.Lot, s, "lot")
+	case colMaterial:
+		return setText(&p.Material, meta.Material, s, "material")
+	case colQuantity:
+		return setText(&p.Quantity, meta.Quantity, s, "quantity")
+	}
+	return nil
+}
+
+// setNumber sets *dst = v after checking v > 0 (v ≥ 0 when zeroOK) and
+// agreement with a metadata value (0: none) to 1e-9 relative.
+func setNumber(dst *float64, meta, v float64, what, s string, zeroOK bool) error {
+	if !(v > 0 || (zeroOK && v == 0)) || math.IsInf(v, 0) {
+		if what == "temperature" {
+			return errorf(ErrValue, "temperature %s is %s K, not above absolute zero", s, fmtNum(v))
+		}
+		return errorf(ErrValue, "%s %s is not positive", what, s)
+	}
+	if meta != 0 && math.Abs(v-meta) > 1e-9*math.Abs(meta) {
+		return errorf(ErrMetadata, "%s %s disagrees with the file's metadata (%s in SI)", what, s, fmtNum(meta))
+	}
+	*dst = v
+	return nil
+}
+
+func setText(dst *string, meta, s, what string) error {
+	if meta != "" && meta != s {
+		return errorf(ErrMetadata, "%s %q disagrees with the file's metadata %q", what, s, meta)
+	}
+	*dst = s
+	return nil
+}
+
+// finish returns the profiles in order of first appearance, each validated.
+func (t *table) finish() ([]Profile, error) {
+	if t.rows == 0 {
+		what := "file"
+		if t.org.sheet != "" {
+			what = "sheet"
+		}
+		return nil, t.org.errAt(t.headerLine, -1, "", errorf(ErrNoData,
+			"the %s has a header but no data rows", what), "add data rows below the header, or leave the "+what+" out")
+	}
+	v := t.cols[t.valueCol]
+	out := make([]Profile, 0, len(t.profiles))
+	for _, b := range t.profiles {
+		p := b.p
+		p.ValueName, p.ValueUnit = v.name, v.valueUnit
+		if p.Quantity == "" {
+			p.Quantity = v.quantity
+		}
+		if err := p.Validate(); err != nil {
+			return nil, err
+		}
+		out = append(out, p)
+	}
+	return out, nil
+}
