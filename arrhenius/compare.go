@@ -155,9 +155,9 @@ func wlsFit(X []float64, rows, cols int, y, w []float64) (*design, bool) {
 //
 // The ratio of D of each group to the reference group at TRef comes from
 // the separate lines (else from the common-Q model), with a Wald interval
-// on its log using Student-t quantiles on the full model's residual
-// degrees of freedom and the covariance scaled by that model's squared
-// Birge ratio when above 1 (as TwoStage).
+// on its log; as in TwoStage, the covariance is scaled by the full model's
+// squared Birge ratio when above 1, with Student-t quantiles on its
+// residual degrees of freedom, else normal quantiles.
 func Compare(pts []Point, o *CompareOptions) (*Comparison, error) {
 	var co CompareOptions
 	if o != nil {
@@ -306,7 +306,10 @@ func Compare(pts []Point, o *CompareOptions) (*Comparison, error) {
 	if b2 := full.rss / float64(dfFull); !opt.NoBirge && b2 > 1 {
 		c.Scale = b2
 	}
-	k := quantile(opt.Level, dfFull)
+	k := quantile(opt.Level, 0)
+	if c.Scale > 1 {
+		k = quantile(opt.Level, dfFull)
+	}
 	tdist := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(dfFull)}
 	model := "separate lines"
 	if m2 == nil {

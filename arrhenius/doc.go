@@ -11,9 +11,11 @@
 //
 //   - TwoStage: weighted least squares of ln Dᵢ on 1/(RTᵢ) with weights
 //     1/Var(ln Dᵢ) (effective variance when temperatures are uncertain);
-//     Wald intervals with Student-t quantiles on n − 2 degrees of freedom,
-//     covariance scaled by the squared Birge ratio when the scatter exceeds
-//     the stated errors. D0's interval is exp of the ln D0 interval.
+//     Wald intervals. When the scatter exceeds the stated errors (Birge
+//     ratio B > 1) the covariance is scaled by B² and the quantiles are
+//     Student-t on n − 2 degrees of freedom; otherwise the stated errors are
+//     taken as known and the quantiles are normal. D0's interval is exp of
+//     the ln D0 interval.
 //   - Global: one-stage nonlinear least squares over all profiles at once
 //     (fit.Solve on a stacked problem); same interval rules, with the
 //     Birge ratio taken from the extra sum of squares of the global fit

@@ -20,7 +20,7 @@ import (
 //	 "D0":{"value":2.3e-5,"unit":"m2/s","ci":[lo,hi],"ln_value":-10.68,"stderr_ln":0.9},
 //	 "Q":{"value":148000,"unit":"J/mol","ci":[lo,hi],"stderr":9000},
 //	 "corr_lnD0_Q":0.999,"cov_lnD0_Q":[[v00,v01],[v01,v11]],"dof":13,
-//	 "ci_level":0.95,"ci_method":"wald-t","chi2":…,"chi2_p":…,
+//	 "ci_level":0.95,"ci_method":"wald-t","chi2":…,"chi2_p":…,  ("wald-normal" when not scaled)
 //	 "birge_ratio":1.2,"birge_scaled":true,"n_temperatures":5,
 //	 "temperature_range_K":[1123.15,1323.15],
 //	 "points":[{"id":"A3","temperature_K":1198.15,"D":2.9e-11,"ci":[lo,hi],
@@ -108,10 +108,13 @@ func (l Line) MarshalJSON() ([]byte, error) {
 		Group: l.Group, Method: l.Method,
 		D0:  estimateJSON{Value: l.D0(), Unit: "m2/s", CI: l.D0CI(), LnValue: &lnD0, StdErrLn: num(l.StdErrLnD0())},
 		Q:   estimateJSON{Value: l.Q, Unit: "J/mol", CI: l.QCI(), StdErr: num(l.StdErrQ())},
-		Cov: l.Cov, DOF: l.DOF, CILevel: l.Level, CIMethod: "wald-t",
+		Cov: l.Cov, DOF: l.DOF, CILevel: l.Level, CIMethod: "wald-normal",
 		Corr: num(l.Corr()), ChiSq: num(l.ChiSq), ChiSqP: num(l.ChiSqP), Birge: num(l.BirgeRatio),
 		Scaled: l.Scaled, NTemperatures: l.NTemperatures, Iterations: l.Iterations,
 		Warnings: l.Warnings, Points: make([]pointJSON, len(l.Points)),
+	}
+	if l.Scaled {
+		j.CIMethod = "wald-t"
 	}
 	j.TRange[0], j.TRange[1] = l.TRange()
 	if j.Warnings == nil {

@@ -19,8 +19,8 @@ type Line struct {
 	// Cov is the covariance of (ln D0, Q) used for the intervals: from the
 	// stated errors, times B² when Scaled.
 	Cov [2][2]float64
-	// DOF is the degrees of freedom of the t quantile: points − 2
-	// (two-stage) or profiles − 2 (global).
+	// DOF is the residual degrees of freedom: points − 2 (two-stage) or
+	// profiles − 2 (global); the t quantile uses it when Scaled.
 	DOF   int
 	Level float64
 	// ChiSq is the weighted residual sum of squares about the line (for the
@@ -85,9 +85,19 @@ func (l *Line) Corr() float64 {
 	return l.Cov[0][1] / math.Sqrt(l.Cov[0][0]*l.Cov[1][1])
 }
 
-func (l *Line) k() float64 { return quantile(l.Level, l.DOF) }
+// k returns the interval quantile: Student-t on DOF degrees of freedom when
+// the covariance was scaled by the Birge ratio (the variance is then
+// estimated from the scatter), the normal quantile when the stated errors
+// were kept (the covariance is then taken as known).
+func (l *Line) k() float64 {
+	if l.Scaled {
+		return quantile(l.Level, l.DOF)
+	}
+	return quantile(l.Level, 0)
+}
 
-// QCI returns the Wald interval Q ± t·se(Q) (J/mol); open (NaN) without CI.
+// QCI returns the Wald interval Q ± k·se(Q) (J/mol), k from Line.k; open
+// (NaN) without CI.
 func (l *Line) QCI() fit.Interval {
 	if !l.HasCI {
 		return fit.Interval{Lo: nan, Hi: nan}
@@ -96,7 +106,7 @@ func (l *Line) QCI() fit.Interval {
 	return fit.Interval{Lo: l.Q - h, Hi: l.Q + h}
 }
 
-// D0CI returns exp(ln D0 ± t·se(ln D0)) (m²/s); open (NaN) without CI.
+// D0CI returns exp(ln D0 ± k·se(ln D0)) (m²/s); open (NaN) without CI.
 func (l *Line) D0CI() fit.Interval {
 	if !l.HasCI {
 		return fit.Interval{Lo: nan, Hi: nan}
@@ -112,7 +122,7 @@ func (l *Line) LnDAt(T float64) (lnD, se float64) {
 }
 
 // DAt returns D (m²/s) on the line at T (K) with the confidence band of
-// the mean line, exp(ln D ± t·se); the band is open without CI.
+// the mean line, exp(ln D ± k·se); the band is open without CI.
 func (l *Line) DAt(T float64) (D float64, ci fit.Interval) {
 	lnD, se := l.LnDAt(T)
 	if !l.HasCI {
@@ -136,7 +146,10 @@ func (l *Line) TRange() (lo, hi float64) {
 
 // Calibration returns the line in the form back-calculation and prediction use.
 func (l *Line) Calibration() Calibration {
-	c := Calibration{LnD0: l.LnD0, Q: l.Q, Cov: l.Cov, DOF: l.DOF, NoInterval: !l.HasCI, Method: l.Method}
+	c := Calibration{LnD0: l.LnD0, Q: l.Q, Cov: l.Cov, NoInterval: !l.HasCI, Method: l.Method}
+	if l.Scaled {
+		c.DOF = l.DOF
+	}
 	c.Source = fmt.Sprintf("%s Arrhenius fit of %d points at %d temperatures", l.Method, len(l.Points), l.NTemperatures)
 	if l.Group != "" {
 		c.Source += fmt.Sprintf(" (%s %s)", l.By, l.Group)

@@ -203,11 +203,14 @@ func fitEffectiveVariance(x, y, v, T, sT []float64, maxIter int, tol float64) wl
 // Var(ln Dᵢ) + (Q/(RTᵢ²))²σ_Tᵢ², iterated to convergence; the result then
 // splits Q's interval into its temperature and profile parts.
 //
-// Intervals are Wald intervals with Student-t quantiles on n − 2 degrees of
-// freedom. The Birge ratio B = √(χ²/(n − 2)) says whether the points scatter
-// more than their stated errors; when B > 1 the covariance is multiplied by
-// B² (R. T. Birge, Phys. Rev. 40 (1932) 207; the same rule as the Particle
-// Data Group's scale factor; from memory).
+// Intervals are Wald intervals. The Birge ratio B = √(χ²/(n − 2)) says
+// whether the points scatter more than their stated errors; when B > 1 the
+// covariance is multiplied by B² (R. T. Birge, Phys. Rev. 40 (1932) 207;
+// the same rule as the Particle Data Group's scale factor; from memory) and
+// the variance, now estimated from the scatter, takes Student-t quantiles
+// on n − 2 degrees of freedom. When B ≤ 1 the stated errors are kept and
+// taken as known: normal quantiles. (Always using t with B ≤ 1 too gave 98 %
+// coverage for a nominal 95 % in the simulations of the tests.)
 //
 // Errors: fewer than 2 points or 2 distinct temperatures, a point without
 // Var(ln D) (unless Unweighted), temperatures that look like °C read as K,
@@ -373,9 +376,14 @@ func newBudget(l *Line, vT, v0, scale, scale0 float64, iter int, conv bool) *Tem
 	}
 	b.ShareProfiles, b.ShareTemperature = share, 1-share
 	if l.HasCI {
-		k := quantile(l.Level, l.DOF)
-		b.HalfWidthQ = k * math.Sqrt(vT*scale)
-		b.HalfWidthQProfiles = k * math.Sqrt(v0*scale0)
+		k := func(scale float64) float64 {
+			if scale > 1 {
+				return quantile(l.Level, l.DOF)
+			}
+			return quantile(l.Level, 0)
+		}
+		b.HalfWidthQ = k(scale) * math.Sqrt(vT*scale)
+		b.HalfWidthQProfiles = k(scale0) * math.Sqrt(v0*scale0)
 	}
 	return b
 }
