@@ -198,9 +198,10 @@ func (Slab) Diagnose(r *Result) {
 	case tau > 0.5:
 		// Centre deficit (4/π)·exp(−π²τ) < 1 % of the step at τ = 0.5 (Crank eq. 4.17, first term).
 		r.Warn("slab-saturated", "The specimen is practically saturated (Dt/L² = %.2g > 0.5; the centre is within %.2g %% of Cs): D rests on a small remaining difference and is poorly determined. A shorter time or a thicker specimen would measure it better.", tau, 100*4/math.Pi*math.Exp(-math.Pi*math.Pi*tau))
-	case tau > 0.1 && c0 != nil && !c0.Fixed:
-		// The second mode is (1/3)e^{−8π²τ} ≈ 1e-4 of the first at τ = 0.1.
-		r.Warn("slab-single-mode", "Late in the uptake (Dt/L² = %.2g > 0.1) the profile is a single sine arch, which fixes (Cs − C0)·exp(−π²Dt/L²) but not D and C0 apart. Fix C0 at the known initial level with --fix C0=… for a trustworthy D.", tau)
+	case tau > 0.06 && c0 != nil && !c0.Fixed:
+		// The second mode, (1/3)e^{−8π²τ} of the first, is below 1 % of it
+		// from τ ≈ 0.06: only the first mode is left to see.
+		r.Warn("slab-single-mode", "Late in the uptake (Dt/L² = %.2g > 0.06) the profile is a single sine arch, which fixes (Cs − C0)·exp(−π²Dt/L²) but not D and C0 apart. Fix C0 at the known initial level with --fix C0=… for a trustworthy D.", tau)
 	case tau < 0.005:
 		r.Warn("slab-thick", "The diffusion length is small against the thickness (Dt/L² = %.2g): the far face plays no part and the semi-infinite erf model gives the same D with fewer assumptions.", tau)
 	}
