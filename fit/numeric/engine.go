@@ -51,6 +51,7 @@ type engine struct {
 	cpv, den               []float64
 	s, tmp                 []float64 // sensitivities (np×n) and scratch
 	specBuf                []sensSpec
+	fixL                   float64 // when > 0, the truncation depth (tests only)
 
 	// Configuration of the current run.
 	law                 Diffusivity
@@ -243,7 +244,11 @@ func (e *engine) setup(p *Problem, sens []sensSpec) error {
 	}
 	L := phys
 	e.truncated = false
-	if reach := e.opt.depth * math.Sqrt(dmax*e.tauEnd); p.Initial == nil && (phys == 0 || reach < phys) {
+	reach := e.opt.depth * math.Sqrt(dmax*e.tauEnd)
+	if e.fixL > 0 {
+		reach = e.fixL // frozen grid (tests of the sensitivities)
+	}
+	if p.Initial == nil && (phys == 0 || reach < phys) {
 		L, e.truncated = reach, true
 	}
 	if !(L > 0) || math.IsInf(L, 0) {

@@ -54,6 +54,7 @@ type Model struct {
 	iD, iK, iCs, iBeta, iCp, iC0 int // indices in the parameter vector; −1 if absent
 	tabC1, tabD1                 float64
 	pool                         sync.Pool
+	fixLength                    float64 // tests: freeze the truncation depth
 }
 
 // NewModel checks the configuration and returns the model.
@@ -279,6 +280,7 @@ func (m *Model) Eval(p []float64, d *fit.Data, f, jac []float64) {
 		fail()
 		return
 	}
+	e.fixL = m.fixLength
 	if err := e.setup(&pr, sp); err != nil {
 		fail()
 		return
