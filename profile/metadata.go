@@ -54,7 +54,7 @@ func splitKeyValue(s string) (key, value string, ok bool) {
 		return "", "", false
 	}
 	key, value = strings.TrimSpace(s[:i]), strings.TrimSpace(s[i+1:])
-	if !isKey(key) {
+	if !isKey(key) || strings.HasPrefix(value, "//") { // "see http://…" is prose
 		return "", "", false
 	}
 	return key, value, true
