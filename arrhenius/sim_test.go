@@ -64,3 +64,5 @@ func simCampaign(rng *rand.Rand, reps, npts int) []profile.Profile {
 	}
 	return ps
 }
+
+func newRand(a, b uint64) *rand.Rand { return rand.New(rand.NewPCG(a, b)) }
