@@ -50,7 +50,7 @@ func (r *Result) profileCutoff() (q, s float64) {
 	if r.Covariance == "absolute" {
 		return distuv.UnitNormal.Quantile(0.5 + r.CILevel/2), 1
 	}
-	q = distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(r.Stats.DOF)}.Quantile(0.5 + r.CILevel/2)
+	q = tQuantile(r.Stats.DOF, r.CILevel)
 	return q, math.Sqrt(r.Stats.Chi2Red)
 }
 
@@ -71,10 +71,18 @@ type profiler struct {
 	r     *Result
 	j     int
 	pr    Problem
-	warm  []float64 // last constrained solution, used as the next start
-	best  float64   // S(θ̂)
+	best  float64 // S(θ̂)
 	set   *Settings
 	start []float64
+	// done holds the constrained solutions found so far; each new one starts
+	// from the solution at the nearest θ already evaluated, which keeps the
+	// re-optimisation on the profile trace.
+	done []tracePoint
+}
+
+type tracePoint struct {
+	theta float64
+	p     []float64
 }
 
 func newProfiler(r *Result, j int, set *Settings) *profiler {
@@ -84,23 +92,55 @@ func newProfiler(r *Result, j int, set *Settings) *profiler {
 	return &profiler{
 		r: r, j: j, set: set, best: r.Stats.RSS,
 		pr:    Problem{Y: d.Y, W: d.W, Free: free, Func: func(p, f, jac []float64) { m.Eval(p, d, f, jac) }},
-		warm:  append([]float64(nil), r.pint...),
 		start: make([]float64, len(r.pint)),
+		done:  []tracePoint{{r.pint[j], append([]float64(nil), r.pint...)}},
 	}
+}
+
+// nearest returns the stored solution whose θ is closest to theta.
+func (pf *profiler) nearest(theta float64) []float64 {
+	best := pf.done[0]
+	for _, tp := range pf.done[1:] {
+		if math.Abs(tp.theta-theta) < math.Abs(best.theta-theta) {
+			best = tp
+		}
+	}
+	return best.p
+}
+
+// constrained returns the least RSS with parameter j held at theta, from
+// the nearest point of the trace and, if that start does not converge, from
+// the unconstrained estimate as well (the profile RSS is a minimum, so the
+// lower of the two is the better answer).
+func (pf *profiler) constrained(theta float64) (*Solution, bool) {
+	var best *Solution
+	for k, from := range [][]float64{pf.nearest(theta), pf.r.pint} {
+		if k == 1 && best != nil && best.Converged {
+			break
+		}
+		copy(pf.start, from)
+		pf.start[pf.j] = theta
+		sol, err := Solve(pf.pr, pf.start, pf.set)
+		if err != nil || !finite(sol.RSS) {
+			continue
+		}
+		if best == nil || sol.RSS < best.RSS {
+			best = sol
+		}
+	}
+	return best, best != nil
 }
 
 // tau evaluates the signed root statistic at θ; ok is false when the
 // constrained fit breaks down.
 func (pf *profiler) tau(theta, s float64) (float64, bool) {
-	copy(pf.start, pf.warm)
-	pf.start[pf.j] = theta
-	sol, err := Solve(pf.pr, pf.start, pf.set)
-	if err != nil || !finite(sol.RSS) {
+	sol, ok := pf.constrained(theta)
+	if !ok {
 		return 0, false
 	}
 	// A constrained fit that wanders to an asymptote still gives a valid
 	// upper bound on the profile RSS; accept it unless it is not finite.
-	copy(pf.warm, sol.P)
+	pf.done = append(pf.done, tracePoint{theta, append([]float64(nil), sol.P...)})
 	ds := sol.RSS - pf.best
 	if ds < 0 {
 		ds = 0
@@ -117,7 +157,6 @@ func (pf *profiler) tau(theta, s float64) (float64, bool) {
 // open side.
 func (pf *profiler) bound(dir, se, q, s float64) float64 {
 	theta0 := pf.r.pint[pf.j]
-	copy(pf.warm, pf.r.pint)
 	target := dir * q
 	aTh, aF := theta0, -target // τ(θ̂) = 0
 	step := se
