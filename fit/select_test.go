@@ -149,3 +149,17 @@ func TestSelectBadInput(t *testing.T) {
 		t.Errorf("slab alone without thickness: %v", err)
 	}
 }
+
+// BenchmarkSelectModel times --model auto on a 50-point surface profile
+// (erf, masstransfer, thinfilm tried; the winner refitted with Wald
+// intervals).
+func BenchmarkSelectModel(b *testing.B) {
+	p := benchProfile()
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := SelectModel(p, Options{CI: "wald"}, SelectOptions{}); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Microseconds())/float64(b.N), "µs/selection")
+}
