@@ -349,12 +349,15 @@ func (u TempUnit) FromKelvin(k float64) float64 {
 	return k - 273.15
 }
 
-// scale is the size of one unit step in kelvin (1 for °C and K, 5/9 for °F).
-func (u TempUnit) scale() float64 {
-	if u == Fahrenheit {
-		return 1 / 1.8
+// ToKelvin converts a temperature in the unit to K.
+func (u TempUnit) ToKelvin(t float64) float64 {
+	switch u {
+	case Kelvin:
+		return t
+	case Fahrenheit:
+		return (t-32)/1.8 + 273.15
 	}
-	return 1
+	return t + 273.15
 }
 
 // trimmed writes v with at most dec decimals and no trailing zeros.

@@ -1,0 +1,697 @@
+package report
+
+import (
+	"bytes"
+	"fmt"
+	"image/color"
+	"io"
+	"math"
+	"regexp"
+	"strings"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/font"
+	"gonum.org/v1/plot/text"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgimg"
+	"gonum.org/v1/plot/vg/vgsvg"
+)
+
+// The house style of fickfit's figures: white ground, ink-coloured axes on
+// the left and bottom only, faint horizontal rules, one sans-serif face in
+// three sizes, and a small palette of muted pigments — slate teal for
+// measurements, copper for fitted curves, their pale tints for confidence
+// bands. Colours are opaque (bands are pre-blended tints) so that figures
+// print the same on every device.
+
+func hex(v uint32) color.NRGBA {
+	return color.NRGBA{R: uint8(v >> 16), G: uint8(v >> 8), B: uint8(v), A: 255}
+}
+
+// tint blends c with white: f = 0 gives white, 1 gives c.
+func tint(c color.Color, f float64) color.NRGBA {
+	r, g, b, _ := c.RGBA()
+	mix := func(v uint32) uint8 { return uint8(math.Round(255 - f*(255-float64(v>>8)))) }
+	return color.NRGBA{R: mix(r), G: mix(g), B: mix(b), A: 255}
+}
+
+var (
+	colInk   = hex(0x1d2a33) // text and axes
+	colMuted = hex(0x5c6a74) // secondary text
+	colRule  = hex(0xe2e6e9) // grid rules
+	colData  = hex(0x22606c) // measured points
+	colFit   = hex(0xa4452c) // fitted curves
+	colBand  = tint(colFit, 0.2)
+	colRef   = hex(0x7d8a94) // reference-table lines
+	// seriesColors tell groups (lots) apart, in order.
+	seriesColors = []color.NRGBA{hex(0x22606c), hex(0xa4452c), hex(0x5b4b8a), hex(0x8c7318), hex(0x3f4f5c), hex(0x9c5673)}
+)
+
+func seriesColor(i int) color.NRGBA { return seriesColors[i%len(seriesColors)] }
+
+// seriesGlyph gives each group its own marker shape as well as colour, so
+// that groups stay apart in grey print.
+func seriesGlyph(i int) draw.GlyphDrawer {
+	switch i % 4 {
+	case 1:
+		return draw.BoxGlyph{}
+	case 2:
+		return draw.PyramidGlyph{}
+	case 3:
+		return diamondGlyph{}
+	}
+	return draw.CircleGlyph{}
+}
+
+// Font sizes (points).
+const (
+	sizeTick  = 8
+	sizeLabel = 9
+	sizeTitle = 10.5
+)
+
+// weightBold is golang.org/x/image/font.WeightBold (font.Font.Weight's
+// type), written as its value so as not to import that module directly.
+const weightBold = 3
+
+func textStyle(size vg.Length, col color.Color, bold bool) text.Style {
+	f := font.Font{Typeface: "Liberation", Variant: "Sans", Size: size}
+	if bold {
+		f.Weight = weightBold
+	}
+	return text.Style{Color: col, Font: f, Handler: figText, XAlign: draw.XLeft, YAlign: draw.YBottom}
+}
+
+// newPlot returns a plot in the house style.
+func newPlot() *plot.Plot {
+	p := plot.New()
+	p.BackgroundColor = color.White
+	for _, a := range []*plot.Axis{&p.X, &p.Y} {
+		a.LineStyle = draw.LineStyle{Color: colInk, Width: 0.6}
+		a.Tick.LineStyle = draw.LineStyle{Color: colInk, Width: 0.6}
+		a.Tick.Length = 3.5
+		a.Padding = 0
+		a.Label.TextStyle = textStyle(sizeLabel, colInk, false)
+		a.Label.Padding = 3
+		ts := textStyle(sizeTick, colInk, false)
+		a.Tick.Label = ts
+		a.Tick.Marker = linearTicks{}
+	}
+	p.X.Tick.Label.XAlign, p.X.Tick.Label.YAlign = draw.XCenter, draw.YTop
+	p.Y.Tick.Label.XAlign, p.Y.Tick.Label.YAlign = draw.XRight, draw.YCenter
+	p.X.Label.TextStyle.XAlign, p.X.Label.TextStyle.YAlign = draw.XCenter, draw.YBottom
+	p.Y.Label.TextStyle.XAlign, p.Y.Label.TextStyle.YAlign = draw.XCenter, draw.YBottom
+	p.TextHandler = figText
+	p.Title.TextStyle.Handler = figText
+	return p
+}
+
+// linearTicks place five to seven labelled ticks at steps of 1, 2, 2.5 or 5
+// times a power of ten, with unlabelled minor ticks between, written the
+// house way (true minus sign, decimals set by the step). hide keeps the
+// marks but leaves the labels out (a panel sharing the x axis of the one
+// below).
+type linearTicks struct{ hide bool }
+
+func (t linearTicks) Ticks(min, max float64) []plot.Tick {
+	if !(max > min) || !finite(min) || !finite(max) {
+		return nil
+	}
+	step, minor := niceStep((max - min) / 6)
+	last := stepDecimals(step)
+	var ts []plot.Tick
+	start := math.Ceil(min/minor-1e-9) * minor
+	for i := 0; ; i++ {
+		v := start + float64(i)*minor
+		if v > max+1e-9*(max-min) {
+			break
+		}
+		if i > 1000 {
+			break
+		}
+		k := v / step
+		if math.Abs(k-math.Round(k)) < 1e-6 {
+			v = math.Round(k) * step
+			label := Number(v, last)
+			if v == 0 {
+				label = Number(0, last)
+			}
+			if useSci(v) {
+				label = Sig(v, 3)
+			}
+			if t.hide {
+				label = " " // keeps the tick mark, draws nothing
+			}
+			ts = append(ts, plot.Tick{Value: v, Label: label})
+			continue
+		}
+		ts = append(ts, plot.Tick{Value: v})
+	}
+	return ts
+}
+
+// niceStep rounds raw up to 1, 2, 2.5 or 5 times a power of ten and gives
+// the minor step that divides it.
+func niceStep(raw float64) (step, minor float64) {
+	mag := math.Pow(10, math.Floor(math.Log10(raw)))
+	for _, m := range []struct{ major, minor float64 }{{1, 0.2}, {2, 0.5}, {2.5, 0.5}, {5, 1}, {10, 2}} {
+		if m.major*mag >= raw*(1-1e-9) {
+			return m.major * mag, m.minor * mag
+		}
+	}
+	return 10 * mag, 2 * mag
+}
+
+// stepDecimals returns the decimal place (power of ten) that writes every
+// multiple of step exactly: 0.25 → −2, 5 → 0, 200 → 0.
+func stepDecimals(step float64) int {
+	step = math.Abs(step)
+	for k := 0; k <= 12; k++ {
+		v := step * math.Pow(10, float64(k))
+		if math.Abs(v-math.Round(v)) < 1e-6*v {
+			return -k
+		}
+	}
+	return -12
+}
+
+// logTicks label decades "10⁻¹¹" with unlabelled minor ticks at 2…9; when
+// fewer than two decades fall inside the range, 2× and 5× are labelled too.
+type logTicks struct{}
+
+func (logTicks) Ticks(min, max float64) []plot.Tick {
+	if !(min > 0 && max > min) {
+		return nil
+	}
+	lo, hi := int(math.Floor(math.Log10(min))), int(math.Ceil(math.Log10(max)))
+	inside := 0
+	for e := lo; e <= hi; e++ {
+		if v := math.Pow(10, float64(e)); v >= min && v <= max {
+			inside++
+		}
+	}
+	// Less than about half a decade: every integer multiple is labelled.
+	narrow := math.Log10(max/min) < 0.45
+	var ts []plot.Tick
+	for e := lo; e <= hi; e++ {
+		base := math.Pow(10, float64(e))
+		for k := 1; k <= 9; k++ {
+			v := base * float64(k)
+			if v < min*(1-1e-9) || v > max*(1+1e-9) {
+				continue
+			}
+			label := ""
+			switch {
+			case k == 1:
+				label = "10" + Superscript(e)
+			case narrow || inside < 2 && (k == 2 || k == 3 || k == 5):
+				label = fmt.Sprintf("%d × 10%s", k, Superscript(e))
+			}
+			ts = append(ts, plot.Tick{Value: v, Label: label})
+		}
+	}
+	return ts
+}
+
+// rules draws faint horizontal rules at the labelled ticks of the y axis.
+type rules struct{}
+
+func (rules) Plot(c draw.Canvas, p *plot.Plot) {
+	_, ty := p.Transforms(&c)
+	sty := draw.LineStyle{Color: colRule, Width: 0.5}
+	for _, tk := range p.Y.Tick.Marker.Ticks(p.Y.Min, p.Y.Max) {
+		if tk.Label == "" || tk.Value < p.Y.Min || tk.Value > p.Y.Max {
+			continue
+		}
+		y := ty(tk.Value)
+		c.StrokeLine2(sty, c.Min.X, y, c.Max.X, y)
+	}
+}
+
+// plotFunc adapts a function to plot.Plotter.
+type plotFunc func(c draw.Canvas, p *plot.Plot)
+
+func (f plotFunc) Plot(c draw.Canvas, p *plot.Plot) { f(c, p) }
+
+// polyline draws a line through (x, y) in data units, clipped to the data area.
+func polyline(c draw.Canvas, p *plot.Plot, xs, ys []float64, sty draw.LineStyle) {
+	tx, ty := p.Transforms(&c)
+	var pts []vg.Point
+	flush := func() {
+		if len(pts) > 1 {
+			c.StrokeLines(sty, c.ClipLinesXY(pts)...)
+		}
+		pts = pts[:0]
+	}
+	for i := range xs {
+		if !finite(xs[i]) || !finite(ys[i]) || (p.Y.Scale == plot.LogScale{} && ys[i] <= 0) {
+			flush()
+			continue
+		}
+		pts = append(pts, vg.Point{X: tx(xs[i]), Y: ty(ys[i])})
+	}
+	flush()
+}
+
+// band fills the area between lo and hi over xs, clipped to the data area.
+func band(c draw.Canvas, p *plot.Plot, xs, lo, hi []float64, col color.Color) {
+	tx, ty := p.Transforms(&c)
+	var top, bottom []vg.Point
+	flush := func() {
+		if len(top) > 1 {
+			poly := append([]vg.Point(nil), top...)
+			for i := len(bottom) - 1; i >= 0; i-- {
+				poly = append(poly, bottom[i])
+			}
+			c.FillPolygon(col, c.ClipPolygonXY(poly))
+		}
+		top, bottom = top[:0], bottom[:0]
+	}
+	logY := p.Y.Scale == plot.LogScale{}
+	for i := range xs {
+		if !finite(lo[i]) || !finite(hi[i]) || logY && (lo[i] <= 0 || hi[i] <= 0) {
+			flush()
+			continue
+		}
+		// Keep far-off values finite on the canvas; clipping does the rest.
+		l, h := clampSpan(p.Y, lo[i]), clampSpan(p.Y, hi[i])
+		top = append(top, vg.Point{X: tx(xs[i]), Y: ty(h)})
+		bottom = append(bottom, vg.Point{X: tx(xs[i]), Y: ty(l)})
+	}
+	flush()
+}
+
+// clampSpan limits v to the axis range widened by its own span on each side.
+func clampSpan(a plot.Axis, v float64) float64 {
+	if a.Scale == (plot.LogScale{}) {
+		lmin, lmax := math.Log10(a.Min), math.Log10(a.Max)
+		s := lmax - lmin
+		return math.Pow(10, math.Max(lmin-s, math.Min(lmax+s, math.Log10(v))))
+	}
+	s := a.Max - a.Min
+	return math.Max(a.Min-s, math.Min(a.Max+s, v))
+}
+
+// marks draws glyphs at (x, y); points outside the data area are skipped.
+func marks(c draw.Canvas, p *plot.Plot, xs, ys []float64, g draw.GlyphStyle) {
+	tx, ty := p.Transforms(&c)
+	for i := range xs {
+		if !finite(xs[i]) || !finite(ys[i]) {
+			continue
+		}
+		pt := vg.Point{X: tx(xs[i]), Y: ty(ys[i])}
+		if c.Contains(pt) {
+			c.DrawGlyph(g, pt)
+		}
+	}
+}
+
+// vbars draws vertical bars from lo to hi at xs with small caps.
+func vbars(c draw.Canvas, p *plot.Plot, xs, lo, hi []float64, sty draw.LineStyle, capw vg.Length) {
+	tx, ty := p.Transforms(&c)
+	logY := p.Y.Scale == plot.LogScale{}
+	for i := range xs {
+		if !finite(xs[i]) || !finite(lo[i]) || !finite(hi[i]) || logY && (lo[i] <= 0 || hi[i] <= 0) {
+			continue
+		}
+		x := tx(xs[i])
+		y0, y1 := ty(clampSpan(p.Y, lo[i])), ty(clampSpan(p.Y, hi[i]))
+		c.StrokeLines(sty, c.ClipLinesXY([]vg.Point{{X: x, Y: y0}, {X: x, Y: y1}})...)
+		if capw > 0 {
+			for _, y := range []vg.Length{y0, y1} {
+				c.StrokeLines(sty, c.ClipLinesXY([]vg.Point{{X: x - capw/2, Y: y}, {X: x + capw/2, Y: y}})...)
+			}
+		}
+	}
+}
+
+// hbars draws horizontal bars from lo to hi at ys with small caps.
+func hbars(c draw.Canvas, p *plot.Plot, ys, lo, hi []float64, sty draw.LineStyle, capw vg.Length) {
+	tx, ty := p.Transforms(&c)
+	for i := range ys {
+		if !finite(ys[i]) || !finite(lo[i]) || !finite(hi[i]) {
+			continue
+		}
+		y := ty(ys[i])
+		x0, x1 := tx(clampSpan(p.X, lo[i])), tx(clampSpan(p.X, hi[i]))
+		c.StrokeLines(sty, c.ClipLinesXY([]vg.Point{{X: x0, Y: y}, {X: x1, Y: y}})...)
+		if capw > 0 {
+			for _, x := range []vg.Length{x0, x1} {
+				c.StrokeLines(sty, c.ClipLinesXY([]vg.Point{{X: x, Y: y - capw/2}, {X: x, Y: y + capw/2}})...)
+			}
+		}
+	}
+}
+
+// diamondGlyph is a filled diamond.
+type diamondGlyph struct{}
+
+func (diamondGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	c.SetColor(sty.Color)
+	r := sty.Radius * 1.25
+	var path vg.Path
+	path.Move(vg.Point{X: pt.X, Y: pt.Y + r})
+	path.Line(vg.Point{X: pt.X + r, Y: pt.Y})
+	path.Line(vg.Point{X: pt.X, Y: pt.Y - r})
+	path.Line(vg.Point{X: pt.X - r, Y: pt.Y})
+	path.Close()
+	c.Fill(path)
+}
+
+// openDiamondGlyph is an outlined diamond, for back-calculated parts.
+type openDiamondGlyph struct{}
+
+func (openDiamondGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	c.SetLineStyle(draw.LineStyle{Color: sty.Color, Width: 1.1})
+	r := sty.Radius * 1.4
+	var path vg.Path
+	path.Move(vg.Point{X: pt.X, Y: pt.Y + r})
+	path.Line(vg.Point{X: pt.X + r, Y: pt.Y})
+	path.Line(vg.Point{X: pt.X, Y: pt.Y - r})
+	path.Line(vg.Point{X: pt.X - r, Y: pt.Y})
+	path.Close()
+	c.SetColor(color.White)
+	c.Fill(path)
+	c.SetColor(sty.Color)
+	c.Stroke(path)
+}
+
+// ringGlyph is an outlined circle with a white centre, for measured points
+// (an open mark lets the fitted curve show through).
+type ringGlyph struct{}
+
+func (ringGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	var path vg.Path
+	path.Move(vg.Point{X: pt.X + sty.Radius, Y: pt.Y})
+	path.Arc(pt, sty.Radius, 0, 2*math.Pi)
+	path.Close()
+	c.SetColor(color.White)
+	c.Fill(path)
+	c.SetLineStyle(draw.LineStyle{Color: sty.Color, Width: 0.9})
+	c.Stroke(path)
+}
+
+// legendEntry is one line of a figure's key.
+type legendEntry struct {
+	label string
+	// draw paints the symbol centred at pt, w wide.
+	draw func(c *draw.Canvas, pt vg.Point, w vg.Length)
+}
+
+func lineSymbol(sty draw.LineStyle) func(c *draw.Canvas, pt vg.Point, w vg.Length) {
+	return func(c *draw.Canvas, pt vg.Point, w vg.Length) {
+		c.StrokeLine2(sty, pt.X-w/2, pt.Y, pt.X+w/2, pt.Y)
+	}
+}
+
+func glyphSymbol(g draw.GlyphStyle) func(c *draw.Canvas, pt vg.Point, w vg.Length) {
+	return func(c *draw.Canvas, pt vg.Point, w vg.Length) { c.DrawGlyphNoClip(g, pt) }
+}
+
+func bandSymbol(col color.Color, line *draw.LineStyle) func(c *draw.Canvas, pt vg.Point, w vg.Length) {
+	return func(c *draw.Canvas, pt vg.Point, w vg.Length) {
+		h := vg.Length(7)
+		c.FillPolygon(col, []vg.Point{{X: pt.X - w/2, Y: pt.Y - h/2}, {X: pt.X + w/2, Y: pt.Y - h/2}, {X: pt.X + w/2, Y: pt.Y + h/2}, {X: pt.X - w/2, Y: pt.Y + h/2}})
+		if line != nil {
+			c.StrokeLine2(*line, pt.X-w/2, pt.Y, pt.X+w/2, pt.Y)
+		}
+	}
+}
+
+func combined(fs ...func(c *draw.Canvas, pt vg.Point, w vg.Length)) func(c *draw.Canvas, pt vg.Point, w vg.Length) {
+	return func(c *draw.Canvas, pt vg.Point, w vg.Length) {
+		for _, f := range fs {
+			f(c, pt, w)
+		}
+	}
+}
+
+// drawLegend draws the key inside the data area dc at the top right (or
+// bottom right when bottom), on a white ground.
+func drawLegend(dc draw.Canvas, entries []legendEntry, bottom, left bool) {
+	if len(entries) == 0 {
+		return
+	}
+	ts := textStyle(sizeTick, colInk, false)
+	ts.YAlign = draw.YCenter
+	const symW, gap, pad, rowH = vg.Length(16), vg.Length(5), vg.Length(5), vg.Length(12)
+	var textW vg.Length
+	for _, e := range entries {
+		if w := ts.Width(e.label); w > textW {
+			textW = w
+		}
+	}
+	w := pad + symW + gap + textW + pad
+	h := pad + rowH*vg.Length(len(entries)) + pad/2
+	x0 := dc.Max.X - w - 4
+	if left {
+		x0 = dc.Min.X + 4
+	}
+	y1 := dc.Max.Y - 4
+	if bottom {
+		y1 = dc.Min.Y + 4 + h
+	}
+	dc.FillPolygon(color.White, []vg.Point{{X: x0, Y: y1 - h}, {X: x0 + w, Y: y1 - h}, {X: x0 + w, Y: y1}, {X: x0, Y: y1}})
+	for i, e := range entries {
+		y := y1 - pad - rowH*vg.Length(i) - rowH/2
+		e.draw(&dc, vg.Point{X: x0 + pad + symW/2, Y: y}, symW)
+		dc.FillText(ts, vg.Point{X: x0 + pad + symW + gap, Y: y}, e.label)
+	}
+}
+
+// Figure is a drawing ready to be written as SVG or PNG.
+type Figure struct {
+	// Name is the file name without extension ("profile-A3").
+	Name string
+	// Title says in words what the figure shows (alt text and caption).
+	Title         string
+	Width, Height vg.Length
+	paint         func(c draw.Canvas)
+}
+
+// drawTitle writes a bold title and a grey subtitle at the top left of c
+// and returns the canvas below them.
+func drawTitle(c draw.Canvas, title, subtitle string) draw.Canvas {
+	ts := textStyle(sizeTitle, colInk, true)
+	ts.YAlign = draw.YTop
+	c.FillText(ts, vg.Point{X: c.Min.X, Y: c.Max.Y}, title)
+	if subtitle != "" {
+		ss := textStyle(sizeTick+0.5, colMuted, false)
+		ss.YAlign = draw.YTop
+		c.FillText(ss, vg.Point{X: c.Min.X + ts.Width(title) + 8, Y: c.Max.Y - 1.5}, subtitle)
+	}
+	c.Max.Y -= ts.Height(title) + 8
+	return c
+}
+
+// render paints the figure on a canvas, turning a panic of the drawing
+// library into an error.
+func (f *Figure) render(cv vg.CanvasWriterTo, w io.Writer) (err error) {
+	defer func() {
+		if r := recover(); r != nil {
+			err = fmt.Errorf("drawing figure %s: %v", f.Name, r)
+		}
+	}()
+	c := draw.New(cv)
+	c.SetColor(color.White)
+	c.Fill(c.Rectangle.Path())
+	f.paint(draw.Crop(c, 10, -12, 8, -10))
+	_, err = cv.WriteTo(w)
+	return err
+}
+
+var svgFontFamily = regexp.MustCompile(`font-family:Liberation (Sans|Serif|Mono);`)
+
+// WriteSVG writes the figure as a standalone SVG document. Fonts are not
+// embedded; Liberation Sans is named first, then metric-compatible
+// fallbacks (Arimo, Arial, Helvetica), so that text keeps its size.
+func (f *Figure) WriteSVG(w io.Writer) error {
+	b, err := f.svgBytes()
+	if err != nil {
+		return err
+	}
+	_, err = w.Write(b)
+	return err
+}
+
+func (f *Figure) svgBytes() ([]byte, error) {
+	var buf bytes.Buffer
+	if err := f.render(vgsvg.New(f.Width, f.Height), &buf); err != nil {
+		return nil, err
+	}
+	s := buf.String()
+	s = svgFontFamily.ReplaceAllStringFunc(s, func(m string) string {
+		fam := svgFontFamily.FindStringSubmatch(m)[1]
+		switch fam {
+		case "Sans":
+			return "font-family:'Liberation Sans',Arimo,Arial,Helvetica,sans-serif;"
+		case "Serif":
+			return "font-family:'Liberation Serif',Tinos,'Times New Roman',serif;"
+		}
+		return "font-family:'Liberation Mono',Cousine,'Courier New',monospace;"
+	})
+	s = strings.Replace(s, "<!-- Generated by SVGo and Plotinum VG -->\n", "", 1)
+	// A title element makes the figure accessible and names it in viewers.
+	if i := strings.Index(s, ">\n"); i >= 0 && strings.HasPrefix(s, "<?xml") {
+		if j := strings.Index(s[i+2:], ">\n"); j >= 0 {
+			k := i + 2 + j + 2
+			s = s[:k] + "<title>" + htmlEscape(f.Title) + "</title>\n" + s[k:]
+		}
+	}
+	return []byte(s), nil
+}
+
+// inlineSVG returns the SVG for embedding in HTML: without the XML
+// prelude, scaled to the width of its container.
+func (f *Figure) inlineSVG() (string, error) {
+	b, err := f.svgBytes()
+	if err != nil {
+		return "", err
+	}
+	s := string(b)
+	if strings.HasPrefix(s, "<?xml") {
+		s = s[strings.Index(s, "\n")+1:]
+	}
+	s = regexp.MustCompile(`^<svg width="[^"]*" height="[^"]*"`).ReplaceAllString(s,
+		`<svg role="img" aria-label="`+htmlEscape(f.Title)+`" class="fig"`)
+	return s, nil
+}
+
+// DefaultDPI is the resolution of PNG figures: sharp on screens and in print.
+const DefaultDPI = 200
+
+// WritePNG writes the figure as a PNG image at dpi dots per inch (0 means DefaultDPI).
+func (f *Figure) WritePNG(w io.Writer, dpi int) error {
+	if dpi <= 0 {
+		dpi = DefaultDPI
+	}
+	cv := vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(f.Width, f.Height), vgimg.UseDPI(dpi))}
+	return f.render(cv, w)
+}
+
+func htmlEscape(s string) string {
+	r := strings.NewReplacer("&", "&amp;", "<", "&lt;", ">", "&gt;", `"`, "&quot;", "'", "&#39;")
+	return r.Replace(s)
+}
+
+// alignPair crops two canvases so that their data areas share left and
+// right edges (a panel stacked above another).
+func alignPair(p1, p2 *plot.Plot, c1, c2 draw.Canvas) (draw.Canvas, draw.Canvas) {
+	d1, d2 := p1.DataCanvas(c1), p2.DataCanvas(c2)
+	left := vg.Length(math.Max(float64(d1.Min.X), float64(d2.Min.X)))
+	right := vg.Length(math.Min(float64(d1.Max.X), float64(d2.Max.X)))
+	c1 = draw.Crop(c1, left-d1.Min.X, right-d1.Max.X, 0, 0)
+	c2 = draw.Crop(c2, left-d2.Min.X, right-d2.Max.X, 0, 0)
+	return c1, c2
+}
+
+// figText is the text handler of the figures. The Liberation fonts lack
+// some superscript glyphs (⁰, ⁹, ⁻), so runs of superscript characters
+// written by this package's formatting ("10⁻¹¹", "m²/s") are drawn as
+// ordinary digits at 70 % size, raised: the same strings serve text
+// reports and figures.
+var figText = supText{Plain: text.Plain{Fonts: font.DefaultCache}}
+
+type supText struct{ text.Plain }
+
+const (
+	supScale = 0.7
+	supRaise = 0.36
+)
+
+var supDigits = map[rune]rune{
+	'⁰': '0', '¹': '1', '²': '2', '³': '3', '⁴': '4', '⁵': '5', '⁶': '6', '⁷': '7', '⁸': '8', '⁹': '9', '⁻': '−',
+}
+
+type textRun struct {
+	s   string
+	sup bool
+}
+
+// runs splits a line into ordinary and superscript runs, the latter
+// mapped to ordinary characters.
+func runs(line string) []textRun {
+	var out []textRun
+	var b strings.Builder
+	cur := false
+	flush := func() {
+		if b.Len() > 0 {
+			out = append(out, textRun{b.String(), cur})
+			b.Reset()
+		}
+	}
+	for _, r := range line {
+		d, sup := supDigits[r]
+		if sup != cur {
+			flush()
+			cur = sup
+		}
+		if sup {
+			b.WriteRune(d)
+		} else {
+			b.WriteRune(r)
+		}
+	}
+	flush()
+	return out
+}
+
+func (h supText) width(line string, fnt font.Font) vg.Length {
+	face := h.Fonts.Lookup(fnt, fnt.Size)
+	sup := h.Fonts.Lookup(fnt, fnt.Size*supScale)
+	var w vg.Length
+	for _, r := range runs(line) {
+		if r.sup {
+			w += sup.Width(r.s)
+		} else {
+			w += face.Width(r.s)
+		}
+	}
+	return w
+}
+
+// Box returns the extent of one line of text with its superscripts.
+func (h supText) Box(txt string, fnt font.Font) (width, height, depth vg.Length) {
+	face := h.Fonts.Lookup(fnt, fnt.Size)
+	ext := face.Extents()
+	return h.width(txt, fnt), ext.Ascent, ext.Descent
+}
+
+// Draw draws the text as text.Plain does, superscript runs raised and smaller.
+func (h supText) Draw(c vg.Canvas, txt string, sty text.Style, pt vg.Point) {
+	txt = strings.TrimRight(txt, "\n")
+	if len(txt) == 0 {
+		return
+	}
+	face := h.Fonts.Lookup(sty.Font, sty.Font.Size)
+	sup := h.Fonts.Lookup(sty.Font, sty.Font.Size*supScale)
+	c.SetColor(sty.Color)
+	if sty.Rotation != 0 {
+		c.Push()
+		c.Rotate(sty.Rotation)
+	}
+	sin64, cos64 := math.Sincos(sty.Rotation)
+	cos, sin := vg.Length(cos64), vg.Length(sin64)
+	pt.X, pt.Y = pt.Y*sin+pt.X*cos, pt.Y*cos-pt.X*sin
+	lines := h.Lines(txt)
+	ht := sty.Height(txt)
+	pt.Y += ht*vg.Length(sty.YAlign) - face.Extents().Ascent
+	for i, line := range lines {
+		x := vg.Length(sty.XAlign) * h.width(line, sty.Font)
+		n := vg.Length(len(lines) - i)
+		at := pt.Add(vg.Point{X: x, Y: n * sty.Font.Size})
+		for _, r := range runs(line) {
+			if r.sup {
+				c.FillString(sup, at.Add(vg.Point{Y: supRaise * sty.Font.Size}), r.s)
+				at.X += sup.Width(r.s)
+				continue
+			}
+			c.FillString(face, at, r.s)
+			at.X += face.Width(r.s)
+		}
+	}
+	if sty.Rotation != 0 {
+		c.Pop()
+	}
+}
