@@ -329,7 +329,7 @@ func LotsFigure(cmp *arrhenius.Comparison, lines []arrhenius.Line, o FigureOptio
 	}
 	u := o.TempUnit
 	type series struct {
-		name        string
+		name         string
 		t, r, lo, hi []float64
 	}
 	var ss []series
