@@ -3,6 +3,7 @@ package fit
 import (
 	"encoding/json"
 	"errors"
+	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -355,4 +356,23 @@ func TestCaseDepthCoverage(t *testing.T) {
 	} else {
 		t.Logf("coverage %.3f", cov)
 	}
+}
+
+func ExampleParseThreshold() {
+	for _, s := range []string{"550 HV1", "core + 50 HV0.5", "0,35 wt%", "0.4%C"} {
+		th, err := ParseThreshold(s)
+		if err != nil {
+			fmt.Println(err)
+			continue
+		}
+		fmt.Println(th, th.Kind == OverCore, th.Hardness())
+	}
+	_, err := ParseThreshold("550")
+	fmt.Println(err)
+	// Output:
+	// 550HV1 false true
+	// core+50HV0.5 true true
+	// 0.35wt% false false
+	// 0.4%C false false
+	// bad input: case-depth threshold "550" has no unit: write e.g. 550HV1 or 550wt%
 }
