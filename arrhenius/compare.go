@@ -358,11 +358,11 @@ func (c *Comparison) verdict(ref string) string {
 	if len(c.Groups) == 2 {
 		list = c.Groups[0] + " and " + c.Groups[1]
 	}
-	pct := fmt.Sprintf("%g %%", 100*c.Level)
+	pct := fmt.Sprintf("%.3g %%", 100*c.Level)
 	if c.Differ {
 		fmt.Fprintf(&b, "%s %s differ (%s)", label, list, fmtP(c.PMain))
 	} else {
-		fmt.Fprintf(&b, "No significant difference between %s %s at the %g %% level (%s)", strings.ToLower(label), list, 100*c.Alpha, fmtP(c.PMain))
+		fmt.Fprintf(&b, "No significant difference between %s %s at the %.3g %% level (%s)", strings.ToLower(label), list, 100*c.Alpha, fmtP(c.PMain))
 	}
 	for i, r := range c.Ratios {
 		sep := ": "

@@ -1,8 +1,13 @@
 package arrhenius
 
 import (
+	"encoding/json"
+	"errors"
 	"math"
+	"strings"
 	"testing"
+
+	"github.com/fickfit/fickfit/fit"
 )
 
 // TestReferenceChecks: external check — every row reproduces the D values
@@ -25,6 +30,38 @@ func TestReferenceChecks(t *testing.T) {
 			if c.T < r.TMin || c.T > r.TMax {
 				t.Errorf("%s: check temperature %g K outside the row's range %g–%g K", r.Name, c.T, r.TMin, r.TMax)
 			}
+		}
+	}
+}
+
+func TestLookupReference(t *testing.T) {
+	for _, name := range []string{"C-in-gamma-Fe", "c-in-GAMMA-fe", " C-in-austenite ", "Zn-in-Cu"} {
+		if _, err := LookupReference(name); err != nil {
+			t.Errorf("%q: %v", name, err)
+		}
+	}
+	_, err := LookupReference("N-in-unobtainium")
+	if err == nil || !errors.Is(err, fit.ErrBadInput) {
+		t.Fatalf("unknown name: %v", err)
+	}
+	for _, n := range ReferenceNames() {
+		if !strings.Contains(err.Error(), n) {
+			t.Errorf("error does not list %s: %v", n, err)
+		}
+	}
+	r, _ := LookupReference("C-in-gamma-Fe")
+	c := r.Calibration()
+	if c.Method != "reference" || c.D0() != r.D0 && math.Abs(c.D0()/r.D0-1) > 1e-15 || c.Q != r.Q || c.TMin != 1000 {
+		t.Errorf("calibration %+v", c)
+	}
+	seen := map[string]bool{}
+	for _, r := range References() {
+		if seen[r.Name] || r.Source == "" || !(r.TMin < r.TMax) || !r.FromMemory {
+			t.Errorf("row %s: duplicate, no source or bad range", r.Name)
+		}
+		seen[r.Name] = true
+		if _, err := json.Marshal(r); err != nil {
+			t.Error(err)
 		}
 	}
 }
