@@ -24,8 +24,9 @@ type gradLaw interface {
 	Diffusivity
 	// nGrad is the number of law parameters.
 	nGrad() int
-	// grad writes ∂D(c)/∂qₘ into g[m].
-	grad(c float64, g []float64)
+	// grad writes ∂D(c)/∂qₘ into g[m], given d = D(c) (every law here
+	// has gradients that follow from c and D(c) without another exp).
+	grad(c, d float64, g []float64)
 }
 
 // linearLaw marks a law whose D does not depend on C: the discrete
@@ -41,9 +42,9 @@ func (k Const) At(float64) (float64, float64) { return k.D, 0 }
 // Max implements Diffusivity.
 func (k Const) Max(float64, float64) float64 { return k.D }
 
-func (k Const) nGrad() int                  { return 1 }
-func (k Const) grad(_ float64, g []float64) { g[0] = k.D } // ∂D/∂ln D
-func (Const) constantD() bool               { return true }
+func (k Const) nGrad() int                     { return 1 }
+func (k Const) grad(_, d float64, g []float64) { g[0] = d } // ∂D/∂ln D
+func (Const) constantD() bool                  { return true }
 
 // Exp is the exponential law
 //
@@ -71,8 +72,7 @@ func (e Exp) Max(lo, hi float64) float64 {
 func (e Exp) nGrad() int { return 3 }
 
 // grad gives ∂D/∂ln D, ∂D/∂K and ∂D/∂Cref.
-func (e Exp) grad(c float64, g []float64) {
-	d := e.D * math.Exp(e.K*(c-e.Cref))
+func (e Exp) grad(c, d float64, g []float64) {
 	g[0] = d
 	g[1] = (c - e.Cref) * d
 	g[2] = -e.K * d
@@ -212,10 +212,8 @@ func (s scaled) At(c float64) (float64, float64) {
 	d, dd := s.t.At(c)
 	return s.f * d, s.f * dd
 }
-func (s scaled) Max(lo, hi float64) float64 { return s.f * s.t.Max(lo, hi) }
-func (s scaled) nGrad() int                 { return 1 }
-func (s scaled) grad(c float64, g []float64) {
-	g[0], _ = s.At(c) // ∂D/∂ln f
-}
+func (s scaled) Max(lo, hi float64) float64     { return s.f * s.t.Max(lo, hi) }
+func (s scaled) nGrad() int                     { return 1 }
+func (s scaled) grad(_, d float64, g []float64) { g[0] = d } // ∂D/∂ln f
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }

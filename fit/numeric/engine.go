@@ -21,14 +21,15 @@ type sensSpec struct {
 // Gᵢ = D(C̄ᵢ)·qᵢ, qᵢ = (Cᵢ₊₁ − Cᵢ)/(xᵢ₊₁ − xᵢ), C̄ᵢ = (Cᵢ + Cᵢ₊₁)/2,
 // a = ∂G/∂Cᵢ and b = ∂G/∂Cᵢ₊₁.
 type level struct {
-	d, a, b, q []float64
-	g          []float64 // ∂D(C̄ᵢ)/∂qₘ, ng per face
+	d, dp, a, b, q []float64 // dp = dD/dC at C̄ᵢ
+	g              []float64 // ∂D(C̄ᵢ)/∂qₘ, ng per face
 }
 
 func newLevel(n, ng int) level {
 	f := n - 1
-	buf := make([]float64, 4*f+ng*f)
-	return level{d: buf[:f:f], a: buf[f : 2*f : 2*f], b: buf[2*f : 3*f : 3*f], q: buf[3*f : 4*f : 4*f], g: buf[4*f:]}
+	buf := make([]float64, 5*f+ng*f)
+	cut := func(k int) []float64 { return buf[k*f : (k+1)*f : (k+1)*f] }
+	return level{d: cut(0), dp: cut(1), a: cut(2), b: cut(3), q: cut(4), g: buf[5*f:]}
 }
 
 // errStep is a failed Newton iteration; the caller splits the step.
@@ -44,14 +45,15 @@ type engine struct {
 	x, vol, hinv []float64 // grid of the current run
 	fracs        []float64 // τ fractions of the time plan, len steps+1
 
-	c, cn, cprev, init, ex []float64
-	old, cur               level
-	ng                     int
-	lo, di, up, rhs, dlt   []float64
-	cpv, den               []float64
-	s, tmp                 []float64 // sensitivities (np×n) and scratch
-	specBuf                []sensSpec
-	fixL                   float64 // when > 0, the truncation depth (tests only)
+	c, cn, cprev, cprev2 []float64
+	init, ex             []float64
+	old, cur             level
+	ng                   int
+	lo, di, up, rhs, dlt []float64
+	cpv, den             []float64
+	s, tmp               []float64 // sensitivities (np×n) and scratch
+	specBuf              []sensSpec
+	fixL                 float64 // when > 0, the truncation depth (tests only)
 
 	// Configuration of the current run.
 	law                 Diffusivity
@@ -74,7 +76,8 @@ type engine struct {
 	uptake, farUptake float64
 	steps, newton     int
 	dtauPrev          float64
-	havePrev          bool
+	dtauPrev2         float64
+	havePrev          int // number of earlier levels available to the predictor
 	badD              bool
 }
 
@@ -84,7 +87,7 @@ func newEngine(opt options) *engine {
 	e.ux, e.uv, e.uh = unitGrid(n, opt.stretch)
 	mk := func() []float64 { return make([]float64, n) }
 	e.x, e.vol, e.hinv = mk(), mk(), make([]float64, n-1)
-	e.c, e.cn, e.cprev, e.init, e.ex = mk(), mk(), mk(), mk(), mk()
+	e.c, e.cn, e.cprev, e.cprev2, e.init, e.ex = mk(), mk(), mk(), mk(), mk(), mk()
 	e.lo, e.di, e.up, e.rhs, e.dlt, e.cpv, e.den = mk(), mk(), mk(), mk(), mk(), mk(), mk()
 	e.tmp = mk()
 	e.fracs = make([]float64, opt.steps+1)
@@ -292,7 +295,7 @@ func (e *engine) setup(p *Problem, sens []sensSpec) error {
 	}
 	e.tolAbs = e.opt.tol * rng
 	e.uptake, e.farUptake, e.steps, e.newton = 0, 0, 0, 0
-	e.havePrev, e.badD = false, false
+	e.havePrev, e.badD = 0, false
 	return nil
 }
 
@@ -353,23 +356,65 @@ func (e *engine) advance(t0, t1, theta float64, depth int) error {
 // computeLevel fills the face quantities at state c.
 func (e *engine) computeLevel(lv *level, c []float64, grad bool) {
 	n1 := e.n - 1
+	c, hinv := c[:n1+1], e.hinv[:n1]
+	d, dp, a, b, q := lv.d[:n1], lv.dp[:n1], lv.a[:n1], lv.b[:n1], lv.q[:n1]
+	var sum float64
+	if ex, ok := e.law.(Exp); ok {
+		// The common case without an interface call per face.
+		for i := 0; i < n1; i++ {
+			v := ex.D * math.Exp(ex.K*(0.5*(c[i]+c[i+1])-ex.Cref))
+			d[i], dp[i] = v, ex.K*v
+		}
+	} else {
+		for i := 0; i < n1; i++ {
+			d[i], dp[i] = e.law.At(0.5 * (c[i] + c[i+1]))
+		}
+	}
 	for i := 0; i < n1; i++ {
-		dc := c[i+1] - c[i]
-		q := dc * e.hinv[i]
-		cb := 0.5 * (c[i] + c[i+1])
-		d, dp := e.law.At(cb)
-		if !(d > 0) || math.IsInf(d, 0) {
+		qi := (c[i+1] - c[i]) * hinv[i]
+		q[i] = qi
+		h := 0.5 * dp[i] * qi
+		a[i] = h - d[i]*hinv[i]
+		b[i] = h + d[i]*hinv[i]
+		sum += d[i]
+		if !(d[i] > 0) {
 			e.badD = true
 		}
-		lv.d[i], lv.q[i] = d, q
-		lv.a[i] = 0.5*dp*q - d*e.hinv[i]
-		lv.b[i] = 0.5*dp*q + d*e.hinv[i]
+	}
+	if !finite(sum) {
+		e.badD = true
 	}
 	if grad {
-		ng := e.ng
-		for i := 0; i < n1; i++ {
-			e.glaw.grad(0.5*(c[i]+c[i+1]), lv.g[i*ng:(i+1)*ng])
-		}
+		e.levelGrad(lv, c)
+	}
+}
+
+// levelGrad fills the law gradients per face from the stored D values.
+func (e *engine) levelGrad(lv *level, c []float64) {
+	ng := e.ng
+	for i := 0; i < e.n-1; i++ {
+		e.glaw.grad(0.5*(c[i]+c[i+1]), lv.d[i], lv.g[i*ng:(i+1)*ng])
+	}
+}
+
+// touchUp updates a level computed at the last Newton iterate to the
+// accepted state c = iterate + δ by a first-order Taylor step in D
+// (error O(δ²), far below the Newton tolerance), saving a law
+// evaluation per face.
+func (e *engine) touchUp(lv *level, c []float64, grad bool) {
+	n1 := e.n - 1
+	dlt, hinv := e.dlt[:n1+1], e.hinv[:n1]
+	d, dp, a, b, q := lv.d[:n1], lv.dp[:n1], lv.a[:n1], lv.b[:n1], lv.q[:n1]
+	for i := 0; i < n1; i++ {
+		d[i] += dp[i] * 0.5 * (dlt[i] + dlt[i+1])
+		qi := (c[i+1] - c[i]) * hinv[i]
+		q[i] = qi
+		h := 0.5 * dp[i] * qi
+		a[i] = h - d[i]*hinv[i]
+		b[i] = h + d[i]*hinv[i]
+	}
+	if grad {
+		e.levelGrad(lv, c)
 	}
 }
 
@@ -427,6 +472,56 @@ func (e *engine) factor() bool {
 	return true
 }
 
+// assembleSolve does assemble, factor and thomas in one forward sweep and
+// one backward sweep (the hot path of Newton's iteration); the factors are
+// kept for further right-hand sides.
+func (e *engine) assembleSolve(lv *level, theta, dtau, dt float64, r, out []float64) bool {
+	n := e.n
+	w := theta * dtau
+	vol, lo, den, cpv := e.vol[:n], e.lo[:n], e.den[:n], e.cpv[:n]
+	a, b := lv.a[:n-1], lv.b[:n-1]
+	r, out = r[:n], out[:n]
+	var cpPrev, yPrev float64
+	for i := 0; i < n; i++ {
+		diag, l, u := vol[i], 0.0, 0.0
+		if i < n-1 {
+			diag -= w * a[i]
+			u = -w * b[i]
+		}
+		if i > 0 {
+			diag += w * b[i-1]
+			l = w * a[i-1]
+		}
+		if i == 0 {
+			if e.mt {
+				diag += theta * dt * e.beta
+			}
+			if e.leftDir {
+				diag, u = 1, 0
+			}
+		}
+		if i == n-1 && e.right {
+			diag, l = 1, 0
+		}
+		d := diag - l*cpPrev
+		if !(math.Abs(d) > 1e-300) {
+			return false
+		}
+		inv := 1 / d
+		lo[i], den[i] = l, inv
+		cpPrev = u * inv
+		cpv[i] = cpPrev
+		yPrev = (r[i] - l*yPrev) * inv
+		out[i] = yPrev
+	}
+	next := out[n-1]
+	for i := n - 2; i >= 0; i-- {
+		next = out[i] - cpv[i]*next
+		out[i] = next
+	}
+	return true
+}
+
 // thomas solves the factored system for r, writing the solution into out
 // (which may alias r).
 func (e *engine) thomas(r, out []float64) {
@@ -465,11 +560,24 @@ func (e *engine) step(dtau, dt, theta float64) error {
 	if e.mt {
 		e.ex[0] += (1 - theta) * dt * e.beta * (e.cpAtm - e.cn[0])
 	}
-	// Predictor: linear extrapolation in τ.
-	if e.havePrev && !e.linear {
-		r := dtau / e.dtauPrev
-		for i := range e.c {
-			e.c[i] = e.cn[i] + r*(e.cn[i]-e.cprev[i])
+	// Predictor: extrapolation in τ through the last three levels
+	// (quadratic; linear after the first step), so that the first Newton
+	// correction is small and one more suffices.
+	if !e.linear && e.havePrev > 0 {
+		h, h1 := dtau, e.dtauPrev
+		if e.havePrev > 1 {
+			h2 := e.dtauPrev2
+			ln := (h + h1) * (h + h1 + h2) / (h1 * (h1 + h2))
+			l1 := -h * (h + h1 + h2) / (h1 * h2)
+			l2 := h * (h + h1) / (h2 * (h1 + h2))
+			for i := range e.c {
+				e.c[i] = ln*e.cn[i] + l1*e.cprev[i] + l2*e.cprev2[i]
+			}
+		} else {
+			r := h / h1
+			for i := range e.c {
+				e.c[i] = e.cn[i] + r*(e.cn[i]-e.cprev[i])
+			}
 		}
 	}
 	if e.leftDir {
@@ -506,11 +614,9 @@ func (e *engine) step(dtau, dt, theta float64) error {
 		if e.right {
 			e.rhs[n-1] = e.cr - e.c[n-1]
 		}
-		e.assemble(cur, theta, dtau, dt)
-		if !e.factor() {
+		if !e.assembleSolve(cur, theta, dtau, dt, e.rhs, e.dlt) {
 			break
 		}
-		e.thomas(e.rhs, e.dlt)
 		var m float64
 		for i, d := range e.dlt {
 			e.c[i] += d
@@ -536,7 +642,11 @@ func (e *engine) step(dtau, dt, theta float64) error {
 	}
 	e.steps++
 	grad := len(e.sens) > 0
-	e.computeLevel(cur, e.c, grad)
+	if e.linear {
+		e.computeLevel(cur, e.c, grad)
+	} else {
+		e.touchUp(cur, e.c, grad)
+	}
 	// Book-keeping of what crossed the boundaries.
 	gNew0, gOld0 := cur.d[0]*cur.q[0], old.d[0]*old.q[0]
 	switch {
@@ -559,9 +669,11 @@ func (e *engine) step(dtau, dt, theta float64) error {
 		}
 		e.sensitivities(theta, dtau, dt)
 	}
-	e.cprev, e.cn = e.cn, e.cprev
+	// Rotate the levels: cprev2 ← cprev ← cn (the state before this step).
+	e.cprev2, e.cprev, e.cn = e.cprev, e.cn, e.cprev2
 	e.old, e.cur = e.cur, e.old
-	e.dtauPrev, e.havePrev = dtau, true
+	e.dtauPrev2, e.dtauPrev = e.dtauPrev, dtau
+	e.havePrev++
 	return nil
 }
 
