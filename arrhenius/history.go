@@ -2,6 +2,7 @@ package arrhenius
 
 import (
 	"math"
+	"strconv"
 
 	"github.com/fickfit/fickfit/profile"
 )
@@ -262,3 +263,33 @@ func (e Exposure) lnDt(c Calibration) (lnDt, variance, x float64, err error) {
 // tEff returns the temperature that acts for the exposure (hold temperature
 // or 1/(R·xEff) of a log).
 func tEffOf(x float64) float64 { return 1 / (R * x) }
+
+// WithHistory prepares a profile from a part that saw a logged treatment
+// for fitting: it returns a copy whose Time is the equivalent time of the
+// log at Tref (K; 0 means the log's highest temperature) for activation
+// energy Q (J/mol) and whose Temperature is Tref, so that the fit reports
+// D at Tref (exact when D does not depend on x or C: only ∫D dt enters the
+// solution). Meta records "history", "history_Q_J_per_mol" and
+// "equivalent_time_s"; the input profile is not changed.
+func WithHistory(p profile.Profile, h *profile.History, Q, Tref float64) (profile.Profile, error) {
+	if err := checkHistory(h); err != nil {
+		return p, err
+	}
+	if Tref == 0 {
+		Tref = maxOf(h.Temp)
+	}
+	teq, err := EquivalentTime(h, Q, Tref)
+	if err != nil {
+		return p, err
+	}
+	out := p
+	out.Time, out.Temperature, out.TemperatureSigma = teq, Tref, 0
+	out.Meta = make(map[string]string, len(p.Meta)+3)
+	for k, v := range p.Meta {
+		out.Meta[k] = v
+	}
+	out.Meta["history"] = h.Source
+	out.Meta["history_Q_J_per_mol"] = strconv.FormatFloat(Q, 'g', -1, 64)
+	out.Meta["equivalent_time_s"] = strconv.FormatFloat(teq, 'g', -1, 64)
+	return out, nil
+}

@@ -172,3 +172,33 @@ func testCalibration(t testing.TB) Calibration {
 	}
 	return l.Calibration()
 }
+
+// TestWithHistory: self-check. A profile simulated for a furnace log is
+// fitted through its equivalent time and gives D at the reference
+// temperature (the log acts only through ∫D dt).
+func TestWithHistory(t *testing.T) {
+	h := furnaceLog()
+	dt, _ := IntegralD(h, simD0, simQ)
+	Tref := 1200.0
+	// A profile whose Dt is the log's ∫D dt: simulate at Tref for t_eq.
+	teq := dt / math.Exp(simLnD(Tref))
+	p := simProfile(newRand(9, 9), "part", Tref, teq, 1.0, 0.2, 3e-3, 60, 0.005)
+	p.Time, p.Temperature = 0, 0
+	p.Meta = map[string]string{"lot": "L1"}
+	q, err := WithHistory(p, h, simQ, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	near(t, "equivalent time", q.Time, teq, 1e-9)
+	if q.Temperature != 1200 || q.Meta["history"] != "furnace.csv" || p.Meta["history"] != "" || q.Meta["lot"] != "L1" {
+		t.Errorf("profile %+v", q)
+	}
+	r, err := fit.Fit(&q, fit.Options{CI: "wald"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	lnD, se, _ := r.LnD()
+	if math.Abs(lnD-simLnD(Tref)) > 4*se {
+		t.Errorf("D at Tref: ln D = %g ± %g, true %g", lnD, se, simLnD(Tref))
+	}
+}
