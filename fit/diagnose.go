@@ -1,6 +1,10 @@
 package fit
 
-import "math"
+import (
+	"math"
+
+	"github.com/fickfit/fickfit/profile"
+)
 
 // Diagnoser is implemented by models that have checks of their own beyond
 // the generic ones (the semi-infinite models check penetration depth).
@@ -15,7 +19,14 @@ var semiInfinite = map[string]bool{"erf": true, "masstransfer": true, "thinfilm"
 // answer. Thresholds are common practice, no source.
 func (r *Result) diagnose() {
 	if r.Time == 0 {
-		r.Warn("time-missing", "No hold time was given, so D cannot be separated from time: the value reported as D is the product Dt in m². Give the time (--time 4h or a '# time: 4 h' line) to get D.")
+		what := "the value reported as D is the product Dt in m²"
+		if r.Param("beta") != nil {
+			what = "the values reported as D and beta are the products Dt (m²) and βt (m)"
+		}
+		r.Warn("time-missing", "No hold time was given, so D cannot be separated from time: %s. Give the time (--time 4h or a '# time: 4 h' line) to get D.", what)
+	}
+	if _, ok := profile.HardnessScale(r.ValueUnit); ok {
+		r.Warn("hardness-proxy", "%s", HardnessProxyNote)
 	}
 	if e := r.Param("D"); e != nil && !e.Fixed && e.StdErrLn > 0.5 {
 		r.Warn("d-uncertain", "D is poorly determined: its relative standard uncertainty is %.0f %% (over 50 %%). More points across the diffusion zone, or fixing a level with --fix, would help.", 100*e.StdErrLn)

@@ -21,9 +21,17 @@ import (
 func Fit(p *profile.Profile, o Options) (*Result, error) {
 	m := o.Custom
 	if m == nil {
-		name := o.Model
+		name := strings.ToLower(strings.TrimSpace(o.Model))
 		if name == "" {
 			name = "erf"
+		}
+		if name == "auto" {
+			sel, err := SelectModel(p, o, SelectOptions{})
+			if err != nil {
+				return nil, err
+			}
+			sel.Result.Selection = sel
+			return sel.Result, nil
 		}
 		var err error
 		if m, err = NewModel(name); err != nil {
@@ -224,6 +232,9 @@ func fitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 	if err := r.finish(sol, o); err != nil {
 		return nil, err
 	}
+	if err := r.depths(o); err != nil {
+		return nil, err
+	}
 	return r, nil
 }
 
@@ -307,3 +318,23 @@ func (r *Result) LnD() (lnD, se float64, ok bool) {
 
 // errNoCurve is returned by Curve for results read back from JSON.
 var errNoCurve = errors.New("this result carries no model (it was read from a file); refit the profile to draw its curve")
+
+// depths computes the case and decarburization depths asked for in o.
+func (r *Result) depths(o Options) error {
+	do := DepthOptions{Calibration: o.Calibration}
+	if o.CaseThreshold != nil {
+		e, err := CaseDepth(r, *o.CaseThreshold, do)
+		if err != nil {
+			return err
+		}
+		r.CaseDepth = e
+	}
+	if o.DecarbFraction > 0 {
+		e, err := DecarbDepth(r, o.DecarbFraction, do)
+		if err != nil {
+			return err
+		}
+		r.DecarbDepth = e
+	}
+	return nil
+}

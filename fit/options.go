@@ -1,5 +1,7 @@
 package fit
 
+import "github.com/fickfit/fickfit/profile"
+
 // Options control one fit. The zero value fits the erf model with its
 // default free parameters, 95 % profile-likelihood intervals and the
 // covariance scaled by the reduced χ².
@@ -30,6 +32,17 @@ type Options struct {
 	Faces int
 	// Settings tune the least-squares solver; nil means DefaultSettings().
 	Settings *Settings
+
+	// CaseThreshold, when not nil, asks for the effective case depth at this
+	// threshold (from the data and from the fitted curve, with its interval).
+	CaseThreshold *Threshold
+	// DecarbFraction, when above 0, asks for the decarburization depth: where
+	// an out-diffusion profile has recovered this fraction of the way to the
+	// base level (0.95 is the usual choice).
+	DecarbFraction float64
+	// Calibration converts between hardness and concentration for depth
+	// thresholds stated in the other quantity; nil means none.
+	Calibration *profile.Calibration
 }
 
 // BootstrapOptions control bootstrap intervals.

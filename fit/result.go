@@ -161,6 +161,14 @@ type Result struct {
 	// Meta carries the profile's metadata (for grouping by any key).
 	Meta map[string]string `json:"meta,omitempty"`
 
+	// Selection records the model comparison when the model was chosen
+	// automatically (--model auto).
+	Selection *Selection `json:"selection,omitempty"`
+	// CaseDepth and DecarbDepth are filled when asked for (--case-threshold,
+	// --decarb-fraction).
+	CaseDepth   *DepthEstimate `json:"case_depth,omitempty"`
+	DecarbDepth *DepthEstimate `json:"decarb_depth,omitempty"`
+
 	// Internal state for curves, bands and re-fits; not serialised.
 	model Model
 	data  *Data

@@ -75,8 +75,14 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	fi := 0
 	for j, pa := range params {
 		e := Estimate{Name: pa.Name, Unit: unitFor(pa, r), Value: external(pa, r.pint[j]), Fixed: !r.free[j]}
-		if e.Name == "D" && r.Time == 0 {
-			e.Unit = "m2" // D stands for Dt when the time is unknown
+		if r.Time == 0 {
+			// Without the time only products with t are determined.
+			switch e.Name {
+			case "D":
+				e.Unit = "m2" // Dt
+			case "beta":
+				e.Unit = "m" // βt
+			}
 		}
 		if r.free[j] {
 			se := math.Sqrt(cov[fi][fi])
