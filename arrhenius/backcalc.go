@@ -78,7 +78,8 @@ type SolveOptions struct {
 	Temperature, TemperatureSigma float64
 	// Method is "" or "analytic" (Fieller / Wald on ln t / test inversion),
 	// "monte-carlo" (percentile interval of Draws simulations), or "both"
-	// (analytic interval reported, Monte Carlo beside it as a check).
+	// (analytic interval reported, Monte Carlo beside it as a check). No
+	// Monte Carlo runs when the calibration gives no interval.
 	Method string
 	// Draws is the number of Monte Carlo draws; 0 means 10⁴.
 	Draws int
@@ -310,7 +311,7 @@ func SolveTemperature(obs Observation, cal Calibration, o *SolveOptions) (*Solut
 			s.warn("unbounded-interval", "Q is not significantly different from zero at this level, so the temperature interval is unbounded; the calibration cannot fix the temperature.")
 		}
 	}
-	if opt.mc() {
+	if opt.mc() && !cal.NoInterval {
 		lnt := math.Log(t)
 		s.MonteCarlo = monteCarlo(obs, cal, opt, 0, 0, func(lnD0, q, kappa, _ float64) float64 {
 			x := (lnD0 - (kappa - lnt)) / q
@@ -393,7 +394,7 @@ func SolveTime(obs Observation, cal Calibration, o *SolveOptions) (*Solution, er
 		s.Time.CI = fit.Interval{Lo: math.Exp(lnt - k*se), Hi: math.Exp(lnt + k*se)}
 		s.Time.Method = "wald-log"
 	}
-	if opt.mc() {
+	if opt.mc() && !cal.NoInterval {
 		s.MonteCarlo = monteCarlo(obs, cal, opt, T, sT, func(lnD0, q, kappa, T float64) float64 {
 			if !(T > 0) {
 				return math.Inf(1)
@@ -459,12 +460,9 @@ func (s *Solution) rangeWarnings(T float64) {
 // Non-finite answers count as +Inf (beyond the upper end).
 func monteCarlo(obs Observation, cal Calibration, opt SolveOptions, T, sT float64, eval func(lnD0, q, kappa, T float64) float64) *MonteCarlo {
 	xc, b, vb, vq := cal.centered()
-	if cal.NoInterval {
-		vb, vq = 0, 0
-	}
 	rng := rand.New(rand.NewPCG(opt.Seed, 0x9e3779b97f4a7c15))
 	var chi distuv.ChiSquared
-	if cal.DOF > 0 && !cal.NoInterval {
+	if cal.DOF > 0 {
 		chi = distuv.ChiSquared{K: float64(cal.DOF), Src: rand.NewPCG(opt.Seed, 0x632be59bd9b4e019)}
 	}
 	sb, sq, sy := math.Sqrt(vb), math.Sqrt(vq), math.Sqrt(obs.VarLnDt)
@@ -526,7 +524,7 @@ func percentile(s []float64, p float64) float64 {
 // (∂/∂ln D0 = 1, ∂/∂Q = −x_eff(c)). For an isothermal log this is exactly
 // Fieller's interval of SolveTemperature. Monte Carlo (Method
 // "monte-carlo" or "both") re-solves the level for every draw.
-func SolveHistoryLevel(obs Observation, cal Calibration, h *profile.History, mode Level, o *SolveOptions) (*Solution, error) {
+func SolveHistoryLevel(obs Observation, cal Calibration, h *profile.History, mode LogAdjust, o *SolveOptions) (*Solution, error) {
 	opt, err := o.defaults()
 	if err != nil {
 		return nil, err
@@ -592,7 +590,7 @@ func SolveHistoryLevel(obs Observation, cal Calibration, h *profile.History, mod
 		s.Temperature.CI = fit.Interval{Lo: mode.adjust(tmax, ci.Lo), Hi: mode.adjust(tmax, ci.Hi)}
 		s.Temperature.Method = "test-inversion"
 	}
-	if opt.mc() {
+	if opt.mc() && !cal.NoInterval {
 		s.MonteCarlo = monteCarlo(obs, cal, opt, 0, 0, func(lnD0, q, kappa, _ float64) float64 {
 			if !(q > 0) {
 				return math.Inf(1)

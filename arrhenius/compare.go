@@ -353,7 +353,8 @@ func fmtP(p float64) string {
 // verdict writes the plain-language conclusion.
 func (c *Comparison) verdict(ref string) string {
 	var b strings.Builder
-	label := strings.ToUpper(c.By[:1]) + c.By[1:] + "s"
+	r := []rune(c.By)
+	label := strings.ToUpper(string(r[:1])) + string(r[1:]) + "s"
 	list := strings.Join(c.Groups, ", ")
 	if len(c.Groups) == 2 {
 		list = c.Groups[0] + " and " + c.Groups[1]

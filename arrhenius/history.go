@@ -42,19 +42,19 @@ func checkHistory(h *profile.History) error {
 	return nil
 }
 
-// Level says how the level of a log of known shape is adjusted.
-type Level int
+// LogAdjust says how the level of a log of known shape is adjusted.
+type LogAdjust int
 
 const (
 	// Shift adds δ (K) to every temperature of the log: T'(t) = T(t) + δ
 	// (an offset of the thermocouple or controller).
-	Shift Level = iota
+	Shift LogAdjust = iota
 	// Scale multiplies every temperature (K) of the log by s: T'(t) = s·T(t)
 	// (a proportional error, e.g. of the span of a recorder).
 	Scale
 )
 
-func (lv Level) String() string {
+func (lv LogAdjust) String() string {
 	if lv == Scale {
 		return "scale"
 	}
@@ -62,7 +62,7 @@ func (lv Level) String() string {
 }
 
 // adjust returns the temperature at level parameter c: T + c (Shift) or c·T (Scale).
-func (lv Level) adjust(T, c float64) float64 {
+func (lv LogAdjust) adjust(T, c float64) float64 {
 	if lv == Scale {
 		return c * T
 	}
@@ -84,7 +84,7 @@ type exposure struct {
 // Newton's method on the Legendre polynomial; Abramowitz & Stegun, Handbook
 // of Mathematical Functions, 1964, §25.4.29; from memory), the integrand
 // scaled by exp(Q/(R·Tmax)) so that it never underflows at the top of the log.
-func integrateLog(h *profile.History, lnD0, Q float64, lv Level, c float64) exposure {
+func integrateLog(h *profile.History, lnD0, Q float64, lv LogAdjust, c float64) exposure {
 	n := len(h.Time)
 	T := make([]float64, n)
 	tmax := 0.0

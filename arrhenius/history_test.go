@@ -116,7 +116,7 @@ func TestHistoryLevelIsothermal(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, mode := range []Level{Shift, Scale} {
+	for _, mode := range []LogAdjust{Shift, Scale} {
 		h := &profile.History{Time: []float64{0, 14400}, Temp: []float64{1150, 1150}}
 		s, err := SolveHistoryLevel(obs, cal, h, mode, nil)
 		if err != nil {
