@@ -20,10 +20,11 @@
 //     (fit.Solve on a stacked problem); same interval rules, with the
 //     Birge ratio taken from the extra sum of squares of the global fit
 //     over the separate fits (n_profiles − 2 degrees of freedom).
-//   - Line.DAt: confidence band of the mean line, ln D ± t·se, mapped by exp.
+//   - Line.DAt: confidence band of the mean line, ln D ± k·se, mapped by exp.
 //   - SolveTemperature: Fieller's theorem on the ratio 1/T = (ln D0 − ln D)·R/Q
-//     (exact for normal estimates), or Monte Carlo percentiles with a
-//     stated seed; both are offered and tested against each other.
+//     (exact for normal estimates; Student-t with Satterthwaite's effective
+//     dof when the calibration was Birge-scaled), or Monte Carlo percentiles
+//     with a stated seed; both are offered and tested against each other.
 //   - SolveTime: ln t is linear in (ln D0, Q, ln Dt), so the Wald interval
 //     on ln t is exact under normality; Monte Carlo is offered as well.
 //   - SolveHistoryLevel: test inversion of the linearised equation, which
@@ -32,6 +33,11 @@
 //     ln(Dt) from the calibration mapped through the monotone model.
 //   - Compare: extra-sum-of-squares F-tests between nested weighted
 //     Arrhenius regressions; D ratio by the Wald interval on its log.
+//
+// Thermal histories (furnace logs, profile.History) enter through ∫D(T(t))dt
+// with T linear between rows (IntegralD, EquivalentTime, WithHistory,
+// SolveHistoryLevel, Exposure.History). Reference values (LookupReference)
+// come from a named handbook table.
 //
 // Back-calculated and predicted numbers feed decisions about parts: every
 // such result carries the Cautions text.

@@ -74,7 +74,7 @@ type TemperatureBudget struct {
 // D0 returns the pre-exponential factor in m²/s.
 func (l *Line) D0() float64 { return math.Exp(l.LnD0) }
 
-// StdErrLnD0 and StdErrQ return the standard errors used for the intervals.
+// StdErrLnD0 returns the standard error of ln D0 used for the intervals.
 func (l *Line) StdErrLnD0() float64 { return math.Sqrt(l.Cov[0][0]) }
 
 // StdErrQ returns the standard error of Q (J/mol).
@@ -96,8 +96,9 @@ func (l *Line) k() float64 {
 	return quantile(l.Level, 0)
 }
 
-// QCI returns the Wald interval Q ± k·se(Q) (J/mol), k from Line.k; open
-// (NaN) without CI.
+// QCI returns the Wald interval Q ± k·se(Q) (J/mol): k is the Student-t
+// quantile on DOF degrees of freedom when Scaled, the normal quantile
+// otherwise. Open (NaN) without CI.
 func (l *Line) QCI() fit.Interval {
 	if !l.HasCI {
 		return fit.Interval{Lo: nan, Hi: nan}
