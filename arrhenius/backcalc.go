@@ -163,6 +163,17 @@ type MonteCarlo struct {
 	NonPhysical float64 `json:"nonphysical_fraction"`
 }
 
+// MarshalJSON writes non-finite numbers (an open end) as null.
+func (m MonteCarlo) MarshalJSON() ([]byte, error) {
+	return json.Marshal(struct {
+		Draws       int          `json:"draws"`
+		Seed        uint64       `json:"seed"`
+		Median      *float64     `json:"median"`
+		CI          fit.Interval `json:"ci"`
+		NonPhysical float64      `json:"nonphysical_fraction"`
+	}{m.Draws, m.Seed, num(m.Median), m.CI, m.NonPhysical})
+}
+
 // Solution is a back-calculated exposure.
 type Solution struct {
 	// SolveFor is "temperature", "time" or "hold-temperature" (level of a log).

@@ -199,3 +199,35 @@ func FuzzReadReport(f *testing.F) {
 		}
 	})
 }
+
+// TestJSONWithoutIntervals: results without intervals or with open ends
+// still marshal, with null where a number is undefined.
+func TestJSONWithoutIntervals(t *testing.T) {
+	two, err := TwoStage([]Point{{ID: "a", T: 1150, LnD: -26, VarLnD: 0.01}, {ID: "b", T: 1250, LnD: -24.5, VarLnD: 0.01}}, &Options{TemperatureSigma: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	b := mustJSON(t, two)
+	for _, want := range []string{`"ci":[null,null]`, `"birge_ratio":null`, `"halfwidth_Q":null`} {
+		if !strings.Contains(string(b), want) {
+			t.Errorf("%s missing in %s", want, b)
+		}
+	}
+	cal := testCalibration(t)
+	cal.Cov[1][1] = 4 * cal.Q * cal.Q // Q not significant: open ends, many non-physical draws
+	cal.Cov[0][1] = 0
+	s, err := SolveTemperature(Observation{LnDt: simLnD(1200) + math.Log(3600)}, cal, &SolveOptions{Time: 3600, Method: "both", Draws: 1000})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if b := mustJSON(t, s); !strings.Contains(string(b), `"ci":[null,null]`) {
+		t.Errorf("open interval not null: %s", b)
+	}
+	p, err := PredictProfile(two.Calibration(), Exposure{Temperature: 1200, Time: 3600}, 1, 0.2, []float64{0, 1e-4}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if b := mustJSON(t, p); !strings.Contains(string(b), `"lo":null`) {
+		t.Errorf("profile band not null: %s", b)
+	}
+}
