@@ -4,6 +4,8 @@ import (
 	"errors"
 	"math"
 	"testing"
+
+	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // TestErfWeightedAgainstScipy checks the σ-weighted fit and both covariance
@@ -105,6 +107,37 @@ func TestSigmaScaleInvariance(t *testing.T) {
 			}
 			if e := refRel(eb.StdErr, factor*ea.StdErr); e > 1e-7 {
 				t.Errorf("abs=%v %s stderr: %.10g with 3σ, want %.10g", abs, name, eb.StdErr, factor*ea.StdErr)
+			}
+		}
+	}
+}
+
+// TestAbsoluteSigmaWaldQuantile: with σ taken as known the variance is not
+// estimated, so the Wald interval is ± z(0.975)·se, the normal quantile, as
+// the profile cutoff (profileCutoff) and the curve band (bandQuantile) of
+// this package already use; with the scaled covariance it is Student t with
+// the residual degrees of freedom. Common practice, no source.
+func TestAbsoluteSigmaWaldQuantile(t *testing.T) {
+	p := readRefProfile(t, "erf_weighted.csv")
+	for _, tc := range []struct {
+		abs bool
+		q   float64
+	}{
+		{false, distuv.StudentsT{Mu: 0, Sigma: 1, Nu: 47}.Quantile(0.975)},
+		{true, distuv.UnitNormal.Quantile(0.975)},
+	} {
+		r, err := Fit(p, Options{CI: "wald", AbsoluteSigma: tc.abs})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, name := range erfRefNames {
+			e := r.Param(name)
+			half, se := (e.CI.Hi-e.CI.Lo)/2, e.StdErr
+			if name == "D" {
+				half, se = math.Log(e.CI.Hi/e.CI.Lo)/2, e.StdErrLn
+			}
+			if got := half / se; math.Abs(got-tc.q) > 1e-9 {
+				t.Errorf("absolute=%v %s: Wald half-width %.6f standard errors, want %.6f", tc.abs, name, got, tc.q)
 			}
 		}
 	}
