@@ -93,6 +93,25 @@ func TestProfileOpenUpperBound(t *testing.T) {
 	if len(back.CI) != 2 || back.CI[0] == nil || back.CI[1] != nil {
 		t.Errorf("JSON of D: %s; want ci [number, null]", b)
 	}
+	// The same through the whole result, as `fickfit fit --format json` writes it.
+	whole, err := json.Marshal(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var doc struct {
+		Params []struct {
+			Name string     `json:"name"`
+			CI   []*float64 `json:"ci"`
+		} `json:"params"`
+	}
+	if err := json.Unmarshal(whole, &doc); err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range doc.Params {
+		if e.Name == "D" && (len(e.CI) != 2 || e.CI[0] == nil || e.CI[1] != nil) {
+			t.Errorf("result JSON: D ci %v, want [number, null]", e.CI)
+		}
+	}
 	var iv Interval
 	if err := json.Unmarshal([]byte(`[1e-11,null]`), &iv); err != nil || iv.Lo != 1e-11 || !math.IsNaN(iv.Hi) || !iv.Open() {
 		t.Errorf("[1e-11,null] reads back as %v (err %v), want {1e-11 NaN}", iv, err)
