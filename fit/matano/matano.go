@@ -1,0 +1,396 @@
+// Package matano extracts a concentration-dependent diffusivity D(C) from
+// the profile of a diffusion couple (two bodies of different composition
+// joined and annealed), by the Boltzmann–Matano and Sauer–Freise analyses.
+//
+// Both rest on the Boltzmann transformation λ = x/√t, valid for an infinite
+// couple with D depending on C alone and fixed end compositions. The
+// measured profile is first replaced by a smooth monotone curve (a sum of
+// error functions, see Smooth), whose slope and integrals are then exact;
+// the confidence band comes from a seeded residual bootstrap of that fit.
+package matano
+
+import (
+	"encoding/json"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"runtime"
+	"sort"
+	"strings"
+	"sync"
+
+	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/profile"
+)
+
+// Method names, as written in Result.Method and accepted in Options.Method.
+const (
+	BoltzmannMatano = "boltzmann-matano"
+	SauerFreise     = "sauer-freise"
+)
+
+// Options control an analysis. The zero value runs Boltzmann–Matano at 19
+// levels between the end compositions with a 95 % bootstrap band of 1000
+// replicates, seed 0.
+type Options struct {
+	// Method is BoltzmannMatano (the default when "") or SauerFreise.
+	Method string
+	// Concentrations are the levels (profile unit) at which D is wanted;
+	// nil means 5 %, 10 %, …, 95 % of the way from CL to CR (the fitted
+	// end compositions).
+	Concentrations []float64
+	// MaxTerms is the largest number of erf terms in the smoother; 0 means 3.
+	// The number actually used is chosen by AICc.
+	MaxTerms int
+	// Level is the confidence level of the band; 0 means 0.95.
+	Level float64
+	// Resamples is the number of bootstrap replicates; 0 means 1000; a
+	// negative value gives no band (ci null).
+	Resamples int
+	// Seed seeds the bootstrap: replicate b draws from PCG(Seed, b), so the
+	// band does not depend on the number of workers.
+	Seed uint64
+	// Workers is the number of goroutines for the bootstrap; 0 means
+	// runtime.GOMAXPROCS(0).
+	Workers int
+}
+
+// Point is D at one concentration, with its bootstrap interval.
+type Point struct {
+	C  float64      // concentration, profile unit
+	D  float64      // m²/s; NaN (null in JSON) where it cannot be evaluated
+	CI fit.Interval // bootstrap percentile interval; open ends are null
+}
+
+// MarshalJSON writes {"C", "D", "ci"} with null for a non-finite D.
+func (p Point) MarshalJSON() ([]byte, error) {
+	return json.Marshal(struct {
+		C  float64      `json:"C"`
+		D  *float64     `json:"D"`
+		CI fit.Interval `json:"ci"`
+	}{p.C, num(p.D), p.CI})
+}
+
+// UnmarshalJSON reads null D as NaN.
+func (p *Point) UnmarshalJSON(b []byte) error {
+	var v struct {
+		C  float64      `json:"C"`
+		D  *float64     `json:"D"`
+		CI fit.Interval `json:"ci"`
+	}
+	if err := json.Unmarshal(b, &v); err != nil {
+		return err
+	}
+	p.C, p.CI, p.D = v.C, v.CI, math.NaN()
+	if v.D != nil {
+		p.D = *v.D
+	}
+	return nil
+}
+
+// Result is D(C) from one couple. Its JSON form is
+//
+//	{"id", "method", "matano_plane_m", "points": [{"C", "D", "ci": [lo, hi]}], "warnings": [{"code", "message"}]}
+//
+// with D in m²/s. matano_plane_m is the position of the Matano plane in the
+// profile's depth coordinate; it is null for Sauer–Freise, which does not
+// use one.
+type Result struct {
+	ID          string        `json:"id"`
+	Method      string        `json:"method"`
+	MatanoPlane *float64      `json:"matano_plane_m"`
+	Points      []Point       `json:"points"`
+	Warnings    []fit.Warning `json:"warnings"`
+
+	// Smooth is the fitted smoothing curve (for plots and checks).
+	Smooth *Smooth `json:"-"`
+	// Time is the anneal time used, s.
+	Time float64 `json:"-"`
+	// RMSE is the root-mean-square residual of the smoother (profile unit).
+	RMSE float64 `json:"-"`
+}
+
+// warn appends a warning.
+func (r *Result) warn(code, format string, args ...any) {
+	r.Warnings = append(r.Warnings, fit.Warning{Code: code, Message: fmt.Sprintf(format, args...)})
+}
+
+// Analyze computes D(C) from the couple profile p (Depth in m, any origin
+// and either orientation) after an anneal of t seconds (0 takes p.Time).
+func Analyze(p *profile.Profile, t float64, o Options) (*Result, error) {
+	if p == nil {
+		return nil, fmt.Errorf("%w: no profile given", fit.ErrBadInput)
+	}
+	where := p.ID
+	if p.Source != "" && p.Source != p.ID {
+		where = fmt.Sprintf("%s (%s)", p.ID, p.Source)
+	}
+	r, err := analyze(p, t, o)
+	if err != nil {
+		return nil, fmt.Errorf("profile %s: %w", where, err)
+	}
+	return r, nil
+}
+
+func analyze(p *profile.Profile, t float64, o Options) (*Result, error) {
+	bad := func(format string, args ...any) error {
+		return fmt.Errorf("%w: "+format, append([]any{fit.ErrBadInput}, args...)...)
+	}
+	method := strings.ToLower(strings.TrimSpace(o.Method))
+	switch method {
+	case "", "matano", BoltzmannMatano:
+		method = BoltzmannMatano
+	case "sauer", SauerFreise:
+		method = SauerFreise
+	default:
+		return nil, bad("unknown method %q (use %s or %s)", o.Method, BoltzmannMatano, SauerFreise)
+	}
+	if t == 0 {
+		t = p.Time
+	}
+	if !(t > 0) || math.IsInf(t, 0) {
+		return nil, bad("the anneal time is not given (%g s); set it in the file (# time: 4 h) or on the command line", t)
+	}
+	n := len(p.Depth)
+	if len(p.Value) != n {
+		return nil, bad("%d depths but %d values", n, len(p.Value))
+	}
+	kmax := o.MaxTerms
+	if kmax == 0 {
+		kmax = 3
+	}
+	if kmax < 1 || kmax > 6 {
+		return nil, bad("MaxTerms = %d; use 1 to 6 (0 gives 3)", o.MaxTerms)
+	}
+	if n < 8 {
+		return nil, bad("%d points are too few for a Matano analysis; measure at least 8 (better 30 or more) across the couple", n)
+	}
+	level := o.Level
+	if level == 0 {
+		level = 0.95
+	}
+	if !(level > 0 && level < 1) {
+		return nil, bad("confidence level %g must lie between 0 and 1", o.Level)
+	}
+	line := func(i int) string {
+		if i < len(p.Line) && p.Line[i] > 0 {
+			return fmt.Sprintf(" (line %d)", p.Line[i])
+		}
+		return ""
+	}
+	idx := make([]int, n)
+	for i := range idx {
+		idx[i] = i
+		if !finite(p.Depth[i]) || !finite(p.Value[i]) {
+			return nil, bad("point %d%s is not a finite number", i+1, line(i))
+		}
+	}
+	for _, c := range o.Concentrations {
+		if !finite(c) {
+			return nil, bad("requested concentration %g is not a finite number", c)
+		}
+	}
+	sort.SliceStable(idx, func(a, b int) bool { return p.Depth[idx[a]] < p.Depth[idx[b]] })
+	x, y := make([]float64, n), make([]float64, n)
+	for k, i := range idx {
+		x[k], y[k] = p.Depth[i], p.Value[i]
+	}
+	if x[n-1] == x[0] {
+		return nil, bad("all points are at the same depth %g m", x[0])
+	}
+
+	sm, err := chooseSmooth(x, y, kmax)
+	if err != nil {
+		return nil, err
+	}
+	r := &Result{ID: p.ID, Method: method, Smooth: sm.s, Time: t, Points: []Point{}, Warnings: []fit.Warning{}}
+	r.RMSE = math.Sqrt(sm.rss / float64(n-(3*sm.k+1)))
+	if method == BoltzmannMatano {
+		xm := sm.s.MatanoPlane()
+		r.MatanoPlane = &xm
+	}
+	cs := o.Concentrations
+	if cs == nil {
+		for k := 1; k <= 19; k++ {
+			cs = append(cs, sm.s.CL+float64(k)*0.05*(sm.s.CR-sm.s.CL))
+		}
+	}
+	dAt := func(s *Smooth, c float64) float64 {
+		yy := (c - s.CL) / (s.CR - s.CL)
+		xx, ok := s.Position(yy)
+		if !ok {
+			return math.NaN()
+		}
+		if method == BoltzmannMatano {
+			return s.boltzmannMatano(xx, t, s.MatanoPlane())
+		}
+		return s.sauerFreise(xx, t)
+	}
+	var outside, nearEnd []string
+	for _, c := range cs {
+		pt := Point{C: c, D: dAt(sm.s, c), CI: fit.Interval{Lo: math.NaN(), Hi: math.NaN()}}
+		yy := (c - sm.s.CL) / (sm.s.CR - sm.s.CL)
+		switch {
+		case !(yy > 0 && yy < 1):
+			outside = append(outside, fmt.Sprintf("%g", c))
+		case yy < 0.1 || yy > 0.9:
+			nearEnd = append(nearEnd, fmt.Sprintf("%.4g", c))
+		}
+		r.Points = append(r.Points, pt)
+	}
+
+	// Warnings on the data.
+	if n < 20 {
+		r.warn("few-points", "only %d points: the smoother and D(C) rest on little data; 30 or more across the couple are advisable", n)
+	}
+	if y0, y1 := sm.s.Y(x[0]), sm.s.Y(x[n-1]); y0 > 0.03 || y1 < 0.97 {
+		side := []string{}
+		if y0 > 0.03 {
+			side = append(side, fmt.Sprintf("shallow end (reached %.0f %% of the way at the first point)", 100*y0))
+		}
+		if y1 < 0.97 {
+			side = append(side, fmt.Sprintf("deep end (%.0f %% at the last point)", 100*y1))
+		}
+		r.warn("ends-not-reached", "the profile does not reach the end composition at the %s: the end levels %.4g and %.4g are extrapolated by the smoother, so the Matano plane and D near that end are uncertain; measure further out", strings.Join(side, " and the "), sm.s.CL, sm.s.CR)
+	}
+	if sm.k == 1 {
+		r.warn("constant-d", "one error-function term describes the profile: D comes out the same at every concentration (%.3g m²/s); the data do not resolve a variation of D with C", dAt(sm.s, (sm.s.CL+sm.s.CR)/2))
+	}
+	if len(outside) > 0 {
+		r.warn("outside-range", "D cannot be evaluated at %s: outside the range between the end compositions %.4g and %.4g (D is null there)", strings.Join(outside, ", "), sm.s.CL, sm.s.CR)
+	}
+	if len(nearEnd) > 0 {
+		r.warn("near-end", "at %s, within 10 %% of an end composition, D is the ratio of two small numbers (the integral and the gradient) and is poorly determined; read it with its interval", strings.Join(nearEnd, ", "))
+	}
+
+	if o.Resamples >= 0 {
+		if err := r.bootstrap(x, y, sm, cs, level, o, dAt); err != nil {
+			return nil, err
+		}
+	}
+	return r, nil
+}
+
+// bootstrap fills the intervals by residual resampling of the smoother
+// (Efron & Tibshirani, An Introduction to the Bootstrap, 1993, ch. 9):
+// centred residuals inflated by √(n/(n−p)) are drawn with replacement and
+// added to the fitted curve; the smoother (same number of terms) is refitted
+// from the fitted parameters and D recomputed at the same concentrations.
+// Intervals are plain percentiles.
+func (r *Result) bootstrap(x, y []float64, sm *smoothed, cs []float64, level float64, o Options, dAt func(*Smooth, float64) float64) error {
+	B := o.Resamples
+	if B == 0 {
+		B = 1000
+	}
+	if B < 100 {
+		return fmt.Errorf("%w: %d bootstrap resamples are too few for an interval (use at least 100; 1000 is the default; a negative number turns the band off)", fit.ErrBadInput, B)
+	}
+	workers := o.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	n, np := len(x), 3*sm.k+1
+	u := make([]float64, n)
+	for i := range x {
+		u[i] = (x[i] - sm.xc) / sm.xs
+	}
+	fitted := make([]float64, n)
+	res := make([]float64, n)
+	var mean float64
+	for i := range x {
+		fitted[i] = sm.s.At(x[i])
+		res[i] = y[i] - fitted[i]
+		mean += res[i]
+	}
+	mean /= float64(n)
+	infl := math.Sqrt(float64(n) / float64(n-np))
+	for i := range res {
+		res[i] = (res[i] - mean) * infl
+	}
+	reps := make([][]float64, B) // D at each concentration, per replicate; nil = failed
+	var wg sync.WaitGroup
+	jobs := make(chan int)
+	for w := 0; w < workers; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			ys := make([]float64, n)
+			for b := range jobs {
+				rng := rand.New(rand.NewPCG(o.Seed, uint64(b)))
+				for i := range ys {
+					ys[i] = fitted[i] + res[rng.IntN(n)]
+				}
+				sol, err := fitSmooth(u, ys, sm.k, sm.p)
+				if err != nil || !sol.Converged {
+					continue
+				}
+				s := sm.metres(sol.P)
+				d := make([]float64, len(cs))
+				for j, c := range cs {
+					d[j] = dAt(s, c)
+				}
+				reps[b] = d
+			}
+		}()
+	}
+	for b := 0; b < B; b++ {
+		jobs <- b
+	}
+	close(jobs)
+	wg.Wait()
+	failed := 0
+	for _, d := range reps {
+		if d == nil {
+			failed++
+		}
+	}
+	if failed > B/20 {
+		r.warn("bootstrap-failures", "%d of %d bootstrap refits of the smoother did not converge; the band is built from the others and may be too narrow", failed, B)
+	}
+	alpha := (1 - level) / 2
+	var wide []string
+	vals := make([]float64, 0, B)
+	for j := range cs {
+		vals = vals[:0]
+		for _, d := range reps {
+			if d != nil && finite(d[j]) {
+				vals = append(vals, d[j])
+			}
+		}
+		// A replicate whose end compositions moved past the level gives
+		// no D there; fewer than 90 % usable leaves the band open.
+		if len(vals) < (B-failed)*9/10 || len(vals) < 50 {
+			continue
+		}
+		sort.Float64s(vals)
+		iv := fit.Interval{Lo: quantile(vals, alpha), Hi: quantile(vals, 1-alpha)}
+		r.Points[j].CI = iv
+		if yy := (cs[j] - sm.s.CL) / (sm.s.CR - sm.s.CL); yy >= 0.1 && yy <= 0.9 && iv.Hi > 3*iv.Lo {
+			wide = append(wide, fmt.Sprintf("%.4g", cs[j]))
+		}
+	}
+	if len(wide) > 0 {
+		r.warn("wide-band", "the %.0f %% band spans more than a factor 3 at %s: the profile does not determine D there", 100*level, strings.Join(wide, ", "))
+	}
+	return nil
+}
+
+// quantile is the linearly interpolated sample quantile of sorted data
+// (Hyndman & Fan 1996, type 7, the default of R).
+func quantile(s []float64, p float64) float64 {
+	h := p * float64(len(s)-1)
+	lo := int(math.Floor(h))
+	if lo >= len(s)-1 {
+		return s[len(s)-1]
+	}
+	return s[lo] + (h-float64(lo))*(s[lo+1]-s[lo])
+}
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+func num(v float64) *float64 {
+	if !finite(v) {
+		return nil
+	}
+	return &v
+}
