@@ -70,7 +70,11 @@ func (r *Result) finish(sol *Solution, o Options) error {
 		}
 	}
 
+	// Known σ: the normal quantile; σ estimated from the residuals: Student t.
 	tq := tQuantile(dof, level)
+	if r.Covariance == "absolute" {
+		tq = distuv.UnitNormal.Quantile(0.5 + level/2)
+	}
 	r.Params = make([]Estimate, len(params))
 	fi := 0
 	for j, pa := range params {
