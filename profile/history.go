@@ -2,6 +2,7 @@ package profile
 
 import (
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -128,7 +129,11 @@ func (h *History) readRows(tr *textReader, ti, tc histColumn) error {
 			return err
 		}
 		t, k := ti.size.si(t), tc.scale.ToKelvin(v)
-		if !(k > 0) {
+		if math.IsInf(t, 0) {
+			return tr.org.errAt(line, ti.idx, ti.name, errorf(ErrValue, "time %s is too large", fmtNum(t)),
+				"fix the cell or remove the row")
+		}
+		if !(k > 0) || math.IsInf(k, 0) {
 			return tr.org.errAt(line, tc.idx, tc.name, errorf(ErrValue,
 				"temperature %s is %s K, not above absolute zero", fmtNum(v), fmtNum(k)), "fix the cell or remove the row")
 		}

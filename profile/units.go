@@ -109,11 +109,13 @@ func (s TemperatureScale) DeltaToKelvin(d float64) float64 {
 	return d
 }
 
+// degreeSigns removes degree signs (and their look-alikes) from a unit.
+var degreeSigns = strings.NewReplacer("℃", "c", "℉", "f", "°", "", "º", "", "˚", "")
+
 // TemperatureUnit returns the scale named by u: "K", "C", "°C", "degC",
 // "celsius", "F", "°F", "kelvin"… (case-insensitive).
 func TemperatureUnit(u string) (TemperatureScale, error) {
-	n := strings.ToLower(strings.TrimSpace(u))
-	n = strings.NewReplacer("℃", "c", "℉", "f", "°", "", "º", "", "˚", "").Replace(n)
+	n := degreeSigns.Replace(strings.ToLower(strings.TrimSpace(u)))
 	n = strings.TrimPrefix(strings.TrimPrefix(n, "degrees"), "deg")
 	n = strings.TrimSpace(n)
 	switch n {

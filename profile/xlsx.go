@@ -170,8 +170,7 @@ func readWorkbook(f *excelize.File, org origin) ([]Profile, error) {
 	return all, nil
 }
 
-// readSheet streams the rows of one sheet: metadata rows, the header row
-// (the first row with a depth column), then data rows.
+// readSheet streams the rows of one sheet through readRows.
 func readSheet(f *excelize.File, org origin) ([]Profile, error) {
 	rows, err := f.Rows(org.sheet)
 	if err != nil {
@@ -179,6 +178,19 @@ func readSheet(f *excelize.File, org origin) ([]Profile, error) {
 			"open and re-save the workbook in a spreadsheet program")
 	}
 	defer rows.Close()
+	return readRows(rows, org)
+}
+
+// rowSource is a stream of worksheet rows (excelize.Rows satisfies it).
+type rowSource interface {
+	Next() bool
+	Columns(opts ...excelize.Options) ([]string, error)
+	Error() error
+}
+
+// readRows reads metadata rows, the header row (the first row with a
+// depth column), then data rows. Row numbers count every Next.
+func readRows(rows rowSource, org origin) ([]Profile, error) {
 	var meta metaSet
 	var t *table
 	for row := 1; rows.Next(); row++ {

@@ -1,0 +1,121 @@
+package profile
+
+import (
+	"bytes"
+	"fmt"
+	"runtime"
+	"runtime/metrics"
+	"strconv"
+	"sync/atomic"
+	"testing"
+	"time"
+)
+
+// longCSV generates a long table of profiles × points rows (invented
+// numbers: a smooth decay with a per-row wobble).
+func longCSV(profiles, points int) []byte {
+	var b bytes.Buffer
+	b.WriteString("specimen,lot,temperature_C,time_h,depth_um,C_wt%,sigma\n")
+	row := make([]byte, 0, 96)
+	for p := 0; p < profiles; p++ {
+		id := "S" + strconv.Itoa(p)
+		T := strconv.Itoa(850 + p%150)
+		for i := 0; i < points; i++ {
+			row = append(row[:0], id...)
+			row = append(row, ",L"...)
+			row = strconv.AppendInt(row, int64(p%7), 10)
+			row = append(row, ',')
+			row = append(row, T...)
+			row = append(row, ",4,"...)
+			row = strconv.AppendInt(row, int64(20*(i+1)), 10)
+			row = append(row, ',')
+			row = strconv.AppendFloat(row, 0.2+0.7/float64(1+i)+0.001*float64((i*7+p)%5), 'f', 4, 64)
+			row = append(row, ",0.01\n"...)
+			b.Write(row)
+		}
+	}
+	return b.Bytes()
+}
+
+// heapSampler records the largest heap-object footprint while running.
+type heapSampler struct {
+	peak atomic.Uint64
+	stop chan struct{}
+	done chan struct{}
+}
+
+func startHeapSampler() *heapSampler {
+	s := &heapSampler{stop: make(chan struct{}), done: make(chan struct{})}
+	sample := []metrics.Sample{{Name: "/memory/classes/heap/objects:bytes"}}
+	go func() {
+		defer close(s.done)
+		t := time.NewTicker(time.Millisecond)
+		defer t.Stop()
+		for {
+			metrics.Read(sample)
+			if v := sample[0].Value.Uint64(); v > s.peak.Load() {
+				s.peak.Store(v)
+			}
+			select {
+			case <-s.stop:
+				return
+			case <-t.C:
+			}
+		}
+	}()
+	return s
+}
+
+func (s *heapSampler) finish() uint64 {
+	close(s.stop)
+	<-s.done
+	return s.peak.Load()
+}
+
+// BenchmarkReadLongCSV reads a long table of 10⁴ profiles × 50 points
+// (and 2·10⁴ × 50 = 10⁶ points). Reported: ns per point, the heap the
+// result keeps (live-MB) and the largest heap seen while reading
+// (peak-heap-MB, sampled every ms, input bytes included).
+func BenchmarkReadLongCSV(b *testing.B) {
+	for _, size := range []struct{ profiles, points int }{{10000, 50}, {20000, 50}} {
+		n := size.profiles * size.points
+		b.Run(fmt.Sprintf("%dpoints", n), func(b *testing.B) {
+			data := longCSV(size.profiles, size.points)
+			b.SetBytes(int64(len(data)))
+			runtime.GC()
+			var before runtime.MemStats
+			runtime.ReadMemStats(&before)
+			sampler := startHeapSampler()
+			var ps []Profile
+			b.ResetTimer()
+			for b.Loop() {
+				var err error
+				if ps, err = ReadCSV(bytes.NewReader(data), "long.csv"); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.StopTimer()
+			peak := sampler.finish()
+			runtime.GC()
+			var after runtime.MemStats
+			runtime.ReadMemStats(&after)
+			runtime.KeepAlive(ps)
+			if len(ps) != size.profiles {
+				b.Fatalf("%d profiles", len(ps))
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(n), "ns/point")
+			b.ReportMetric(float64(after.HeapAlloc-min(before.HeapAlloc, after.HeapAlloc))/(1<<20), "live-MB")
+			b.ReportMetric(float64(peak)/(1<<20), "peak-heap-MB")
+			runtime.KeepAlive(data)
+		})
+	}
+}
+
+// BenchmarkParseTemperature measures one metadata conversion.
+func BenchmarkParseTemperature(b *testing.B) {
+	for b.Loop() {
+		if _, err := ParseTemperature("925,5 °C"); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
