@@ -1,9 +1,3 @@
-// Package profile reads measured concentration–depth (or hardness–depth)
-// profiles from lab files and converts them to SI units.
-//
-// Every quantity inside a Profile is SI: depth in metres, temperature in
-// kelvin, time in seconds, thickness in metres. Measured values stay in the
-// file's own unit (wt%, at%, HV…), recorded in ValueUnit.
 package profile
 
 // Profile is one measured depth profile from one specimen.
