@@ -640,13 +640,21 @@ func (e *engine) step(dtau, dt, theta float64) error {
 		e.badD = false
 		return errStep
 	}
-	e.steps++
 	grad := len(e.sens) > 0
 	if e.linear {
 		e.computeLevel(cur, e.c, grad)
 	} else {
 		e.touchUp(cur, e.c, grad)
+		if grad {
+			// The sensitivities need the Newton matrix at the accepted state.
+			e.assemble(cur, theta, dtau, dt)
+			if !e.factor() {
+				copy(e.c, e.cn)
+				return errStep
+			}
+		}
 	}
+	e.steps++
 	// Book-keeping of what crossed the boundaries.
 	gNew0, gOld0 := cur.d[0]*cur.q[0], old.d[0]*old.q[0]
 	switch {
@@ -660,13 +668,6 @@ func (e *engine) step(dtau, dt, theta float64) error {
 		e.farUptake += e.vol[n-1]*(e.c[n-1]-e.cn[n-1]) + dtau*(theta*cur.d[k]*cur.q[k]+(1-theta)*old.d[k]*old.q[k])
 	}
 	if grad {
-		if !e.linear {
-			e.assemble(cur, theta, dtau, dt)
-			if !e.factor() {
-				copy(e.c, e.cn)
-				return errStep
-			}
-		}
 		e.sensitivities(theta, dtau, dt)
 	}
 	// Rotate the levels: cprev2 ← cprev ← cn (the state before this step).

@@ -280,6 +280,13 @@ func TestMassBalance(t *testing.T) {
 			if rel := math.Abs(s.Gain-in) / scale; rel > 1e-6 {
 				t.Errorf("gain %.9g, inflow %.9g: relative imbalance %.3g > 1e-6", s.Gain, in, rel)
 			}
+			if c.p.Initial == nil {
+				// Content from the final profile against the initial
+				// uniform level.
+				if g := s.Content() - c.p.C0*s.Length; math.Abs(g-s.Gain) > 1e-9*scale {
+					t.Errorf("Content − C0·L = %.9g, Gain %.9g", g, s.Gain)
+				}
+			}
 		})
 	}
 }
