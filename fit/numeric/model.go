@@ -30,7 +30,8 @@ type Config struct {
 	Surface Surface
 	// Schedule multiplies D over the hold (furnace log); nil means
 	// isothermal. The fitted D is then the value at the schedule's
-	// reference temperature.
+	// reference temperature. A schedule needs the real hold time: with an
+	// unknown time (Data.Time = 1, D standing for Dt) it is meaningless.
 	Schedule Schedule
 	// SemiInfinite ignores the specimen thickness in the data. Otherwise a
 	// positive Data.Thickness makes a finite body: Faces 1 exposes one face
@@ -41,7 +42,9 @@ type Config struct {
 }
 
 // Model is the numerical solution of Fick's second law as a fit.Model
-// (name "numeric"). Its Jacobian is not a finite difference: the solver
+// (name "numeric"). Parameters, in order: D (ln scale, m²/s); k (1/value,
+// exp only); Cs (value) or beta (ln scale, m/s) and Cp (value); C0 (value).
+// Its Jacobian is not a finite difference: the solver
 // propagates the forward sensitivities ∂C/∂p through every time step (the
 // derivative of the discrete step equations, see engine.sensitivities), so
 // each Jacobian costs about one extra solve and matches the model values to
