@@ -32,24 +32,36 @@ type Output struct {
 	Inputs []string
 }
 
+// check tells whether path may be written: not a folder, not an input,
+// not an existing file unless Force.
+func (o Output) check(path string) error {
+	fi, err := os.Stat(path)
+	if errors.Is(err, fs.ErrNotExist) {
+		return nil
+	}
+	if err != nil {
+		return fmt.Errorf("%s: %w", path, err)
+	}
+	if fi.IsDir() {
+		return fmt.Errorf("%s: is a folder, not a file: choose another output name", path)
+	}
+	for _, in := range o.Inputs {
+		if ii, e := os.Stat(in); e == nil && os.SameFile(fi, ii) {
+			return fmt.Errorf("%s: %w (%s); choose another output folder", path, ErrWouldOverwriteInput, in)
+		}
+	}
+	if !o.Force {
+		return fmt.Errorf("%s: %w; use --force to replace it or choose another output folder", path, ErrExists)
+	}
+	return nil
+}
+
 // WriteFile writes path atomically with write. On any error the target is
 // untouched and the temporary file removed.
 func (o Output) WriteFile(path string, write func(io.Writer) error) (err error) {
 	dir := filepath.Dir(path)
-	if fi, statErr := os.Stat(path); statErr == nil {
-		if fi.IsDir() {
-			return fmt.Errorf("%s: is a folder, not a file: choose another output name", path)
-		}
-		for _, in := range o.Inputs {
-			if ii, e := os.Stat(in); e == nil && os.SameFile(fi, ii) {
-				return fmt.Errorf("%s: %w (%s); choose another output folder", path, ErrWouldOverwriteInput, in)
-			}
-		}
-		if !o.Force {
-			return fmt.Errorf("%s: %w; use --force to replace it or choose another output folder", path, ErrExists)
-		}
-	} else if !errors.Is(statErr, fs.ErrNotExist) {
-		return fmt.Errorf("%s: %w", path, statErr)
+	if err := o.check(path); err != nil {
+		return err
 	}
 	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
 	if err != nil {

@@ -425,12 +425,12 @@ func LotsFigure(cmp *arrhenius.Comparison, lines []arrhenius.Line, o FigureOptio
 		Name:   "lots",
 		Title:  "Lot comparison: each point's D relative to the reference lot's Arrhenius line, with the estimated ratio at the comparison temperature",
 		Width:  figWidth,
-		Height: 10 * vg.Centimeter,
+		Height: 11 * vg.Centimeter,
 	}
 	fig.paint = func(c draw.Canvas) {
 		c = drawTitle(c, "Lot comparison", sub)
+		c = legendBelow(c, legend)
 		p.Draw(c)
-		drawLegend(p.DataCanvas(c), legend, false, false)
 	}
 	return fig, nil
 }

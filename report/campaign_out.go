@@ -1,0 +1,222 @@
+package report
+
+import (
+	"bufio"
+	"encoding/csv"
+	"fmt"
+	"io"
+	"strconv"
+	"strings"
+
+	"github.com/fickfit/fickfit/arrhenius"
+	"github.com/fickfit/fickfit/fit"
+)
+
+// campaignDoc is results.json. Keys are stable; numbers are SI with the
+// unit in the key or a "unit" field; no timestamps, so that a rerun with
+// the same inputs writes the same bytes.
+type campaignDoc struct {
+	Version         string                `json:"fickfit_version"`
+	Inputs          []InputFile           `json:"inputs"`
+	Options         AuditOptions          `json:"options"`
+	Fits            []*fit.Result         `json:"fits"`
+	Failed          []Failure             `json:"failed"`
+	Arrhenius       arrheniusDoc          `json:"arrhenius"`
+	Comparison      *arrhenius.Comparison `json:"lot_comparison"`
+	ComparisonError string                `json:"lot_comparison_error,omitempty"`
+	Backcalc        []Part                `json:"backcalc"`
+	Notes           []string              `json:"notes"`
+	Cautions        []string              `json:"cautions"`
+}
+
+type arrheniusDoc struct {
+	Method string           `json:"method"`
+	By     string           `json:"by"`
+	Groups []arrhenius.Line `json:"groups"`
+	Failed []GroupFailure   `json:"failed"`
+}
+
+// WriteJSON writes the whole campaign as one JSON document: inputs with
+// SHA-256, options, every fit (as the fit command writes them), the
+// Arrhenius lines per group, the lot comparison, the back-calculated parts,
+// notes and cautions.
+func (res *CampaignResult) WriteJSON(w io.Writer) error {
+	doc := campaignDoc{
+		Version: res.Version, Inputs: nonNil(res.Inputs), Options: res.Options,
+		Fits: jsonResults(res.Fits.Results), Failed: nonNil(res.Fits.Failed),
+		Arrhenius:  arrheniusDoc{Method: res.Method, By: res.By, Groups: []arrhenius.Line{}, Failed: nonNil(res.LineErrors)},
+		Comparison: res.Comparison, ComparisonError: res.ComparisonError,
+		Backcalc: nonNil(res.Parts), Notes: nonNil(res.Notes), Cautions: nonNil(res.Cautions),
+	}
+	if res.Lines != nil {
+		doc.Arrhenius.Groups = nonNil(res.Lines.Lines)
+	}
+	return encodeJSON(w, doc)
+}
+
+// WriteArrheniusCSV writes one row per Arrhenius line: group, method,
+// n_points, n_temperatures, D0_m2_s, D0_ci_lo, D0_ci_hi, Q_J_mol, Q_ci_lo,
+// Q_ci_hi, corr_lnD0_Q, dof, birge_ratio, scaled, ci_level.
+func (res *CampaignResult) WriteArrheniusCSV(w io.Writer) error {
+	cw := csv.NewWriter(w)
+	cw.Write([]string{"group", "method", "n_points", "n_temperatures", "D0_m2_s", "D0_ci_lo", "D0_ci_hi",
+		"Q_J_mol", "Q_ci_lo", "Q_ci_hi", "corr_lnD0_Q", "dof", "birge_ratio", "scaled", "ci_level"})
+	if res.Lines != nil {
+		for _, l := range res.Lines.Lines {
+			d0, q := l.D0CI(), l.QCI()
+			cw.Write([]string{l.Group, l.Method, strconv.Itoa(len(l.Points)), strconv.Itoa(l.NTemperatures),
+				csvNumber(l.D0()), csvNumber(d0.Lo), csvNumber(d0.Hi), csvNumber(l.Q), csvNumber(q.Lo), csvNumber(q.Hi),
+				csvNumber(l.Corr()), strconv.Itoa(l.DOF), csvNumber(l.BirgeRatio), strconv.FormatBool(l.Scaled), csvNumber(l.Level)})
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// WriteBackcalcCSV writes one row per part marked unknown: id, lot,
+// solve_for, temperature_K, temperature_ci_lo, temperature_ci_hi, time_s,
+// time_ci_lo, time_ci_hi, ci_method, ci_level, calibration_group, error.
+func (res *CampaignResult) WriteBackcalcCSV(w io.Writer) error {
+	cw := csv.NewWriter(w)
+	cw.Write([]string{"id", "lot", "solve_for", "temperature_K", "temperature_ci_lo", "temperature_ci_hi",
+		"time_s", "time_ci_lo", "time_ci_hi", "ci_method", "ci_level", "calibration_group", "error"})
+	for _, p := range res.Parts {
+		row := []string{p.ID, p.Lot, p.SolveFor, "", "", "", "", "", "", "", "", p.Group, p.Error}
+		if s := p.Solution; s != nil {
+			row[3], row[6] = csvNumber(s.Temperature.Value), csvNumber(s.Time.Value)
+			if !s.Temperature.Given {
+				row[4], row[5], row[9] = csvNumber(s.Temperature.CI.Lo), csvNumber(s.Temperature.CI.Hi), s.Temperature.Method
+			}
+			if !s.Time.Given {
+				row[7], row[8], row[9] = csvNumber(s.Time.CI.Lo), csvNumber(s.Time.CI.Hi), s.Time.Method
+			}
+			row[10] = csvNumber(s.Level)
+		}
+		cw.Write(row)
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// DText writes D with its interval for a summary line:
+// "7.61 × 10⁻¹² m²/s (7.6 µm²/s), 95 % CI 7.41–7.82 × 10⁻¹²".
+func DText(e *fit.Estimate, level float64) string {
+	if e == nil {
+		return "n/a"
+	}
+	s := Estimate(e.Value, e.CI, level, e.Unit)
+	if e.Unit == "m2/s" {
+		if alt := DAlternative(e.Value, e.CI); alt != "" {
+			i := strings.Index(s, "m²/s") + len("m²/s")
+			s = s[:i] + " (" + alt + ")" + s[i:]
+		}
+	}
+	return s
+}
+
+// D0Text writes a pre-exponential factor with its interval, in m²/s with cm²/s beside.
+func D0Text(l *arrhenius.Line) string {
+	ci := l.D0CI()
+	s := Estimate(l.D0(), ci, l.Level, "m2/s")
+	if !finite(ci.Lo) && !finite(ci.Hi) {
+		s = Sig(l.D0(), 3) + " m²/s (no interval: fewer than three temperatures)"
+	}
+	return s
+}
+
+// PartText writes a back-calculated result in one line.
+func PartText(p Part, u TempUnit) string {
+	if p.Solution == nil {
+		return "not back-calculated: " + p.Error
+	}
+	s := p.Solution
+	if p.SolveFor == "time" {
+		return "t = " + DurationEstimate(s.Time.Value, s.Time.CI, s.Level) + " at " + Temperature(s.Temperature.Value, u)
+	}
+	return "T = " + TemperatureEstimate(s.Temperature.Value, s.Temperature.CI, s.Level, u) + " for " + Duration(s.Time.Value)
+}
+
+// WriteSummary writes the short text summary for the terminal: a table of
+// the profiles, the Arrhenius lines, the lot comparison, the back-calculated
+// parts, notes and cautions.
+func (res *CampaignResult) WriteSummary(w io.Writer, o TextOptions) error {
+	bw := bufio.NewWriter(w)
+	u := o.TempUnit
+	nfiles := len(res.Inputs)
+	fmt.Fprintf(bw, "fickfit %s — %d profiles from %d files: %d fitted, %d not fitted\n\n",
+		res.Version, len(res.Profiles), nfiles, len(res.Fits.Results), len(res.Fits.Failed))
+	level := res.Options.Level
+	tb := Table{Header: []string{"id", "lot", "T", "t", "model", "D (m²/s)", Level(level) + " CI", "R²", "warnings"},
+		Align: []Align{Left, Left, Right, Right, Left, Right, Left, Right, Left}, Indent: "  "}
+	for _, r := range res.Fits.Results {
+		d := r.Param("D")
+		dv, ci := "", ""
+		if d != nil {
+			last := LastDigit(d.Value, d.CI)
+			dv, ci = Number(d.Value, last), IntervalAt(d.Value, d.CI, last)
+			if r.Time == 0 {
+				dv += " (Dt, m²)"
+			}
+		}
+		var codes []string
+		for _, wn := range r.Warnings {
+			codes = append(codes, wn.Code)
+		}
+		tb.Add(r.ID, r.Lot, TemperatureShort(r.Temperature, u), Duration(r.Time), r.Model, dv, ci, r2Text(r.Stats.R2), strings.Join(codes, ", "))
+	}
+	bw.WriteString("Profiles\n")
+	tb.WriteTo(bw)
+	for _, f := range res.Fits.Failed {
+		writeWrapped(bw, "  not fitted: "+f.ID+": ", f.Error, o.width())
+	}
+	if res.Lines != nil && len(res.Lines.Lines) > 0 {
+		fmt.Fprintf(bw, "\nArrhenius lines (%s, %s CI)\n", res.Method, Level(level))
+		for i := range res.Lines.Lines {
+			l := &res.Lines.Lines[i]
+			writeParts(bw, "  ", []string{groupLabel(*l) + ":", "D0 = " + D0Text(l) + ";", "Q = " + QText(l.Q, l.QCI(), l.Level) + ";",
+				fmt.Sprintf("%d points at %d temperatures;", len(l.Points), l.NTemperatures), "Birge ratio " + Number(l.BirgeRatio, -2)}, " ", o.width())
+			for _, wn := range l.Warnings {
+				writeWrapped(bw, "      ! ", wn.Message, o.width())
+			}
+		}
+	}
+	for _, f := range res.LineErrors {
+		writeWrapped(bw, "  no line for "+f.Group+": ", f.Error, o.width())
+	}
+	if c := res.Comparison; c != nil {
+		fmt.Fprintf(bw, "\nLot comparison by %s\n", c.By)
+		writeWrapped(bw, "  ", c.Verdict, o.width())
+		for _, r := range c.Ratios {
+			writeWrapped(bw, "  ", fmt.Sprintf("D(%s) / D(%s) at %s = %s, p = %s", r.Group, r.Reference, Temperature(r.TRef, u),
+				ratioText(r.Value, r.CI, c.Level), Sig(r.P, 2)), o.width())
+		}
+	} else if res.ComparisonError != "" {
+		writeWrapped(bw, "\nLot comparison not possible: ", res.ComparisonError, o.width())
+	}
+	if len(res.Parts) > 0 {
+		bw.WriteString("\nBack-calculated parts (marked unknown; not used for the calibration)\n")
+		for _, p := range res.Parts {
+			head := "  " + p.ID
+			if p.Lot != "" {
+				head += " (lot " + p.Lot + ")"
+			}
+			writeWrapped(bw, head+": ", PartText(p, u), o.width())
+			if p.Solution != nil {
+				for _, wn := range p.Solution.Warnings {
+					writeWrapped(bw, "      ! ", wn.Message, o.width())
+				}
+			}
+		}
+	}
+	if len(res.Notes) > 0 {
+		bw.WriteString("\nNotes\n")
+		for _, n := range res.Notes {
+			writeWrapped(bw, "  - ", n, o.width())
+		}
+	}
+	if !o.NoCautions {
+		bw.WriteString("\n")
+		writeCautions(bw, res.Cautions, o.width())
+	}
+	return bw.Flush()
+}
