@@ -14,12 +14,12 @@ import (
 // htmlProfile is one profile's section of the HTML report.
 type htmlProfile struct {
 	ID, Anchor, Lot, Source, Conditions, Short, Model, ModelName, Interval string
-	D, R2                                                string
-	SVG                                                  template.HTML
-	Params                                               []paramText
-	Stats                                                []string
-	Warnings                                             []string
-	Unknown                                              bool
+	D, R2                                                                  string
+	SVG                                                                    template.HTML
+	Params                                                                 []paramText
+	Stats                                                                  []string
+	Warnings                                                               []string
+	Unknown                                                                bool
 }
 
 type htmlLine struct {
@@ -31,8 +31,8 @@ type htmlRatio struct{ Text string }
 
 type htmlPart struct {
 	ID, Anchor, Lot, Result string
-	Warnings        []string
-	Failed          bool
+	Warnings                []string
+	Failed                  bool
 }
 
 type htmlView struct {
