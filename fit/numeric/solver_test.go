@@ -505,7 +505,9 @@ func TestBadInput(t *testing.T) {
 
 func TestNewtonSplitsHardSteps(t *testing.T) {
 	// A steep law (D rising ×e¹⁰ over the range) with very few steps: the
-	// solver must split steps rather than fail, and stay conservative.
+	// solver must split steps rather than fail, and stay conservative
+	// (self-check of the step control; conservation as in TestMassBalance,
+	// common practice, no source).
 	s, err := Solve(Problem{DC: Exp{D: 1e-12, K: 10, Cref: 0}, Time: 3600, C0: 0, Cs: 1, Surface: SurfaceMassTransfer, Beta: 1e-5, Cp: 1}, Options{Steps: 8, MaxNewton: 4})
 	if err != nil {
 		t.Fatal(err)
