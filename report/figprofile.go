@@ -182,9 +182,12 @@ func ProfileFigure(r *fit.Result, o FigureOptions) (*Figure, error) {
 
 	fig := &Figure{
 		Name:   "profile-" + fileSafe(r.ID),
-		Title:  fmt.Sprintf("Profile %s: measured %s against depth with the fitted %s curve, its %s confidence band and the residuals", r.ID, valueLabel(r), r.Model, level),
+		Title:  fmt.Sprintf("Profile %s: measured %s against depth with the fitted %s curve and the residuals", r.ID, valueLabel(r), r.Model),
 		Width:  figWidth,
 		Height: figHeight,
+	}
+	if haveBand {
+		fig.Title = strings.Replace(fig.Title, " curve and", " curve, its "+level+" confidence band and", 1)
 	}
 	fig.paint = func(c draw.Canvas) {
 		c = drawTitle(c, title, strings.Join(sub, " · "))

@@ -4,6 +4,9 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
 	"testing"
 
 	"github.com/fickfit/fickfit/fit"
@@ -116,4 +119,48 @@ func fitted(t testing.TB, ps []profile.Profile, o fit.Options) []*fit.Result {
 		}
 	}
 	return rs
+}
+
+// writeCampaignFiles writes an invented campaign as input files in dir:
+// lot L1 as one CSV per profile with metadata lines, lot L2 as one long
+// table, and the unknown part as its own file. It returns the paths.
+func writeCampaignFiles(t testing.TB, dir string, seed uint64, reps int) []string {
+	t.Helper()
+	ps := campaignProfiles(seed, reps)
+	var paths []string
+	var long strings.Builder
+	long.WriteString("specimen,lot,temperature_K,time_s,depth_um,C_wt%\n")
+	for _, p := range ps {
+		if p.Lot == "L2" {
+			for i := range p.Depth {
+				fmt.Fprintf(&long, "%s,%s,%.2f,%g,%.3f,%.4f\n", p.ID, p.Lot, p.Temperature, p.Time, p.Depth[i]*1e6, p.Value[i])
+			}
+			continue
+		}
+		var b strings.Builder
+		fmt.Fprintf(&b, "# id: %s\n# lot: %s\n# quantity: C\n", p.ID, p.Lot)
+		if p.Temperature > 0 {
+			fmt.Fprintf(&b, "# temperature: %.2f K\n", p.Temperature)
+		}
+		if p.Time > 0 {
+			fmt.Fprintf(&b, "# time: %g s\n", p.Time)
+		}
+		if u := p.Meta["unknown"]; u != "" {
+			fmt.Fprintf(&b, "# unknown: %s\n", u)
+		}
+		b.WriteString("depth_mm,C_wt%\n")
+		for i := range p.Depth {
+			fmt.Fprintf(&b, "%.4f,%.4f\n", p.Depth[i]*1e3, p.Value[i])
+		}
+		path := filepath.Join(dir, p.ID+".csv")
+		if err := os.WriteFile(path, []byte(b.String()), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		paths = append(paths, path)
+	}
+	lp := filepath.Join(dir, "long-L2.csv")
+	if err := os.WriteFile(lp, []byte(long.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return append(paths, lp)
 }

@@ -409,22 +409,25 @@ func (x *xlWriter) profileSheet(s string, r *fit.Result, u TempUnit) {
 	if x.err != nil || n == 0 {
 		return
 	}
+	// Series names refer to header cells: a literal name would be stored
+	// as a formula, which spreadsheet programs reject.
+	name := func(col int) string { return fmt.Sprintf("%s!$%s$1", quoteSheet(s), colName(col)) }
 	series := []excelize.ChartSeries{{
-		Name: "measured", Categories: rng(s, dc, 2, n+1), Values: rng(s, dc+1, 2, n+1),
+		Name: name(dc + 1), Categories: rng(s, dc, 2, n+1), Values: rng(s, dc+1, 2, n+1),
 		Marker: excelize.ChartMarker{Symbol: "circle", Size: 5, Fill: solid("FFFFFF"), Border: excelize.LineOptions{Type: excelize.LineSolid, Fill: solid(xlHex(colData)), Width: 1}},
 		Line:   excelize.LineOptions{Type: excelize.LineNone}, Fill: solid(xlHex(colData)),
 	}}
 	if cerr == nil {
 		series = append(series,
-			excelize.ChartSeries{Name: "fitted (" + r.Model + ")", Categories: rng(s, dc+5, 2, m+1), Values: rng(s, dc+6, 2, m+1),
+			excelize.ChartSeries{Name: name(dc + 6), Categories: rng(s, dc+5, 2, m+1), Values: rng(s, dc+6, 2, m+1),
 				Marker: excelize.ChartMarker{Symbol: "none"}, Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 1.75, Smooth: true}, Fill: solid(xlHex(colFit))},
-			excelize.ChartSeries{Name: Level(r.CILevel) + " band", Categories: rng(s, dc+5, 2, m+1), Values: rng(s, dc+7, 2, m+1),
+			excelize.ChartSeries{Name: name(dc + 7), Categories: rng(s, dc+5, 2, m+1), Values: rng(s, dc+7, 2, m+1),
 				Marker: excelize.ChartMarker{Symbol: "none"}, Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 0.75, Dash: excelize.LineDashDash, Smooth: true}, Fill: solid(xlHex(tint(colFit, 0.55)))},
-			excelize.ChartSeries{Name: Level(r.CILevel) + " band (upper)", Categories: rng(s, dc+5, 2, m+1), Values: rng(s, dc+8, 2, m+1),
+			excelize.ChartSeries{Name: name(dc + 8), Categories: rng(s, dc+5, 2, m+1), Values: rng(s, dc+8, 2, m+1),
 				Marker: excelize.ChartMarker{Symbol: "none"}, Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 0.75, Dash: excelize.LineDashDash, Smooth: true}, Fill: solid(xlHex(tint(colFit, 0.55)))},
 		)
 	} else {
-		series = append(series, excelize.ChartSeries{Name: "fitted", Categories: rng(s, dc, 2, n+1), Values: rng(s, dc+2, 2, n+1),
+		series = append(series, excelize.ChartSeries{Name: name(dc + 2), Categories: rng(s, dc, 2, n+1), Values: rng(s, dc+2, 2, n+1),
 			Marker: excelize.ChartMarker{Symbol: "none"}, Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 1.75}, Fill: solid(xlHex(colFit))})
 	}
 	zero := 0.0
@@ -465,12 +468,14 @@ func (x *xlWriter) arrheniusSheet(res *CampaignResult, u TempUnit) {
 	}
 	pr := 4 + len(lines)
 	x.header(s, pr, "group", "id", "T ("+u.Symbol()+")", "T (K)", "10⁴/T (1/K)", "D (m²/s)", "D CI low (m²/s)", "D CI high (m²/s)",
-		"ln D", "ln D on line", "residual (ln D)")
+		"ln D", "ln D on line", "residual (ln D)", "chart series")
 	row := pr + 1
 	type span struct{ r0, r1 int }
 	var spans []span
 	for _, l := range lines {
 		r0 := row
+		x.set(s, 12, row, groupLabel(l), 0)
+		x.set(s, 12, row+1, groupLabel(l)+" line", 0)
 		for _, p := range l.Points {
 			lo, hi := pointCI(p.Point)
 			x.set(s, 1, row, groupLabel(l), 0)
@@ -488,25 +493,25 @@ func (x *xlWriter) arrheniusSheet(res *CampaignResult, u TempUnit) {
 		}
 		spans = append(spans, span{r0, row - 1})
 	}
-	x.widths(s, 16, 18, 10, 10, 12, 12, 14, 14, 10, 12, 14, 11, 8)
+	x.widths(s, 16, 18, 10, 10, 12, 12, 14, 14, 10, 12, 14, 16, 8)
 	if x.err != nil {
 		return
 	}
 	var series []excelize.ChartSeries
-	for i, l := range lines {
+	for i := range lines {
 		col := xlHex(seriesColor(i))
 		sp := spans[i]
 		if sp.r1 < sp.r0 {
 			continue
 		}
 		series = append(series,
-			excelize.ChartSeries{Name: groupLabel(l), Categories: rng(s, 5, sp.r0, sp.r1), Values: rng(s, 9, sp.r0, sp.r1),
+			excelize.ChartSeries{Name: fmt.Sprintf("%s!$L$%d", quoteSheet(s), sp.r0), Categories: rng(s, 5, sp.r0, sp.r1), Values: rng(s, 9, sp.r0, sp.r1),
 				Marker: excelize.ChartMarker{Symbol: []string{"circle", "square", "triangle", "diamond"}[i%4], Size: 6, Fill: solid(col), Border: excelize.LineOptions{Type: excelize.LineSolid, Fill: solid(col)}},
 				Line:   excelize.LineOptions{Type: excelize.LineNone}, Fill: solid(col)},
-			excelize.ChartSeries{Name: groupLabel(l) + " fitted line", Categories: rng(s, 5, sp.r0, sp.r1), Values: rng(s, 10, sp.r0, sp.r1),
+			excelize.ChartSeries{Name: fmt.Sprintf("%s!$L$%d", quoteSheet(s), sp.r0+1), Categories: rng(s, 5, sp.r0, sp.r1), Values: rng(s, 10, sp.r0, sp.r1),
 				Marker: excelize.ChartMarker{Symbol: "none"}, Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 1.5}, Fill: solid(col)})
 	}
-	x.err = x.f.AddChart(s, cell(13, pr), &excelize.Chart{
+	x.err = x.f.AddChart(s, cell(14, pr), &excelize.Chart{
 		Type: excelize.Scatter, Series: series,
 		Title:     excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Arrhenius plot: ln D against 10⁴/T"}}},
 		Legend:    excelize.ChartLegend{Position: "bottom"},
