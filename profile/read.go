@@ -64,7 +64,10 @@ func ReadCSV(r io.Reader, name string) ([]Profile, error) {
 // baseID is the file's base name without its extension.
 func baseID(name string) string {
 	b := filepath.Base(name)
-	return strings.TrimSuffix(b, filepath.Ext(b))
+	if id := strings.TrimSuffix(b, filepath.Ext(b)); id != "" && id != "." && id != string(filepath.Separator) {
+		return id
+	}
+	return "profile"
 }
 
 // readFile reads one file by its extension.

@@ -102,6 +102,9 @@ func TestReadCSVErrors(t *testing.T) {
 		{"# temperature_sigma: -3 K\ndepth_mm,C_wt%\n0.1,0.8\n", ErrValue, 1, "negative"},
 		{"\xff\xfed\x00", ErrColumn, 1, "one column"},
 		{"PK\x03\x04rest", ErrFormat, 0, "zip"},
+		{"0.1,0.8\n0.2,0.7\n", ErrColumn, 1, "the first row holds numbers"},
+		{"Carbon profile A3\ndepth_mm,C_wt%\n0.1,0.8\n", ErrColumn, 1, "title line"},
+		{"id,depth_mm,C_wt%\nA\xe9,0.1,0.8\nA\xe9,0.2,x\n", ErrNumber, 3, "not a number"},
 	}
 	for _, tt := range tests {
 		_, err := ReadCSV(strings.NewReader(tt.in), "t.csv")
@@ -151,6 +154,11 @@ func TestLongTable(t *testing.T) {
 	}
 	if a := ps[1]; a.TemperatureSigma != 0 || a.Lot != "L1" || a.Meta["furnace"] != "F2" || a.Len() != 1 {
 		t.Errorf("A: %+v", a)
+	}
+	// Latin-1 text (spreadsheet exports on Windows) becomes UTF-8.
+	ps, err = ReadCSV(strings.NewReader("id;depth_mm;Ofen;C_wt%\nA\xb5;0,1;\xd6l;0,8\n"), "latin1.csv")
+	if err != nil || ps[0].ID != "Aµ" || ps[0].Meta["ofen"] != "Öl" {
+		t.Errorf("latin-1: %+v, %v", ps, err)
 	}
 }
 

@@ -186,7 +186,15 @@ func (t *table) depthHint() string {
 			conc++
 		}
 	}
+	numeric := true
+	for _, c := range t.cols {
+		if _, err := parseNumber(c.name, true); err != nil && c.kind != colIgnore {
+			numeric = false
+		}
+	}
 	switch {
+	case numeric:
+		return "the first row holds numbers: add a header row such as depth_mm,C_wt% above the data"
 	case kinds[colTime] && kinds[colTemp]:
 		return "this looks like a temperature history (time and temperature columns), not a depth profile"
 	case hardness == 1 && conc == 1:
@@ -387,7 +395,7 @@ func (t *table) profileFor(cells []string, line int) (*building, error) {
 	if t.idCol < 0 {
 		return t.profiles[0], nil
 	}
-	id := cellAt(cells, t.idCol)
+	id := latin1(cellAt(cells, t.idCol))
 	if id == "" {
 		return nil, t.org.errAt(line, t.idCol, t.cols[t.idCol].name,
 			errorf(ErrValue, "the profile id is blank"), "fill the id cell or remove the row")
@@ -497,6 +505,7 @@ func (t *table) setFixed(b *building, i int, s string, line int) error {
 	if b.p.Meta == nil {
 		b.p.Meta = map[string]string{}
 	}
+	s = latin1(s)
 	b.p.Meta[c.key] = s
 	if err := setColumnField(&b.p, t.template, *c, s, v); err != nil {
 		hint := "fix the cell"

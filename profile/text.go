@@ -60,7 +60,7 @@ func openText(r io.Reader, name string) (*textReader, error) {
 	if len(t.header) < 2 {
 		return nil, org.errAt(t.headerLine, -1, "", errorf(ErrColumn,
 			"the header %q has only one column", strings.TrimSpace(latin1(header))),
-			"separate the columns with ',', ';' or tab")
+			"separate the columns with ',', ';' or tab; a title line above the header must start with '#'")
 	}
 	return t, nil
 }
