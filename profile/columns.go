@@ -71,6 +71,9 @@ type column struct {
 	scale TemperatureScale
 	// For value candidates: what the header says was measured.
 	quantity, valueUnit string
+	// signed marks a position column (across a couple's interface), which
+	// may hold negative values.
+	signed bool
 }
 
 var idNames = map[string]bool{
@@ -154,6 +157,9 @@ func classify(h string) (column, error) {
 	switch r := normKey(root); {
 	case r == "depth" || r == "distance":
 		return withLength(c, colDepth)
+	case r == "position":
+		c.signed = true
+		return withLength(c, colDepth)
 	case r == "thickness":
 		return withLength(c, colThickness)
 	case r == "temperature_sigma" || r == "temp_sigma" || r == "sigma_temperature" || r == "sigma_t":
@@ -230,11 +236,17 @@ func unitHint(k colKind) string {
 // practice; no particular edition relied on).
 var hardnessRe = regexp.MustCompile(`^(?:(HV|HK)(\d+(?:\.\d+)?)?|HR(?:[A-HKLMPRSV]|15N|30N|45N|15T|30T|45T)|HB[WS]?(?:\d+(?:\.\d+)?/\d+(?:\.\d+)?)?)$`)
 
+// scaleSpelling drops spaces and reads a decimal comma as a point.
+var scaleSpelling = strings.NewReplacer(" ", "", ",", ".")
+
 // HardnessScale returns the normalised scale name ("HV0.5", "HRC", "HK")
 // when s names a hardness scale, and ok = false otherwise. Spaces are
 // ignored and a decimal comma in the test force is accepted ("HV 0,5").
 func HardnessScale(s string) (scale string, ok bool) {
-	t := strings.ToUpper(strings.NewReplacer(" ", "", ",", ".").Replace(strings.TrimSpace(s)))
+	if s == "" {
+		return "", false
+	}
+	t := strings.ToUpper(scaleSpelling.Replace(strings.TrimSpace(s)))
 	if hardnessRe.MatchString(t) {
 		return t, true
 	}

@@ -25,6 +25,10 @@ type Profile struct {
 	ValueUnit string
 
 	Depth []float64 // m, in file order
+	// Across is true when the depth column is a position across an
+	// interface (a diffusion couple: header "position_<unit>"); such
+	// positions may be negative.
+	Across bool
 	Value []float64 // ValueUnit
 	// Sigma holds the standard uncertainty of each value (ValueUnit);
 	// nil when the file has no sigma column.

@@ -300,3 +300,18 @@ func TestValidate(t *testing.T) {
 }
 
 func nan() float64 { var z float64; return z / z }
+
+// TestPositionAcrossCouple: a position column (a couple's profile across its
+// interface) may hold negative values; a depth column may not.
+func TestPositionAcrossCouple(t *testing.T) {
+	ps, err := ReadCSV(strings.NewReader("position_um,Ni_at%\n-200,99.1\n-100,95\n0,50\n100,5\n200,0.2\n"), "couple.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !ps[0].Across || ps[0].Depth[0] != -2e-4 {
+		t.Errorf("Across %v, depth %v", ps[0].Across, ps[0].Depth)
+	}
+	if _, err := ReadCSV(strings.NewReader("depth_um,Ni_at%\n-200,99.1\n-100,95\n0,50\n"), "neg.csv"); err == nil {
+		t.Error("negative depth accepted")
+	}
+}

@@ -435,10 +435,10 @@ func (t *table) addPoint(b *building, cells []string, line int) error {
 	if err != nil {
 		return err
 	}
-	if d < 0 {
+	if d < 0 && !t.cols[t.depthCol].signed {
 		return t.org.errAt(line, t.depthCol, t.cols[t.depthCol].name,
 			errorf(ErrValue, "depth %s is negative", fmtNum(d)),
-			"depth is measured from the surface and cannot be negative; check the sign")
+			"depth is measured from the surface and cannot be negative; check the sign (positions across a couple's interface go in a column named position_<unit>)")
 	}
 	v, err := t.number(cells, t.valueCol, line)
 	if err != nil {
@@ -578,6 +578,7 @@ func (t *table) finish() ([]Profile, error) {
 	for _, b := range t.profiles {
 		p := b.p
 		p.ValueName, p.ValueUnit = v.name, v.valueUnit
+		p.Across = t.cols[t.depthCol].signed
 		if p.Quantity == "" {
 			p.Quantity = v.quantity
 		}

@@ -71,7 +71,7 @@ func (p *Profile) validatePoint(i int) error {
 	case math.IsNaN(d) || math.IsInf(d, 0) || math.IsNaN(v) || math.IsInf(v, 0):
 		return p.fail(i, errorf(ErrNumber, "point %d is not finite (depth %v, value %v)", i+1, d, v),
 			"fix or remove the point")
-	case d < 0:
+	case d < 0 && !p.Across:
 		return p.fail(i, errorf(ErrValue, "depth %s m is negative", fmtNum(d)), "check the sign of the depth")
 	case p.Thickness > 0 && d > p.Thickness:
 		return p.fail(i, errorf(ErrValue, "depth %s mm is beyond the thickness %s mm",
