@@ -1,0 +1,114 @@
+package main
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"github.com/fickfit/fickfit/arrhenius"
+	"github.com/fickfit/fickfit/profile"
+)
+
+// calFlags choose where D0 and Q come from: an Arrhenius result file, explicit
+// values, or a row of the built-in reference table.
+type calFlags struct {
+	file      string
+	d0, q     string
+	d0u, qu   string
+	corr      float64
+	reference string
+}
+
+func (c *calFlags) register(cmd *cobra.Command) {
+	fl := cmd.Flags()
+	fl.StringVar(&c.file, "calibration", "", "Arrhenius result written by 'fickfit arrhenius --format json' (FILE or FILE:GROUP for one lot)")
+	fl.StringVar(&c.d0, "D0", "", "pre-exponential factor D0 in m²/s (with --Q)")
+	fl.StringVar(&c.q, "Q", "", "activation energy Q: J/mol, or with a unit: 148kJ/mol, 1.53eV")
+	fl.StringVar(&c.d0u, "D0-stderr", "", "standard uncertainty of D0 in m²/s (optional)")
+	fl.StringVar(&c.qu, "Q-stderr", "", "standard uncertainty of Q (optional, same units as --Q)")
+	fl.Float64Var(&c.corr, "corr", 0, "correlation of ln D0 and Q (optional, with both uncertainties)")
+	fl.StringVar(&c.reference, "reference", "", "a row of the built-in table (see 'fickfit reference')")
+}
+
+// calibration returns the chosen calibration; exactly one source must be given.
+func (c *calFlags) calibration() (arrhenius.Calibration, error) {
+	n := 0
+	for _, set := range []bool{c.file != "", c.d0 != "" || c.q != "", c.reference != ""} {
+		if set {
+			n++
+		}
+	}
+	if n != 1 {
+		return arrhenius.Calibration{}, usagef("give exactly one source of D0 and Q: --calibration FILE, --D0 with --Q, or --reference NAME")
+	}
+	switch {
+	case c.file != "":
+		path, group := c.file, ""
+		if i := strings.LastIndex(c.file, ":"); i > 1 { // keep "C:\..." whole
+			path, group = c.file[:i], c.file[i+1:]
+		}
+		return arrhenius.LoadCalibration(path, group)
+	case c.reference != "":
+		ref, err := arrhenius.LookupReference(c.reference)
+		if err != nil {
+			return arrhenius.Calibration{}, err
+		}
+		return ref.Calibration(), nil
+	}
+	if c.d0 == "" || c.q == "" {
+		return arrhenius.Calibration{}, usagef("--D0 and --Q go together")
+	}
+	d0, err := strconv.ParseFloat(c.d0, 64)
+	if err != nil {
+		return arrhenius.Calibration{}, usagef("--D0 %q is not a number (m²/s)", c.d0)
+	}
+	q, err := parseEnergy(c.q)
+	if err != nil {
+		return arrhenius.Calibration{}, usagef("--Q: %v", err)
+	}
+	var d0u, qu float64
+	if c.d0u != "" {
+		if d0u, err = strconv.ParseFloat(c.d0u, 64); err != nil {
+			return arrhenius.Calibration{}, usagef("--D0-stderr %q is not a number (m²/s)", c.d0u)
+		}
+	}
+	if c.qu != "" {
+		if qu, err = parseEnergy(c.qu); err != nil {
+			return arrhenius.Calibration{}, usagef("--Q-stderr: %v", err)
+		}
+	}
+	return arrhenius.Explicit(d0, d0u, q, qu, c.corr)
+}
+
+// parseEnergy reads an activation energy in J/mol, kJ/mol or eV (per
+// particle, converted with the Faraday constant: 1 eV = 96 485.332 J/mol,
+// CODATA 2018 exact via e·N_A).
+func parseEnergy(s string) (float64, error) {
+	t := strings.ReplaceAll(strings.TrimSpace(s), " ", "")
+	units := []struct {
+		suffix string
+		factor float64
+	}{{"kJ/mol", 1e3}, {"J/mol", 1}, {"eV", 96485.33212331001}, {"kcal/mol", 4184}}
+	factor := 1.0
+	for _, u := range units {
+		if strings.HasSuffix(strings.ToLower(t), strings.ToLower(u.suffix)) {
+			t, factor = t[:len(t)-len(u.suffix)], u.factor
+			break
+		}
+	}
+	v, err := strconv.ParseFloat(strings.Replace(t, ",", ".", 1), 64)
+	if err != nil || !(v > 0) {
+		return 0, fmt.Errorf("%q is not a positive energy (write e.g. 148kJ/mol, 148000, 1.53eV)", s)
+	}
+	return v * factor, nil
+}
+
+// readHistory reads --history when given.
+func readHistory(path string) (*profile.History, error) {
+	if path == "" {
+		return nil, nil
+	}
+	return profile.ReadHistory(path)
+}

@@ -1,0 +1,89 @@
+package main
+
+import (
+	"github.com/spf13/cobra"
+
+	"github.com/fickfit/fickfit/arrhenius"
+	"github.com/fickfit/fickfit/profile"
+)
+
+func newCompareCmd() *cobra.Command {
+	var ff fitFlags
+	var out outFlags
+	var by, ref, tref, tsigma string
+	c := &cobra.Command{
+		Use:   "compare FILE...",
+		Short: "Test whether alloy lots (or any groups) diffuse differently",
+		Long: `Fit every profile (or read the JSON of 'fickfit fit'), group the D values by
+lot (or --by COLUMN), and test by extra sums of squares whether the groups
+need separate Arrhenius lines, or a common Q with separate D0, rather than
+one common line. Reports the ratio of D between groups at a reference
+temperature with its confidence interval and a plain verdict with the p-value.`,
+		Example: `  fickfit compare coupons/ lims-export.csv --by lot --tref 925C`,
+		Args:    cobra.MinimumNArgs(1),
+		RunE: func(c *cobra.Command, args []string) error {
+			if err := out.check(args); err != nil {
+				return err
+			}
+			o := &arrhenius.CompareOptions{By: by, Reference: ref}
+			o.Level = ff.level
+			if tref != "" {
+				v, err := profile.ParseTemperature(tref)
+				if err != nil {
+					return usagef("--tref: %v", err)
+				}
+				o.TRef = v
+			}
+			if tsigma != "" {
+				v, err := profile.ParseTemperatureDelta(tsigma)
+				if err != nil {
+					return usagef("--temperature-uncertainty: %v", err)
+				}
+				o.TemperatureSigma = v
+			}
+			results, _, err := fittedInputs(args, &ff)
+			if err != nil {
+				return err
+			}
+			pts, err := arrhenius.PointsFromResults(results)
+			if err != nil {
+				return err
+			}
+			cmp, err := arrhenius.Compare(pts, o)
+			if err != nil {
+				return err
+			}
+			return out.write(func(w writer) error { return writeValue(w, out.format, cmp) })
+		},
+	}
+	ff.register(c)
+	out.register(c)
+	c.Flags().StringVar(&by, "by", "lot", "the column or metadata key that names the groups")
+	c.Flags().StringVar(&ref, "reference-group", "", "the group the others are compared with (default: the first met)")
+	c.Flags().StringVar(&tref, "tref", "", "temperature of the D ratio (default: the centre of the data in 1/T)")
+	c.Flags().StringVar(&tsigma, "temperature-uncertainty", "", "standard uncertainty of every furnace temperature (e.g. 3K)")
+	return c
+}
+
+func newReferenceCmd() *cobra.Command {
+	var out outFlags
+	c := &cobra.Command{
+		Use:   "reference",
+		Short: "List the built-in table of published D0 and Q",
+		Long: `List the built-in reference rows (solute, host, D0, Q, the temperature range
+where they apply, and the published source). Rows marked "from memory" were
+written down from the named source without checking a copy: check the
+handbook before relying on them. Use a row with --reference NAME in
+backcalc and predict.`,
+		Args: cobra.NoArgs,
+		RunE: func(c *cobra.Command, args []string) error {
+			if err := out.check(nil); err != nil {
+				return err
+			}
+			refs := arrhenius.References()
+			return out.write(func(w writer) error { return writeValue(w, out.format, refs) })
+		},
+	}
+	out.register(c)
+	return c
+}

@@ -1,0 +1,186 @@
+package main
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/fit/numeric"
+	"github.com/fickfit/fickfit/profile"
+)
+
+// fitFlags are the options shared by every command that fits profiles.
+type fitFlags struct {
+	temperature, time, thickness string
+	model                        string
+	fix, free                    []string
+	level                        float64
+	ci                           string
+	resamples                    int
+	seed                         uint64
+	cases, percentile            bool
+	absoluteSigma                bool
+	faces                        int
+	caseThreshold                string
+	decarbFraction               float64
+	hardnessCal                  string
+	cal                          *profile.Calibration
+	dc                           string
+	surface                      string
+}
+
+func (f *fitFlags) register(c *cobra.Command) {
+	fl := c.Flags()
+	fl.StringVar(&f.temperature, "temperature", "", "hold temperature, overrides the files (e.g. 925C, 1198K, 1700F)")
+	fl.StringVar(&f.time, "time", "", "hold time, overrides the files (e.g. 4h, 90min, 3600s)")
+	fl.StringVar(&f.thickness, "thickness", "", "specimen thickness for the slab model and the thin-section check (e.g. 12mm)")
+	fl.StringVar(&f.model, "model", "erf", "model: "+strings.Join(fit.ModelNames(), ", ")+", numeric (Crank–Nicolson, with --dc) or auto (best by AICc)")
+	fl.StringSliceVar(&f.fix, "fix", nil, "hold a parameter at a value, e.g. --fix Cs=1.05 --fix C0=0.2 (D in m²/s, depths in m or with a unit)")
+	fl.StringSliceVar(&f.free, "free", nil, "fit a parameter that is fixed by default, e.g. --free x0")
+	fl.Float64Var(&f.level, "level", 0.95, "confidence level of the intervals")
+	fl.StringVar(&f.ci, "ci", "profile", "interval method: profile, wald or bootstrap")
+	fl.IntVar(&f.resamples, "resamples", 2000, "bootstrap resamples (with --ci bootstrap)")
+	fl.Uint64Var(&f.seed, "seed", 1, "bootstrap random seed: the same seed gives the same interval")
+	fl.BoolVar(&f.cases, "cases", false, "bootstrap whole points (case resampling) instead of residuals")
+	fl.BoolVar(&f.percentile, "percentile", false, "plain percentile bootstrap intervals instead of BCa")
+	fl.BoolVar(&f.absoluteSigma, "absolute-sigma", false, "take the sigma column as known uncertainties (covariance not scaled by the reduced χ²)")
+	fl.IntVar(&f.faces, "faces", 2, "slab model: 2 = both faces exposed, 1 = far face sealed")
+	fl.StringVar(&f.caseThreshold, "case-threshold", "", "effective case depth at this level: 550HV1 (absolute hardness), core+50HV (margin over core), 0.35wt% (concentration)")
+	fl.Float64Var(&f.decarbFraction, "decarb-fraction", 0, "decarburization depth: where the profile has recovered this fraction of the way to the base level (e.g. 0.95)")
+	fl.StringVar(&f.dc, "dc", "const", "numeric model: concentration dependence of D: const or exp (D(C) = D·exp(k·(C − C0)))")
+	fl.StringVar(&f.surface, "surface", "fixed", "numeric model: surface condition: fixed (Cs) or masstransfer (beta, Cp)")
+	fl.StringVar(&f.hardnessCal, "hardness-calibration", "", "CSV of hardness–concentration pairs for this material: hardness profiles are converted to concentration before fitting")
+}
+
+// options turns the flags into fit.Options.
+func (f *fitFlags) options() (fit.Options, error) {
+	o := fit.Options{
+		Model: f.model, Level: f.level, CI: f.ci, AbsoluteSigma: f.absoluteSigma, Faces: f.faces,
+		Free: f.free,
+		Bootstrap: fit.BootstrapOptions{
+			Resamples: f.resamples, Seed: f.seed, Cases: f.cases, Percentile: f.percentile,
+		},
+	}
+	if !(f.level > 0 && f.level < 1) {
+		return o, usagef("--level %g must be between 0 and 1, e.g. 0.95", f.level)
+	}
+	if f.faces != 1 && f.faces != 2 {
+		return o, usagef("--faces must be 1 or 2, not %d", f.faces)
+	}
+	if f.thickness != "" {
+		v, err := profile.ParseLength(f.thickness)
+		if err != nil {
+			return o, usagef("--thickness: %v", err)
+		}
+		o.Thickness = v
+	}
+	if strings.EqualFold(f.model, "numeric") {
+		cfg := numeric.Config{DC: f.dc}
+		switch f.surface {
+		case "fixed":
+		case "masstransfer":
+			cfg.Surface = numeric.SurfaceMassTransfer
+		default:
+			return o, usagef("--surface %q: use fixed or masstransfer", f.surface)
+		}
+		m, err := numeric.NewModel(cfg)
+		if err != nil {
+			return o, usagef("--dc: %v", err)
+		}
+		o.Custom = m
+	}
+	if f.caseThreshold != "" {
+		th, err := fit.ParseThreshold(f.caseThreshold)
+		if err != nil {
+			return o, usagef("--case-threshold: %v", err)
+		}
+		o.CaseThreshold = &th
+	}
+	if f.decarbFraction != 0 {
+		if !(f.decarbFraction > 0 && f.decarbFraction < 1) {
+			return o, usagef("--decarb-fraction %g must lie between 0 and 1, e.g. 0.95", f.decarbFraction)
+		}
+		o.DecarbFraction = f.decarbFraction
+	}
+	if f.hardnessCal != "" {
+		cal, err := profile.ReadCalibration(f.hardnessCal)
+		if err != nil {
+			return o, err
+		}
+		f.cal, o.Calibration = cal, cal
+	}
+	if len(f.fix) > 0 {
+		o.Fixed = map[string]float64{}
+		for _, s := range f.fix {
+			name, val, ok := strings.Cut(s, "=")
+			if !ok {
+				return o, usagef("--fix %q: write NAME=VALUE, e.g. --fix Cs=1.05", s)
+			}
+			v, err := fixValue(strings.TrimSpace(val))
+			if err != nil {
+				return o, usagef("--fix %s: %v", s, err)
+			}
+			o.Fixed[strings.TrimSpace(name)] = v
+		}
+	}
+	return o, nil
+}
+
+// fixValue reads a plain number, or a length with its unit (for x0, xm).
+func fixValue(s string) (float64, error) {
+	if v, err := strconv.ParseFloat(s, 64); err == nil {
+		return v, nil
+	}
+	if v, err := profile.ParseLength(s); err == nil {
+		return v, nil
+	}
+	return 0, fmt.Errorf("%q is not a number (or a length with a unit such as 0.02mm)", s)
+}
+
+// override applies --temperature, --time and --thickness to every profile,
+// and converts hardness profiles with --hardness-calibration.
+func (f *fitFlags) override(ps []profile.Profile) error {
+	if f.cal != nil {
+		for i := range ps {
+			if _, ok := profile.HardnessScale(ps[i].ValueUnit); !ok {
+				continue
+			}
+			c, err := f.cal.Apply(&ps[i])
+			if err != nil {
+				return err
+			}
+			ps[i] = c
+		}
+	}
+	if f.temperature != "" {
+		v, err := profile.ParseTemperature(f.temperature)
+		if err != nil {
+			return usagef("--temperature: %v", err)
+		}
+		for i := range ps {
+			ps[i].Temperature = v
+		}
+	}
+	if f.time != "" {
+		v, err := profile.ParseDuration(f.time)
+		if err != nil {
+			return usagef("--time: %v", err)
+		}
+		for i := range ps {
+			ps[i].Time = v
+		}
+	}
+	if f.thickness != "" {
+		v, err := profile.ParseLength(f.thickness)
+		if err != nil {
+			return usagef("--thickness: %v", err)
+		}
+		for i := range ps {
+			ps[i].Thickness = v
+		}
+	}
+	return nil
+}

@@ -1,0 +1,56 @@
+package main
+
+import (
+	"strings"
+
+	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/profile"
+)
+
+// fittedInputs reads the arguments as profiles (fitted here with the fit
+// flags) or as JSON files that 'fickfit fit' wrote. It returns the results
+// and, when profiles were read, the profiles (in the same order).
+func fittedInputs(args []string, ff *fitFlags) ([]*fit.Result, []profile.Profile, error) {
+	var jsonFiles, profFiles []string
+	for _, a := range args {
+		if strings.EqualFold(fileExt(a), ".json") {
+			jsonFiles = append(jsonFiles, a)
+		} else {
+			profFiles = append(profFiles, a)
+		}
+	}
+	var results []*fit.Result
+	for _, j := range jsonFiles {
+		rs, err := fit.ReadResultsFile(j)
+		if err != nil {
+			return nil, nil, err
+		}
+		results = append(results, rs...)
+	}
+	var ps []profile.Profile
+	if len(profFiles) > 0 {
+		o, err := ff.options()
+		if err != nil {
+			return nil, nil, err
+		}
+		if ps, err = profile.ReadAll(profFiles); err != nil {
+			return nil, nil, err
+		}
+		if err := ff.override(ps); err != nil {
+			return nil, nil, err
+		}
+		rs, errs := fit.FitAll(ps, o)
+		if err := firstError(errs); err != nil {
+			return nil, nil, err
+		}
+		results = append(results, rs...)
+	}
+	return results, ps, nil
+}
+
+func fileExt(p string) string {
+	if i := strings.LastIndex(p, "."); i >= 0 && !strings.ContainsAny(p[i:], `/\`) {
+		return p[i:]
+	}
+	return ""
+}

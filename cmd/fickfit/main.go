@@ -1,0 +1,75 @@
+// Command fickfit fits Fick's-second-law solutions to measured diffusion
+// profiles and turns the fitted D into Arrhenius parameters, back-calculated
+// exposures, lot comparisons, predictions and reports.
+//
+// It only parses flags, calls the packages and chooses the writer; all the
+// science lives in profile, fit, arrhenius and report.
+package main
+
+import (
+	"errors"
+	"fmt"
+	"os"
+
+	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/profile"
+)
+
+// Exit statuses (DESIGN §6).
+const (
+	exitOK       = 0
+	exitNoAnswer = 1 // the computation could not give an answer
+	exitBadInput = 2 // bad input or usage
+)
+
+func main() {
+	os.Exit(run(os.Args[1:]))
+}
+
+// run executes the command line and returns the exit status.
+func run(args []string) int {
+	root := newRoot()
+	root.SetArgs(args)
+	err := root.Execute()
+	if err == nil {
+		return exitOK
+	}
+	fmt.Fprintln(os.Stderr, "fickfit:", err)
+	return exitCode(err)
+}
+
+// usageError marks errors in the command line itself.
+type usageError struct{ msg string }
+
+func (e usageError) Error() string { return e.msg }
+
+func usagef(format string, args ...any) error {
+	return usageError{fmt.Sprintf(format, args...)}
+}
+
+// exitCode maps an error to the exit status: answers the data cannot give
+// are 1, everything the user can fix in the input or the command is 2.
+func exitCode(err error) int {
+	var pe *profile.Error
+	switch {
+	case errors.Is(err, fit.ErrNoAnswer):
+		return exitNoAnswer
+	case errors.As(err, &pe), errors.Is(err, fit.ErrBadInput):
+		return exitBadInput
+	}
+	var ue usageError
+	if errors.As(err, &ue) {
+		return exitBadInput
+	}
+	var ne noAnswerError
+	if errors.As(err, &ne) {
+		return exitNoAnswer
+	}
+	return exitBadInput
+}
+
+// noAnswerError marks a computation that ran but gives no trustworthy answer.
+type noAnswerError struct{ err error }
+
+func (e noAnswerError) Error() string { return e.err.Error() }
+func (e noAnswerError) Unwrap() error { return e.err }

@@ -1,0 +1,37 @@
+package main
+
+import (
+	"github.com/spf13/cobra"
+
+	"github.com/fickfit/fickfit"
+)
+
+func newRoot() *cobra.Command {
+	root := &cobra.Command{
+		Use:   "fickfit",
+		Short: "Fit diffusion coefficients to measured depth profiles, with honest uncertainty",
+		Long: `fickfit reads concentration–depth or hardness–depth profiles (step-grind
+spectrometry, glow-discharge, microprobe line scans, microhardness traverses),
+fits solutions of Fick's second law by nonlinear least squares, and reports D
+with confidence intervals. From several temperatures it estimates D0 and Q
+(Arrhenius), back-calculates the temperature or time an unknown part saw,
+tests whether alloy lots differ, predicts profiles and case depths for new
+schedules, and writes reports another engineer can audit.
+
+Results rest on the stated model assumptions. Verify case depths by
+metallography, let the applicable specifications decide acceptance, and defer
+to local codes and licensed engineering judgement.
+
+Exit status: 0 ok, 1 the data could not give an answer (no convergence,
+unidentifiable parameters), 2 bad input or usage.`,
+		Version:       fickfit.Version,
+		SilenceUsage:  true,
+		SilenceErrors: true,
+	}
+	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
+		return usagef("%v (see 'fickfit %s --help')", err, c.Name())
+	})
+	root.AddCommand(newFitCmd(), newArrheniusCmd(), newBackcalcCmd(), newPredictCmd(),
+		newCompareCmd(), newReferenceCmd(), newMatanoCmd(), newCampaignCmd(), newDemoCmd())
+	return root
+}
