@@ -133,7 +133,7 @@ func ProfileFigure(r *fit.Result, o FigureOptions) (*Figure, error) {
 	bot := newPlot()
 	bot.X.Min, bot.X.Max = 0, xEnd/f
 	bot.Y.Min, bot.Y.Max = -1.2*rmax, 1.2*rmax
-	bot.Y.Tick.Marker = linearTicks{n: 3}
+	bot.Y.Tick.Marker = linearTicks{n: 4}
 	bot.X.Label.Text = "depth (" + depthUnit + ")"
 	bot.Y.Label.Text = "residual"
 	if r.ValueUnit != "" {

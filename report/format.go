@@ -265,14 +265,19 @@ func IntervalAt(v float64, iv fit.Interval, last int) string {
 }
 
 // shareExponent tells whether both ends read well as mantissas of 10^e:
-// neither below 0.1·10^e (which would show as 0.0x) nor at or above 1000·10^e.
+// neither below 0.1·10^e (which would show as 0.0x) nor at or above
+// 100·10^e, and, for positive ends, less than a decade apart (a wider
+// interval is written end by end, each with two digits).
 func shareExponent(iv fit.Interval, e int) bool {
 	p := math.Pow(10, float64(e))
 	for _, b := range []float64{iv.Lo, iv.Hi} {
 		a := math.Abs(b) / p
-		if b != 0 && (a < 0.1 || a >= 1000) {
+		if b != 0 && (a < 0.1 || a >= 100) {
 			return false
 		}
+	}
+	if iv.Lo > 0 && iv.Hi/iv.Lo >= 10 {
+		return false
 	}
 	return true
 }
@@ -446,9 +451,10 @@ func TemperatureEstimate(k float64, iv fit.Interval, level float64, u TempUnit) 
 	return s + ", " + Level(level) + " CI " + ci
 }
 
-// Duration writes a time given in s: "45 s", "90 min", "4 h", "4.5 h",
-// "36 h". Below 2 min in s, below 2 h in min, otherwise in h; at most two
-// decimals, no trailing zeros. 0 (not given) is written "not given".
+// Duration writes a time given in s: "45 s", "90 min", "1 h", "4 h",
+// "4.5 h", "36 h". Below 2 min in s, below 2 h in min (whole hours in h),
+// otherwise in h; at most two decimals, no trailing zeros. 0 (not given)
+// is written "not given".
 func Duration(s float64) string {
 	switch {
 	case s == 0:
@@ -457,7 +463,7 @@ func Duration(s float64) string {
 		return "n/a"
 	case math.Abs(s) < 120:
 		return trimmed(s, 2) + " s"
-	case math.Abs(s) < 7200:
+	case math.Abs(s) < 7200 && math.Abs(s/3600-math.Round(s/3600)) > 1e-9:
 		return trimmed(s/60, 2) + " min"
 	}
 	return trimmed(s/3600, 2) + " h"

@@ -97,6 +97,8 @@ func TestEstimate(t *testing.T) {
 			"7.70 HV, 95 % CI not bounded by the data"},
 		{"wide log interval spans decades", 1.0e-12, fit.Interval{Lo: 4.0e-14, Hi: 2.1e-10}, 0.95, "m2/s",
 			"1.0 × 10⁻¹² m²/s, 95 % CI 4.0 × 10⁻¹⁴ – 2.1 × 10⁻¹⁰"},
+		{"ends a decade apart are written end by end", 6.9e-12, fit.Interval{Lo: 3.5e-12, Hi: 1.061e-10}, 0.95, "m2/s",
+			"6.9 × 10⁻¹² m²/s, 95 % CI 3.5 × 10⁻¹² – 1.1 × 10⁻¹⁰"},
 		{"negative end", 0.09, fit.Interval{Lo: -0.12, Hi: 0.30}, 0.95, "wt%",
 			"0.09 wt%, 95 % CI −0.12 to 0.30"},
 		{"fixed parameter", 0.2, fit.Interval{Lo: 0.2, Hi: 0.2}, 0.95, "wt%", "0.200 wt%"},
@@ -177,7 +179,7 @@ func TestDuration(t *testing.T) {
 		want string
 	}{
 		{45, "45 s"}, {90 * 60, "90 min"}, {14400, "4 h"}, {4.5 * 3600, "4.5 h"},
-		{36 * 3600, "36 h"}, {100.5, "100.5 s"}, {0, "not given"}, {1234567, "342.94 h"},
+		{36 * 3600, "36 h"}, {100.5, "100.5 s"}, {3600, "1 h"}, {3000, "50 min"}, {0, "not given"}, {1234567, "342.94 h"},
 	} {
 		if got := Duration(c.s); got != c.want {
 			t.Errorf("Duration(%g) = %q, want %q", c.s, got, c.want)

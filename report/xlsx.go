@@ -643,9 +643,9 @@ func (x *xlWriter) auditSheet(res *CampaignResult) {
 
 // pairs lists the options as (name, value) for the audit trail.
 func (a AuditOptions) pairs() [][2]string {
-	f := func(v float64) string {
+	f := func(v float64, zero string) string {
 		if v == 0 {
-			return "default"
+			return zero
 		}
 		return fmt.Sprint(v)
 	}
@@ -663,7 +663,8 @@ func (a AuditOptions) pairs() [][2]string {
 		{"model", a.Model}, {"interval method", a.CIMethod}, {"confidence level", fmt.Sprint(a.Level)},
 		{"σ taken as known (absolute)", fmt.Sprint(a.AbsoluteSigma)}, {"fixed parameters", join(a.Fixed)},
 		{"freed parameters", join(a.Free)}, {"grouped by", by}, {"Arrhenius method", a.Method},
-		{"temperature uncertainty (K)", f(a.TSigma)}, {"comparison temperature (K)", f(a.TRef)},
+		{"temperature uncertainty (K)", f(a.TSigma, "none beyond the profiles' own")},
+		{"comparison temperature (K)", f(a.TRef, "where the data are centred")},
 		{"reference lines", join(a.References)}, {"back-calculation interval", a.SolveMethod},
 		{"temperature unit", a.TempUnit},
 	}
