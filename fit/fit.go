@@ -211,7 +211,7 @@ func fitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 		return nil, fmt.Errorf("%w: every parameter is fixed; free at least one", ErrBadInput)
 	}
 	if n < k+2 {
-		return nil, fmt.Errorf("%w: %d points cannot support %d free parameters with an error estimate (need at least %d); add points or fix a parameter with --fix", ErrBadInput, n, k, k+2)
+		return nil, fmt.Errorf("%w: %d %s cannot support %d free parameters with an error estimate (need at least %d points); add points or fix a parameter with --fix", ErrBadInput, n, plural(n, "point", "points"), k, k+2)
 	}
 	if constant(d.Y) {
 		return nil, fmt.Errorf("%w: all %d values are equal (%g): there is no profile to fit", ErrBadInput, n, d.Y[0])
@@ -337,4 +337,11 @@ func (r *Result) depths(o Options) error {
 		r.DecarbDepth = e
 	}
 	return nil
+}
+
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
 }

@@ -66,7 +66,7 @@ profiles (lot by default when the files give one) and gives one line per group.`
 					return err
 				}
 			}
-			return out.write(func(w writer) error { return writeValue(w, out.format, rep) })
+			return out.write(c, func(w writer) error { return writeValue(w, out.format, rep) })
 		},
 	}
 	ff.register(c)

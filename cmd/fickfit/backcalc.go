@@ -101,7 +101,7 @@ codes and licensed engineering judgement before deciding on parts.`,
 				}
 				sols = append(sols, s)
 			}
-			return out.write(func(w writer) error { return writeValue(w, out.format, sols) })
+			return out.write(c, func(w writer) error { return writeValue(w, out.format, sols) })
 		},
 	}
 	ff.register(c)

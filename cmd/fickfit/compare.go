@@ -53,7 +53,7 @@ temperature with its confidence interval and a plain verdict with the p-value.`,
 			if err != nil {
 				return err
 			}
-			return out.write(func(w writer) error { return writeValue(w, out.format, cmp) })
+			return out.write(c, func(w writer) error { return writeValue(w, out.format, cmp) })
 		},
 	}
 	ff.register(c)
@@ -81,7 +81,7 @@ backcalc and predict.`,
 				return err
 			}
 			refs := arrhenius.References()
-			return out.write(func(w writer) error { return writeValue(w, out.format, refs) })
+			return out.write(c, func(w writer) error { return writeValue(w, out.format, refs) })
 		},
 	}
 	out.register(c)

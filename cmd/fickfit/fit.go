@@ -2,7 +2,6 @@ package main
 
 import (
 	"fmt"
-	"os"
 
 	"github.com/spf13/cobra"
 
@@ -59,13 +58,13 @@ highest temperature), exact when D does not depend on concentration.`,
 			worst := firstError(errs)
 			f := fitsOf(ps, results, errs)
 			if len(f.Results) > 0 {
-				if err := out.write(func(w writer) error { return writeFits(w, out.format, f) }); err != nil {
+				if err := out.write(c, func(w writer) error { return writeFits(w, out.format, f) }); err != nil {
 					return err
 				}
 			}
 			for _, e := range errs {
 				if e != nil && e != worst {
-					fmt.Fprintln(os.Stderr, "fickfit:", e)
+					fmt.Fprintln(c.ErrOrStderr(), "fickfit:", e)
 				}
 			}
 			return worst

@@ -9,6 +9,7 @@ package main
 import (
 	"errors"
 	"fmt"
+	"io"
 	"os"
 
 	"github.com/fickfit/fickfit/fit"
@@ -23,18 +24,20 @@ const (
 )
 
 func main() {
-	os.Exit(run(os.Args[1:]))
+	os.Exit(run(os.Args[1:], os.Stdout, os.Stderr))
 }
 
 // run executes the command line and returns the exit status.
-func run(args []string) int {
+func run(args []string, stdout, stderr io.Writer) int {
 	root := newRoot()
 	root.SetArgs(args)
+	root.SetOut(stdout)
+	root.SetErr(stderr)
 	err := root.Execute()
 	if err == nil {
 		return exitOK
 	}
-	fmt.Fprintln(os.Stderr, "fickfit:", err)
+	fmt.Fprintln(stderr, "fickfit:", err)
 	return exitCode(err)
 }
 

@@ -58,7 +58,7 @@ Near the end compositions the method is ill-conditioned and says so.`,
 				}
 				results = append(results, r)
 			}
-			return out.write(func(w writer) error { return writeValue(w, out.format, results) })
+			return out.write(c, func(w writer) error { return writeValue(w, out.format, results) })
 		},
 	}
 	out.register(c)

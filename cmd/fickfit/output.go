@@ -51,9 +51,9 @@ func (o *outFlags) check(inputs []string) error {
 
 // write sends the output to standard output or, with -o, to a temporary
 // file in the target folder that is renamed into place when complete.
-func (o *outFlags) write(fn func(io.Writer) error) error {
+func (o *outFlags) write(c *cobra.Command, fn func(io.Writer) error) error {
 	if o.path == "" {
-		return fn(os.Stdout)
+		return fn(c.OutOrStdout())
 	}
 	return report.WriteFileAtomic(o.path, fn)
 }

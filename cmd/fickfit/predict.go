@@ -107,7 +107,7 @@ and licensed engineering judgement.`,
 				}
 				preds = append(preds, p)
 			}
-			return out.write(func(w writer) error { return writeValue(w, out.format, preds) })
+			return out.write(c, func(w writer) error { return writeValue(w, out.format, preds) })
 		},
 	}
 	out.register(c)

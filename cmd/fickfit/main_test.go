@@ -1,0 +1,151 @@
+package main
+
+import (
+	"bufio"
+	"bytes"
+	"crypto/sha256"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// runCLI runs the command line in-process and returns exit status, stdout and stderr.
+func runCLI(t *testing.T, args ...string) (int, string, string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code := run(args, &out, &errb)
+	return code, out.String(), errb.String()
+}
+
+func hashFile(t *testing.T, path string) [32]byte {
+	t.Helper()
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return sha256.Sum256(b)
+}
+
+// hashTree hashes every file under dir (a case may be a folder).
+func hashTree(t *testing.T, dir string) map[string][32]byte {
+	t.Helper()
+	h := map[string][32]byte{}
+	filepath.Walk(dir, func(p string, fi os.FileInfo, err error) error {
+		if err == nil && !fi.IsDir() {
+			h[p] = hashFile(t, p)
+		}
+		return nil
+	})
+	return h
+}
+
+// TestBadCatalogue runs every file of testdata/bad through the command line
+// (common practice, no source): each must end with the catalogue's exit
+// status, a message naming the file and the line or cell, no output file,
+// and the input unchanged.
+func TestBadCatalogue(t *testing.T) {
+	f, err := os.Open("../../testdata/bad/cases.tsv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	good := "../../testdata/profile/A3.csv"
+	sc := bufio.NewScanner(f)
+	for sc.Scan() {
+		line := sc.Text()
+		if strings.HasPrefix(line, "#") || strings.TrimSpace(line) == "" {
+			continue
+		}
+		col := strings.Split(line, "\t")
+		if len(col) < 6 {
+			t.Fatalf("cases.tsv: short row %q", line)
+		}
+		file, stage, exit, where, frag := col[0], col[1], col[2], col[4], col[5]
+		t.Run(file, func(t *testing.T) {
+			path := filepath.Join("../../testdata/bad", file)
+			before := hashTree(t, path)
+			outPath := filepath.Join(t.TempDir(), "out.json")
+			var args []string
+			switch stage {
+			case "read", "fit":
+				args = []string{"fit", path}
+			case "calibration":
+				args = []string{"fit", good, "--hardness-calibration", path}
+			case "history":
+				args = []string{"fit", good, "--history", path, "--Q", "140kJ/mol"}
+			default:
+				t.Fatalf("unknown stage %q", stage)
+			}
+			args = append(args, "--format", "json", "-o", outPath)
+			code, _, stderr := runCLI(t, args...)
+			if want := exit; want != "" && want != string('0'+rune(code)) {
+				t.Errorf("exit %d, want %s; stderr: %s", code, want, stderr)
+			}
+			base := filepath.Base(file)
+			if !strings.Contains(stderr, base) {
+				t.Errorf("message does not name the file %q: %s", base, stderr)
+			}
+			if where != "-" && !strings.Contains(stderr, strings.TrimPrefix(where, "b.csv")) {
+				t.Errorf("message does not locate the problem (%q): %s", where, stderr)
+			}
+			if frag != "-" && !strings.Contains(stderr, frag) {
+				t.Errorf("message lacks %q: %s", frag, stderr)
+			}
+			if _, err := os.Stat(outPath); err == nil {
+				t.Errorf("an output file was created for bad input")
+			}
+			entries, _ := os.ReadDir(filepath.Dir(outPath))
+			if len(entries) != 0 {
+				t.Errorf("left files behind in the output folder: %v", entries)
+			}
+			after := hashTree(t, path)
+			for p, h := range before {
+				if after[p] != h {
+					t.Errorf("input %s was modified", p)
+				}
+			}
+		})
+	}
+}
+
+// TestHelpEveryCommand: --help works for every command and names an example.
+func TestHelpEveryCommand(t *testing.T) {
+	for _, c := range newRoot().Commands() {
+		if c.Name() == "help" || c.Name() == "completion" {
+			continue
+		}
+		code, out, _ := runCLI(t, c.Name(), "--help")
+		if code != 0 || !strings.Contains(out, "Usage:") {
+			t.Errorf("%s --help: exit %d\n%s", c.Name(), code, out)
+		}
+	}
+}
+
+// TestUsageErrors: mistakes on the command line exit 2 with a clear message.
+func TestUsageErrors(t *testing.T) {
+	good := "../../testdata/profile/A3.csv"
+	for _, tc := range []struct {
+		args []string
+		frag string
+	}{
+		{[]string{"fit"}, "requires at least 1 arg"},
+		{[]string{"fit", good, "--format", "yaml"}, "use text, json or csv"},
+		{[]string{"fit", good, "--level", "95"}, "between 0 and 1"},
+		{[]string{"fit", good, "--fix", "Cs"}, "NAME=VALUE"},
+		{[]string{"fit", good, "--fix", "Q=3"}, "has no parameter \"Q\""},
+		{[]string{"fit", good, "--model", "parabolic"}, "unknown model"},
+		{[]string{"fit", good, "--time", "-4h"}, "--time"},
+		{[]string{"fit", good, "--temperature", "-300C"}, "--temperature"},
+		{[]string{"fit", good, "-o", good}, "would overwrite an input"},
+		{[]string{"fit", good, "--bogus"}, "unknown flag"},
+		{[]string{"backcalc", good, "--solve", "pressure", "--reference", "C-in-gamma-Fe"}, "--solve"},
+		{[]string{"backcalc", good, "--reference", "unobtainium"}, "C-in-gamma-Fe"},
+		{[]string{"predict", "--Cs", "1", "--C0", "0.2"}, "exactly one source"},
+	} {
+		code, _, stderr := runCLI(t, tc.args...)
+		if code != 2 || !strings.Contains(stderr, tc.frag) {
+			t.Errorf("%v: exit %d, stderr %q; want 2 and %q", tc.args, code, stderr, tc.frag)
+		}
+	}
+}
