@@ -61,9 +61,10 @@ type CampaignOptions struct {
 	// Version is the software version written into every output; "" means DefaultVersion.
 	Version string
 	// Progress, when not nil, is called as the work proceeds with a stage
-	// name ("read", "fit", "arrhenius", "figures", "workbook", "report")
-	// and the count done out of total. It is called from one goroutine at
-	// a time.
+	// name and the count done out of total. Campaign runs the stages
+	// "read", "fit" and "arrhenius", WriteCampaign "figures", "workbook"
+	// and "write", each once and in that order. It is called from one
+	// goroutine at a time.
 	Progress func(stage string, done, total int)
 	// Force lets WriteCampaign replace the files of an earlier report in
 	// the output folder (never an input).

@@ -143,7 +143,10 @@ func WriteCampaign(dir string, res *CampaignResult, opts CampaignOptions) ([]str
 		}
 		return res.writeHTML(w, opts, fs)
 	})
-	add(FileWorkbook, func(w io.Writer) error { return res.WriteWorkbook(w, opts) })
+	// The workbook is built before anything is written (stage "workbook"),
+	// so that the stages run in order: figures, workbook, write.
+	var book bytes.Buffer
+	add(FileWorkbook, func(w io.Writer) error { _, err := w.Write(book.Bytes()); return err })
 	for _, f := range figs {
 		jobs = append(jobs, job{filepath.Join(figDir, f.Name+".svg"), nil})
 		if !opts.NoPNG {
@@ -159,6 +162,9 @@ func WriteCampaign(dir string, res *CampaignResult, opts CampaignOptions) ([]str
 	var err error
 	rendered, err = renderAll(figs, !opts.NoPNG, opts.DPI, func(d, t int) { opts.progress("figures", d, t) })
 	if err != nil {
+		return nil, err
+	}
+	if err := res.WriteWorkbook(&book, opts); err != nil {
 		return nil, err
 	}
 	byPath := map[string][]byte{}
@@ -179,7 +185,7 @@ func WriteCampaign(dir string, res *CampaignResult, opts CampaignOptions) ([]str
 			return written, err
 		}
 		written = append(written, j.path)
-		opts.progress("report", i+1, len(jobs))
+		opts.progress("write", i+1, len(jobs))
 	}
 	return written, nil
 }
