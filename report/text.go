@@ -188,8 +188,8 @@ func writeResultText(w *bufio.Writer, r *fit.Result, o TextOptions) {
 		head += "   " + r.Source
 	}
 	w.WriteString(head + "\n")
-	w.WriteString("  " + conditionsText(r, o.TempUnit) + " · " + ModelDescription(r.Model) +
-		" · " + Level(r.CILevel) + " CI by " + CIMethodDescription(r.CIMethod) + "\n")
+	writeParts(w, "  ", []string{conditionsText(r, o.TempUnit), ModelDescription(r.Model),
+		Level(r.CILevel) + " CI by " + CIMethodDescription(r.CIMethod)}, " · ", o.width())
 	if !r.Converged {
 		w.WriteString("  the fit did not converge: no numbers are reported\n")
 	}
