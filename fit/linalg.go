@@ -1,33 +1,36 @@
 package fit
 
-import (
-	"math"
+import "math"
 
-	"gonum.org/v1/gonum/mat"
-)
+// The normal equations of a profile fit are tiny (2–6 parameters), so the
+// few dense operations needed are written out here: they allocate nothing
+// beyond their result and beat a general library at this size.
 
 // scaledCond returns the 2-norm condition number of the k×k symmetric
 // matrix a after scaling it to unit diagonal (a correlation-like matrix), so
 // that parameters of very different magnitude do not inflate it. A zero
 // diagonal (a parameter the data do not touch) gives +Inf.
 func scaledCond(a []float64, k int) float64 {
-	s := mat.NewSymDense(k, nil)
+	var buf [36]float64
+	s := buf[:0]
+	if k*k > len(buf) {
+		s = make([]float64, 0, k*k)
+	}
+	s = s[:k*k]
 	for i := 0; i < k; i++ {
-		di := a[i*k+i]
-		if !(di > 0) {
+		if !(a[i*k+i] > 0) {
 			return math.Inf(1)
 		}
-		for j := 0; j <= i; j++ {
-			s.SetSym(i, j, a[i*k+j]/math.Sqrt(di*a[j*k+j]))
+	}
+	for i := 0; i < k; i++ {
+		for j := 0; j < k; j++ {
+			s[i*k+j] = a[i*k+j] / math.Sqrt(a[i*k+i]*a[j*k+j])
 		}
 	}
-	var eig mat.EigenSym
-	if !eig.Factorize(s, false) {
-		return math.Inf(1)
-	}
-	ev := eig.Values(nil)
+	jacobiEigen(s, k)
 	lo, hi := math.Inf(1), 0.0
-	for _, v := range ev {
+	for i := 0; i < k; i++ {
+		v := s[i*k+i]
 		lo = math.Min(lo, v)
 		hi = math.Max(hi, math.Abs(v))
 	}
@@ -37,13 +40,56 @@ func scaledCond(a []float64, k int) float64 {
 	return hi / lo
 }
 
+// jacobiEigen diagonalises the symmetric k×k matrix s in place by cyclic
+// Jacobi rotations; the eigenvalues are left on the diagonal (Golub & Van
+// Loan, Matrix Computations, 4th ed., 2013, §8.5; from memory). Jacobi is
+// accurate to high relative precision for the small eigenvalues of a
+// well-scaled matrix, which is what a condition number needs.
+func jacobiEigen(s []float64, k int) {
+	for sweep := 0; sweep < 50; sweep++ {
+		var off, diag float64
+		for p := 0; p < k; p++ {
+			diag += s[p*k+p] * s[p*k+p]
+			for q := p + 1; q < k; q++ {
+				off += s[p*k+q] * s[p*k+q]
+			}
+		}
+		if off <= 1e-32*diag {
+			return
+		}
+		for p := 0; p < k; p++ {
+			for q := p + 1; q < k; q++ {
+				apq := s[p*k+q]
+				if apq == 0 {
+					continue
+				}
+				theta := (s[q*k+q] - s[p*k+p]) / (2 * apq)
+				t := math.Copysign(1, theta) / (math.Abs(theta) + math.Sqrt(theta*theta+1))
+				c := 1 / math.Sqrt(t*t+1)
+				sn := t * c
+				for r := 0; r < k; r++ {
+					arp, arq := s[r*k+p], s[r*k+q]
+					s[r*k+p] = c*arp - sn*arq
+					s[r*k+q] = sn*arp + c*arq
+				}
+				for r := 0; r < k; r++ {
+					apr, aqr := s[p*k+r], s[q*k+r]
+					s[p*k+r] = c*apr - sn*aqr
+					s[q*k+r] = sn*apr + c*aqr
+				}
+			}
+		}
+	}
+}
+
 // invertSPD returns the inverse of the k×k symmetric positive definite
 // matrix a (row-major) as a k×k slice of rows, or false when a is singular.
-// It inverts the unit-diagonal scaled matrix and scales back, which keeps
-// the inverse accurate when parameters differ by many orders of magnitude.
+// It inverts the unit-diagonal scaled matrix by Cholesky and scales back,
+// which keeps the inverse accurate when parameters differ by many orders
+// of magnitude.
 func invertSPD(a []float64, k int) ([][]float64, bool) {
-	sc := make([]float64, k)
-	s := mat.NewSymDense(k, nil)
+	back := make([]float64, 3*k*k+k)
+	l, inv, s, sc := back[:k*k], back[k*k:2*k*k], back[2*k*k:3*k*k], back[3*k*k:]
 	for i := 0; i < k; i++ {
 		if !(a[i*k+i] > 0) {
 			return nil, false
@@ -51,24 +97,54 @@ func invertSPD(a []float64, k int) ([][]float64, bool) {
 		sc[i] = 1 / math.Sqrt(a[i*k+i])
 	}
 	for i := 0; i < k; i++ {
-		for j := 0; j <= i; j++ {
-			s.SetSym(i, j, a[i*k+j]*sc[i]*sc[j])
+		for j := 0; j < k; j++ {
+			s[i*k+j] = a[i*k+j] * sc[i] * sc[j]
 		}
 	}
-	var ch mat.Cholesky
-	if !ch.Factorize(s) {
-		return nil, false
+	// Cholesky s = L Lᵀ.
+	for j := 0; j < k; j++ {
+		d := s[j*k+j]
+		for m := 0; m < j; m++ {
+			d -= l[j*k+m] * l[j*k+m]
+		}
+		if !(d > 1e-15) { // relative to the unit diagonal: numerically singular
+			return nil, false
+		}
+		l[j*k+j] = math.Sqrt(d)
+		for i := j + 1; i < k; i++ {
+			t := s[i*k+j]
+			for m := 0; m < j; m++ {
+				t -= l[i*k+m] * l[j*k+m]
+			}
+			l[i*k+j] = t / l[j*k+j]
+		}
 	}
-	var inv mat.SymDense
-	if err := ch.InverseTo(&inv); err != nil {
-		return nil, false
+	// Columns of the inverse: solve L Lᵀ x = e_c.
+	for c := 0; c < k; c++ {
+		x := inv[c*k : (c+1)*k]
+		for i := 0; i < k; i++ {
+			t := 0.0
+			if i == c {
+				t = 1
+			}
+			for m := 0; m < i; m++ {
+				t -= l[i*k+m] * x[m]
+			}
+			x[i] = t / l[i*k+i]
+		}
+		for i := k - 1; i >= 0; i-- {
+			t := x[i]
+			for m := i + 1; m < k; m++ {
+				t -= l[m*k+i] * x[m]
+			}
+			x[i] = t / l[i*k+i]
+		}
 	}
 	out := make([][]float64, k)
-	back := make([]float64, k*k)
 	for i := range out {
-		out[i] = back[i*k : (i+1)*k]
+		out[i] = inv[i*k : (i+1)*k]
 		for j := range out[i] {
-			out[i][j] = inv.At(i, j) * sc[i] * sc[j]
+			out[i][j] *= sc[i] * sc[j]
 		}
 	}
 	return out, true

@@ -77,6 +77,8 @@ type Solution struct {
 	JTJ []float64
 	// Jac is the N×P Jacobian at P.
 	Jac []float64
+	// Cond is the condition number of the unit-diagonal scaled JTJ.
+	Cond float64
 }
 
 // Solve minimises the problem by Levenberg–Marquardt with Moré's scaling
@@ -316,7 +318,8 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 				return sol, nil
 			}
 		}
-		if c := scaledCond(a, k); !(c <= set.CondMax) {
+		sol.Cond = scaledCond(a, k)
+		if c := sol.Cond; !(c <= set.CondMax) {
 			sol.Converged = false
 			sol.Reason = fmt.Sprintf("the free parameters are not identified by the data (condition number of the scaled JᵀWJ %.2g)", c)
 		}

@@ -33,7 +33,7 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	if d.W != nil {
 		r.Stats.Chi2P = distuv.ChiSquared{K: float64(dof)}.Survival(sol.RSS)
 	}
-	r.Stats.Cond = scaledCond(sol.JTJ, k)
+	r.Stats.Cond = sol.Cond
 
 	level := o.Level
 	if level == 0 {
