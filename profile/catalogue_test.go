@@ -145,11 +145,34 @@ func TestOddCatalogue(t *testing.T) {
 	}
 	entries, _ := os.ReadDir(dir)
 	for _, e := range entries {
-		if n := e.Name(); byFile[n] == nil && n != "README.md" && n != "cases.tsv" {
+		if n := e.Name(); byFile[n] == nil && !oddSupport[n] {
 			t.Errorf("%s is not listed in cases.tsv", n)
 		}
 	}
+	// Every profile is long enough to be fitted (cmd/fickfit's odd test
+	// fits them) and has its generating parameters in truth.tsv.
+	truth := map[string]bool{}
+	for _, r := range readTSV(t, filepath.Join(dir, "truth.tsv")) {
+		if len(r) != 6 {
+			t.Fatalf("truth.tsv row %q: want 6 fields", r)
+		}
+		truth[r[0]+"\t"+r[1]] = true
+	}
+	for _, r := range rows {
+		if n, _ := strconv.Atoi(r[3]); n < 10 || n > 20 {
+			t.Errorf("%s %s: %s points, want 10–20", r[0], r[1], r[3])
+		}
+		if !truth[r[0]+"\t"+r[1]] {
+			t.Errorf("%s %s is not in truth.tsv", r[0], r[1])
+		}
+	}
+	if len(truth) != len(rows) {
+		t.Errorf("truth.tsv has %d profiles, cases.tsv %d", len(truth), len(rows))
+	}
 }
+
+// oddSupport are the files of testdata/odd that are not inputs.
+var oddSupport = map[string]bool{"README.md": true, "cases.tsv": true, "truth.tsv": true, "generate.go": true}
 
 func checkOdd(t *testing.T, p *Profile, w []string) {
 	t.Helper()

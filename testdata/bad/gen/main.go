@@ -16,8 +16,11 @@ import (
 	"fmt"
 	"hash/crc32"
 	"log"
+	"math"
 	"os"
 	"path/filepath"
+	"strconv"
+	"strings"
 
 	"github.com/xuri/excelize/v2"
 )
@@ -124,9 +127,16 @@ func campaign(path string) error {
 }
 
 // oddWorkbook: odd but valid layouts, checked value by value in the tests.
+// The values are a constant-surface erf profile C = Cs + (C0 − Cs)·erf(x/(2√(Dt)))
+// rounded to 4 decimals, from the same grids and parameters as
+// testdata/odd/generate.go (which writes the cases and truth rows of this
+// workbook: keep the two in step).
 func oddWorkbook(path string) error {
 	f := excelize.NewFile()
 	defer f.Close()
+	gridIn := strings.Fields("0.001 0.002 0.004 0.006 0.008 0.010 0.012 0.015 0.018 0.022 0.026 0.030 0.035 0.040 0.050 0.060")
+	gridUM := strings.Fields("50 100 200 300 400 500 600 800 1000 1200 1500 1800 2200 2600")
+	gridUM2 := strings.Fields("50 100 200 300 400 600 800 1000 1200 1500 1800 2200")
 	s1 := [][]any{
 		{},
 		{"# id: W-1"},
@@ -134,16 +144,29 @@ func oddWorkbook(path string) error {
 		{"time", "1,5 h"},
 		{},
 		{nil, "Depth [in]", "HV0.5", "note"},
-		{nil, 0.002, 801, "edge"},
-		{},
-		{nil, "0,004", "776", "edge"},
-		{nil, 0.01, 702.5, "edge"},
 	}
-	s2 := [][]any{
-		{"profile", "depth_um", "temperature_K", "time_s", "HV0.5"},
-		{"W-3", 50, 1198.15, 14400, 800},
-		{"W-2", 50, 1223.15, 7200, 810},
-		{"W-3", 100, 1198.15, 14400, 760},
+	// W-1: D = 2.8e-11 m²/s, t = 5400 s, Cs = 780, C0 = 290 HV0.5; a blank
+	// row after the first point; every other point as text with a decimal comma.
+	for i, x := range gridIn {
+		v := erfText(x, 0.0254, 2.8e-11*5400, 780, 290)
+		if i%2 == 1 {
+			s1 = append(s1, []any{nil, strings.Replace(x, ".", ",", 1), strings.Replace(v, ".", ",", 1), "edge"})
+		} else {
+			s1 = append(s1, []any{nil, number(x), number(v), "edge"})
+		}
+		if i == 0 {
+			s1 = append(s1, []any{})
+		}
+	}
+	// W-3: D = 2.5e-11 m²/s, 4 h, Cs 800, C0 300; W-2: D = 4.0e-11 m²/s, 2 h, Cs 820, C0 310.
+	s2 := [][]any{{"profile", "depth_um", "temperature_K", "time_s", "HV0.5"}}
+	for i := 0; i < len(gridUM) || i < len(gridUM2); i++ {
+		if i < len(gridUM) {
+			s2 = append(s2, []any{"W-3", number(gridUM[i]), 1198.15, 14400, number(erfText(gridUM[i], 1e-6, 2.5e-11*14400, 800, 300))})
+		}
+		if i < len(gridUM2) {
+			s2 = append(s2, []any{"W-2", number(gridUM2[i]), 1223.15, 7200, number(erfText(gridUM2[i], 1e-6, 4.0e-11*7200, 820, 310))})
+		}
 	}
 	if err := set(f, "W-1 sheet", s1); err != nil {
 		return err
@@ -152,6 +175,21 @@ func oddWorkbook(path string) error {
 		return err
 	}
 	return save(f, path, "W-1 sheet")
+}
+
+// erfText is Cs + (C0 − Cs)·erf(x/(2√(Dt))) at depth text d (in units of
+// scale metres), rounded to 4 decimals.
+func erfText(d string, scale, dt, cs, c0 float64) string {
+	x := number(d) * scale
+	return strconv.FormatFloat(cs+(c0-cs)*math.Erf(x/(2*math.Sqrt(dt))), 'f', 4, 64)
+}
+
+func number(s string) float64 {
+	v, err := strconv.ParseFloat(s, 64)
+	if err != nil {
+		log.Fatal(err)
+	}
+	return v
 }
 
 func badCell(path string) error {
