@@ -98,22 +98,6 @@ func (res *CampaignResult) WriteBackcalcCSV(w io.Writer) error {
 	return cw.Error()
 }
 
-// DText writes D with its interval for a summary line:
-// "7.61 × 10⁻¹² m²/s (7.6 µm²/s), 95 % CI 7.41–7.82 × 10⁻¹²".
-func DText(e *fit.Estimate, level float64) string {
-	if e == nil {
-		return "n/a"
-	}
-	s := Estimate(e.Value, e.CI, level, e.Unit)
-	if e.Unit == "m2/s" {
-		if alt := DAlternative(e.Value, e.CI); alt != "" {
-			i := strings.Index(s, "m²/s") + len("m²/s")
-			s = s[:i] + " (" + alt + ")" + s[i:]
-		}
-	}
-	return s
-}
-
 // D0Text writes a pre-exponential factor with its interval, in m²/s with cm²/s beside.
 func D0Text(l *arrhenius.Line) string {
 	ci := l.D0CI()

@@ -337,3 +337,45 @@ func ExampleCampaignFS() {
 	// 25 profiles fitted, 2 Arrhenius lines
 	// back-calculated: pinion-7731 temperature true
 }
+
+func TestCampaignFolder(t *testing.T) {
+	// A folder stands for its profile files; hidden files, spreadsheet lock
+	// files and other extensions are skipped, as profile.ReadAll does.
+	dir := t.TempDir()
+	writeCampaignFiles(t, dir, 16, 1)
+	os.WriteFile(filepath.Join(dir, ".hidden.csv"), []byte("junk"), 0o644)
+	os.WriteFile(filepath.Join(dir, "~$lock.xlsx"), []byte("junk"), 0o644)
+	os.WriteFile(filepath.Join(dir, "notes.md"), []byte("junk"), 0o644)
+	os.Mkdir(filepath.Join(dir, "sub"), 0o755)
+	res, err := Campaign([]string{dir}, campaignOpts())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Inputs) != 6 { // 4 L1 coupons, the part, the long table
+		t.Errorf("%d inputs hashed: %+v", len(res.Inputs), res.Inputs)
+	}
+	for _, in := range res.Inputs {
+		if strings.Contains(in.Name, "hidden") || strings.Contains(in.Name, "lock") || strings.HasSuffix(in.Name, ".md") {
+			t.Errorf("%s should have been skipped", in.Name)
+		}
+	}
+	if _, err := Campaign([]string{filepath.Join(dir, "missing.csv")}, campaignOpts()); err == nil {
+		t.Error("missing file: no error")
+	}
+}
+
+func TestQuantityOf(t *testing.T) {
+	for _, c := range []struct {
+		p    profile.Profile
+		want string
+	}{
+		{profile.Profile{Quantity: "N"}, "N"},
+		{profile.Profile{ValueName: "C_wt%"}, "C"},
+		{profile.Profile{ValueName: "carbon (wt%)"}, "carbon"},
+		{profile.Profile{ValueName: "HV0.5"}, "HV0.5"},
+	} {
+		if got := quantityOf(&c.p); got != c.want {
+			t.Errorf("quantityOf(%+v) = %q, want %q", c.p, got, c.want)
+		}
+	}
+}

@@ -450,7 +450,13 @@ func (ratioTicks) Ticks(min, max float64) []plot.Tick {
 		return nil
 	}
 	if max/min > 200 {
-		return logTicks{}.Ticks(min, max)
+		ts := logTicks{}.Ticks(min, max)
+		for i := range ts {
+			if v := ts[i].Value; ts[i].Label != "" && v >= 1e-4 && v <= 1e4 {
+				ts[i].Label = trimmed(v, 4) // a ratio reads plainly: 0.01, 1, 10
+			}
+		}
+		return ts
 	}
 	if max/min < 3 {
 		return linearTicks{}.Ticks(min, max)

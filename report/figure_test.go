@@ -7,10 +7,12 @@ import (
 	"image"
 	"image/png"
 	"io"
+	"math"
 	"math/rand/v2"
 	"strings"
 	"testing"
 
+	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/fit"
 	"gonum.org/v1/plot"
 )
@@ -254,5 +256,53 @@ func TestFileSafe(t *testing.T) {
 		if got := fileSafe(in); got != want {
 			t.Errorf("fileSafe(%q) = %q, want %q", in, got, want)
 		}
+	}
+}
+
+func TestPointCIAndLabels(t *testing.T) {
+	// With the fit's own interval it is used; without, a Wald interval on ln D.
+	p := arrhenius.Point{LnD: math.Log(2e-11), VarLnD: 0.01, CI: fit.Interval{Lo: 1.8e-11, Hi: 2.3e-11}}
+	if lo, hi := pointCI(p); lo != 1.8e-11 || hi != 2.3e-11 {
+		t.Errorf("own interval: %g %g", lo, hi)
+	}
+	p.CI = fit.Interval{}
+	lo, hi := pointCI(p)
+	// exp(±1.959964·0.1), normal 97.5 % quantile (common practice, no source).
+	if math.Abs(lo/2e-11-math.Exp(-0.1959964)) > 1e-12 || math.Abs(hi/2e-11-math.Exp(0.1959964)) > 1e-12 {
+		t.Errorf("Wald interval: %g %g", lo, hi)
+	}
+	p.VarLnD = math.NaN()
+	if lo, _ := pointCI(p); !math.IsNaN(lo) {
+		t.Error("no variance: interval should be undetermined")
+	}
+	for _, c := range []struct {
+		l    arrhenius.Line
+		want string
+	}{
+		{arrhenius.Line{}, "all profiles"},
+		{arrhenius.Line{Group: "HV-1", By: "lot"}, "lot HV-1"},
+		{arrhenius.Line{Group: "steel A", By: "material"}, "material steel A"},
+	} {
+		if got := groupLabel(c.l); got != c.want {
+			t.Errorf("groupLabel = %q, want %q", got, c.want)
+		}
+	}
+	labels := func(ts []plot.Tick) string {
+		var out []string
+		for _, tk := range ts {
+			if tk.Label != "" {
+				out = append(out, tk.Label)
+			}
+		}
+		return strings.Join(out, " ")
+	}
+	if got := labels(ratioTicks{}.Ticks(0.3, 4)); got != "0.5 1 2" {
+		t.Errorf("ratio ticks 0.3–4: %q", got)
+	}
+	if got := labels(ratioTicks{}.Ticks(1e-3, 10)); got != "0.001 0.01 0.1 1 10" {
+		t.Errorf("ratio ticks wide: %q", got)
+	}
+	if got := labels(ratioTicks{}.Ticks(0.85, 1.3)); got != "0.9 1.0 1.1 1.2 1.3" {
+		t.Errorf("ratio ticks narrow: %q", got)
 	}
 }

@@ -269,3 +269,18 @@ func FuzzNumber(f *testing.F) {
 		}
 	})
 }
+
+func TestGeneralAndInterval(t *testing.T) {
+	if got := General(2.9437e-11); got != "2.94 × 10⁻¹¹" {
+		t.Errorf("General = %q", got)
+	}
+	if got := General(1198.15); got != "1200" {
+		t.Errorf("General(1198.15) = %q", got)
+	}
+	if got := Interval(2.9437e-11, fit.Interval{Lo: 2.8112e-11, Hi: 3.0825e-11}); got != "2.81–3.08 × 10⁻¹¹" {
+		t.Errorf("Interval = %q", got)
+	}
+	if got := Interval(5, fit.Interval{Lo: 4.123, Hi: 5.9}); got != "4.1–5.9" {
+		t.Errorf("Interval plain = %q", got)
+	}
+}

@@ -82,9 +82,6 @@ func formatParam(e fit.Estimate) paramText {
 	return pt
 }
 
-// statsText writes the statistics line of a fit.
-func statsText(r *fit.Result) string { return strings.Join(statsParts(r), " · ") }
-
 // statsParts lists the statistics of a fit, each "name value".
 func statsParts(r *fit.Result) []string {
 	s := r.Stats
