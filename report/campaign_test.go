@@ -379,3 +379,48 @@ func TestQuantityOf(t *testing.T) {
 		}
 	}
 }
+
+func TestCampaignOneLineAndFailures(t *testing.T) {
+	dir := t.TempDir()
+	paths := writeCampaignFiles(t, dir, 17, 1)
+	// A coupon with too few points for the model: reported, not fatal.
+	short := filepath.Join(dir, "short.csv")
+	os.WriteFile(short, []byte("# id: S1\n# lot: L1\n# temperature: 900 C\n# time: 4 h\ndepth_mm,C_wt%\n0.1,0.8\n0.3,0.5\n0.6,0.3\n"), 0o644)
+	o := campaignOpts()
+	o.By = "none"
+	res, err := Campaign(append(paths, short), o)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Fits.Failed) != 1 || res.Fits.Failed[0].ID != "S1" || res.Fits.Failed[0].Kind != "bad input" {
+		t.Errorf("failed: %+v", res.Fits.Failed)
+	}
+	if res.Lines == nil || len(res.Lines.Lines) != 1 || res.Lines.Lines[0].Group != "" {
+		t.Fatalf("one line through all profiles expected: %+v", res.Lines)
+	}
+	if res.Comparison != nil {
+		t.Error("a comparison with a single group")
+	}
+	if len(res.Parts) != 1 || res.Parts[0].Solution == nil {
+		t.Errorf("the part is back-calculated from the single line: %+v", res.Parts)
+	}
+	out := filepath.Join(t.TempDir(), "r")
+	files, err := WriteCampaign(out, res, CampaignOptions{NoPNG: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, f := range files {
+		if strings.Contains(f, "lots.") {
+			t.Error("lots figure written without a comparison")
+		}
+	}
+	html, _ := os.ReadFile(filepath.Join(out, FileHTML))
+	if !strings.Contains(string(html), "not fitted: ") || strings.Contains(string(html), `id="lots"`) {
+		t.Error("HTML: failed profile missing or an empty lots section")
+	}
+	var sum bytes.Buffer
+	res.WriteSummary(&sum, TextOptions{NoCautions: true})
+	if !strings.Contains(sum.String(), "not fitted: S1") || strings.Contains(sum.String(), "Cautions") {
+		t.Errorf("summary:\n%s", sum.String())
+	}
+}
