@@ -1,0 +1,220 @@
+package fit
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"runtime"
+	"runtime/metrics"
+	"strconv"
+	"sync/atomic"
+	"testing"
+	"time"
+
+	"github.com/fickfit/fickfit/profile"
+)
+
+// batchProfiles makes n seeded synthetic constant-surface profiles of
+// points points each (invented numbers for timing and self-checks, not check
+// values): D log-uniform in 1e-12…1e-10 m²/s, t = 4 h, Cs in 0.8–1.0,
+// C0 in 0.1–0.3, depths evenly over 0…3·2√(Dt), noise 0.005.
+func batchProfiles(n, points int, seed uint64) []profile.Profile {
+	rng := rand.New(rand.NewPCG(seed, 7))
+	ps := make([]profile.Profile, n)
+	const t = 4 * 3600
+	for k := range ps {
+		D := math.Pow(10, -12+2*rng.Float64())
+		cs, c0 := 0.8+0.2*rng.Float64(), 0.1+0.2*rng.Float64()
+		L := 2 * math.Sqrt(D*t)
+		p := profile.Profile{ID: fmt.Sprintf("B%05d", k), Time: t, Temperature: 1198.15, ValueUnit: "wt%",
+			Depth: make([]float64, points), Value: make([]float64, points)}
+		for i := 0; i < points; i++ {
+			x := 3 * L * float64(i) / float64(points-1)
+			p.Depth[i] = x
+			p.Value[i] = cs + (c0-cs)*math.Erf(x/L) + 0.005*rng.NormFloat64()
+		}
+		ps[k] = p
+	}
+	return ps
+}
+
+// BenchmarkFitAll10k fits 10,000 seeded 50-point erf profiles with Wald
+// intervals through FitAll (all cores). The target is under 2 s per batch
+// on 2 cores; reported as s/batch and µs/fit.
+func BenchmarkFitAll10k(b *testing.B) {
+	ps := batchProfiles(10000, 50, 1)
+	o := Options{CI: "wald"}
+	b.ReportAllocs()
+	failed := 0
+	for b.Loop() {
+		_, errs := FitAll(ps, o)
+		failed = 0
+		for _, err := range errs {
+			if err != nil {
+				failed++
+			}
+		}
+	}
+	if failed > 0 {
+		b.Errorf("%d of %d fits failed", failed, len(ps))
+	}
+	perBatch := b.Elapsed().Seconds() / float64(b.N)
+	b.ReportMetric(perBatch, "s/batch")
+	b.ReportMetric(perBatch/float64(len(ps))*1e6, "µs/fit")
+	b.ReportMetric(float64(runtime.GOMAXPROCS(0)), "procs")
+}
+
+// TestFitAllOrderAndDeterminism: FitAll returns the results in input order,
+// each identical (to the last bit, through the JSON the command line
+// writes) to a one-at-a-time Fit of the same profile, and identical between
+// two parallel runs, whatever the scheduling (common practice, no source).
+func TestFitAllOrderAndDeterminism(t *testing.T) {
+	ps := batchProfiles(600, 50, 3)
+	o := Options{CI: "wald"}
+	run1, errs1 := FitAll(ps, o)
+	run2, errs2 := FitAll(ps, o)
+	for i := range ps {
+		if errs1[i] != nil || errs2[i] != nil {
+			t.Fatalf("profile %d: %v / %v", i, errs1[i], errs2[i])
+		}
+		if run1[i].ID != ps[i].ID || run2[i].ID != ps[i].ID {
+			t.Fatalf("result %d is %s / %s, want %s", i, run1[i].ID, run2[i].ID, ps[i].ID)
+		}
+		one, err := Fit(&ps[i], o)
+		if err != nil {
+			t.Fatal(err)
+		}
+		a, b, c := batchJSON(t, run1[i]), batchJSON(t, run2[i]), batchJSON(t, one)
+		if !bytes.Equal(a, b) || !bytes.Equal(a, c) {
+			t.Fatalf("profile %s: results differ between runs or from a single fit:\n%s\n%s\n%s", ps[i].ID, a, b, c)
+		}
+	}
+}
+
+func batchJSON(t *testing.T, r *Result) []byte {
+	t.Helper()
+	b, err := json.Marshal(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return b
+}
+
+// writeLongTable writes a long table of profiles × points rows to path
+// (seeded erf profiles as in batchProfiles, depths in µm), streaming, so the
+// writer itself holds next to nothing.
+func writeLongTable(path string, profiles, points int) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	w := bufio.NewWriterSize(f, 1<<16)
+	w.WriteString("specimen,temperature_C,time_h,depth_um,C_wt%\n")
+	row := make([]byte, 0, 64)
+	rng := rand.New(rand.NewPCG(5, 7))
+	for k := 0; k < profiles; k++ {
+		D := math.Pow(10, -12+2*rng.Float64())
+		cs, c0 := 0.8+0.2*rng.Float64(), 0.1+0.2*rng.Float64()
+		L := 2 * math.Sqrt(D*4*3600)
+		id := "S" + strconv.Itoa(k)
+		for i := 0; i < points; i++ {
+			x := 3 * L * float64(i) / float64(points-1)
+			row = append(row[:0], id...)
+			row = append(row, ",925,4,"...)
+			row = strconv.AppendFloat(row, x*1e6, 'f', 3, 64)
+			row = append(row, ',')
+			row = strconv.AppendFloat(row, cs+(c0-cs)*math.Erf(x/L)+0.005*rng.NormFloat64(), 'f', 4, 64)
+			row = append(row, '\n')
+			w.Write(row)
+		}
+	}
+	if err := w.Flush(); err != nil {
+		f.Close()
+		return err
+	}
+	return f.Close()
+}
+
+// batchHeapPeak samples the heap-object footprint every millisecond and
+// keeps the largest value.
+type batchHeapPeak struct {
+	peak       atomic.Uint64
+	stop, done chan struct{}
+}
+
+func startBatchHeapPeak() *batchHeapPeak {
+	s := &batchHeapPeak{stop: make(chan struct{}), done: make(chan struct{})}
+	sample := []metrics.Sample{{Name: "/memory/classes/heap/objects:bytes"}}
+	go func() {
+		defer close(s.done)
+		tick := time.NewTicker(time.Millisecond)
+		defer tick.Stop()
+		for {
+			metrics.Read(sample)
+			if v := sample[0].Value.Uint64(); v > s.peak.Load() {
+				s.peak.Store(v)
+			}
+			select {
+			case <-s.stop:
+				return
+			case <-tick.C:
+			}
+		}
+	}()
+	return s
+}
+
+func (s *batchHeapPeak) finish() uint64 {
+	close(s.stop)
+	<-s.done
+	return s.peak.Load()
+}
+
+// BenchmarkReadFit1M reads a long table of 20,000 profiles × 50 points
+// (10⁶ points, about 30 MB of text) with profile.Read and fits every
+// profile with Wald intervals. The memory target is under 300 MB for 10⁶
+// points: reported as the largest heap seen (peak-heap-MB, sampled every
+// ms) and the memory obtained from the OS (sys-MB, an upper bound on what
+// the Go runtime holds). For the resident set of the whole process run the
+// test binary under /usr/bin/time -v with -test.bench BenchmarkReadFit1M.
+func BenchmarkReadFit1M(b *testing.B) {
+	const profiles, points = 20000, 50
+	path := filepath.Join(b.TempDir(), "long1M.csv")
+	if err := writeLongTable(path, profiles, points); err != nil {
+		b.Fatal(err)
+	}
+	runtime.GC()
+	sampler := startBatchHeapPeak()
+	o := Options{CI: "wald"}
+	failed := 0
+	for b.Loop() {
+		ps, err := profile.Read(path)
+		if err != nil {
+			b.Fatal(err)
+		}
+		if len(ps) != profiles {
+			b.Fatalf("%d profiles, want %d", len(ps), profiles)
+		}
+		_, errs := FitAll(ps, o)
+		failed = 0
+		for _, err := range errs {
+			if err != nil {
+				failed++
+			}
+		}
+	}
+	peak := sampler.finish()
+	if failed > 0 {
+		b.Errorf("%d of %d fits failed", failed, profiles)
+	}
+	var ms runtime.MemStats
+	runtime.ReadMemStats(&ms)
+	b.ReportMetric(b.Elapsed().Seconds()/float64(b.N), "s/1M-points")
+	b.ReportMetric(float64(peak)/(1<<20), "peak-heap-MB")
+	b.ReportMetric(float64(ms.Sys)/(1<<20), "sys-MB")
+}
