@@ -256,7 +256,7 @@ type DepthOptions struct {
 
 // HardnessProxyNote is said wherever hardness itself was fitted as if it
 // were a concentration.
-const HardnessProxyNote = "Hardness was fitted directly as a stand-in for concentration (proxy mode): the fitted curve and depths are fine as a smooth description of the traverse, but D is a diffusion coefficient only where hardness is close to linear in concentration over the whole range of the profile. Convert with a hardness–concentration calibration (--calibration) for a D to compare or to use in Arrhenius."
+const HardnessProxyNote = "Hardness was fitted directly as a stand-in for concentration (proxy mode): the fitted curve and depths are fine as a smooth description of the traverse, but D is a diffusion coefficient only where hardness is close to linear in concentration over the whole range of the profile. Convert with a hardness–concentration calibration (--hardness-calibration) for a D to compare or to use in Arrhenius."
 
 // DepthCaution goes with every predicted depth.
 const DepthCaution = "Case and decarburization depths from a fitted model rest on its assumptions (constant D, the boundary condition of the model) and on the traverse measured; verify by metallographic examination or a hardness traverse as the applicable specification requires, and defer to that specification and to qualified engineering judgement before accepting parts."
@@ -636,5 +636,5 @@ func thresholdConversion(th Threshold, vu string, cal *profile.Calibration) (uni
 			return unitConversion{cal: cal, toHard: hardTh}, fmt.Sprintf("The threshold in %s is converted through the calibration %s (monotone interpolation, no extrapolation).", th.Unit, cal.Source), nil
 		}
 	}
-	return unitConversion{}, "", fmt.Errorf("%w: the case-depth threshold is in %s but the profile's values are in %s: state the threshold in %s, or give a hardness–concentration calibration (--calibration) to convert", ErrBadInput, th.Unit, vu, vu)
+	return unitConversion{}, "", fmt.Errorf("%w: the case-depth threshold is in %s but the profile's values are in %s: state the threshold in %s, or give a hardness–concentration calibration (--hardness-calibration) to convert", ErrBadInput, th.Unit, vu, vu)
 }

@@ -17,6 +17,7 @@ package report
 import (
 	"errors"
 	"fmt"
+	"github.com/fickfit/fickfit"
 	"sort"
 	"strings"
 
@@ -25,7 +26,7 @@ import (
 )
 
 // DefaultVersion is written as the software version when the caller gives none.
-const DefaultVersion = "devel"
+const DefaultVersion = fickfit.Version
 
 // FitCautions accompany every set of fitted diffusion coefficients.
 var FitCautions = []string{

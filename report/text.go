@@ -2,6 +2,7 @@ package report
 
 import (
 	"bufio"
+	"fmt"
 	"io"
 	"math"
 	"strconv"
@@ -220,6 +221,86 @@ func writeResultText(w *bufio.Writer, r *fit.Result, o TextOptions) {
 	for _, wn := range byTarget[""] {
 		writeWrapped(w, "  ! ", wn.Message, o.width())
 	}
+	for _, e := range []*fit.DepthEstimate{r.CaseDepth, r.DecarbDepth} {
+		if e != nil {
+			writeDepthText(w, r, e, o)
+		}
+	}
+	if r.Selection != nil {
+		writeSelectionText(w, r.Selection, o)
+	}
+}
+
+// writeDepthText writes a case or decarburization depth: from the fitted
+// curve with its interval, and from the points.
+func writeDepthText(w *bufio.Writer, r *fit.Result, e *fit.DepthEstimate, o TextOptions) {
+	name := "case depth"
+	if e.Kind == "decarburization" {
+		name = "decarburization depth"
+	}
+	fitted := "not reached by the fitted curve"
+	if finite(e.Depth) {
+		fitted = DepthInterval(e.Depth, e.CI, e.CILevel) + " from the fitted curve"
+	}
+	data := "not reached by the measured points"
+	if finite(e.FromData) {
+		data = Depth(e.FromData) + " from the measured points"
+	}
+	level := ""
+	if finite(e.Level) {
+		level = fmt.Sprintf(" (level %s %s)", Sig(e.Level, 3), e.Unit)
+	}
+	writeWrapped(w, "  ", fmt.Sprintf("%s at %s%s: %s; %s.", name, e.Threshold, level, fitted, data), o.width())
+	said := map[string]bool{}
+	for _, wn := range r.Warnings {
+		said[wn.Message] = true
+	}
+	for _, n := range e.Notes {
+		if !said[n] { // the proxy note is already among the warnings
+			writeWrapped(w, "      · ", n, o.width())
+		}
+	}
+}
+
+// DepthInterval writes a depth with its interval in one unit ("0.82 mm,
+// 95 % CI 0.79–0.85 mm"); open ends are said in words.
+func DepthInterval(d float64, ci fit.Interval, level float64) string {
+	f, unit := DepthScale(d)
+	scaled := fit.Interval{Lo: ci.Lo / f, Hi: ci.Hi / f}
+	return Estimate(d/f, scaled, level, unit)
+}
+
+// writeSelectionText writes the model comparison of --model auto.
+func writeSelectionText(w *bufio.Writer, s *fit.Selection, o TextOptions) {
+	var parts []string
+	for _, c := range s.Candidates {
+		if !c.Fitted {
+			note := "not fitted"
+			if c.Note != "" {
+				note += ": " + c.Note
+			}
+			parts = append(parts, fmt.Sprintf("%s %s", c.Model, note))
+			continue
+		}
+		parts = append(parts, fmt.Sprintf("%s ΔAICc %s (weight %s)", c.Model, Number(c.DeltaAICc, -1), Number(c.Weight, -2)))
+	}
+	writeWrapped(w, "  ", fmt.Sprintf("model chosen by %s: %s. Candidates: %s.", s.Criterion, s.Chosen, strings.Join(parts, "; ")), o.width())
+	for _, t := range s.Tests {
+		writeWrapped(w, "      · ", fmt.Sprintf("F-test %s inside %s: F = %s on (%d, %d) dof, p = %s. %s", t.Reduced, t.Full, Sig(t.F, 3), t.DF1, t.DF2, pText(t.P), t.Note), o.width())
+	}
+	for _, n := range s.Notes {
+		writeWrapped(w, "      · ", n, o.width())
+	}
+}
+
+func pText(p float64) string {
+	if !finite(p) {
+		return "not defined"
+	}
+	if p < 0.001 {
+		return "< 0.001"
+	}
+	return Sig(p, 2)
 }
 
 // writeWrapped writes prefix+text wrapped at width, continuation lines
