@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 
 	"github.com/fickfit/fickfit/fit"
@@ -370,7 +371,7 @@ func (c *Comparison) verdict(ref string) string {
 		if i > 0 {
 			sep = "; "
 		}
-		fmt.Fprintf(&b, "%sD of %s is %.3g times D of %s at %.6g K (%.6g °C) (%s CI %.3g–%.3g)", sep, r.Group, r.Value, ref, r.TRef, celsius(r.TRef), pct, r.CI.Lo, r.CI.Hi)
+		fmt.Fprintf(&b, "%sD of %s is %.3g times D of %s at %s °C (%.2f K) (%s CI %.3g–%.3g)", sep, r.Group, r.Value, ref, oneDecimal(celsius(r.TRef)), r.TRef, pct, r.CI.Lo, r.CI.Hi)
 	}
 	b.WriteString(".")
 	if !c.Differ {
@@ -427,4 +428,9 @@ func (c Comparison) MarshalJSON() ([]byte, error) {
 		out.Warnings = []fit.Warning{}
 	}
 	return json.Marshal(out)
+}
+
+// oneDecimal writes v with at most one decimal ("925", "924.1").
+func oneDecimal(v float64) string {
+	return strings.TrimSuffix(strconv.FormatFloat(v, 'f', 1, 64), ".0")
 }

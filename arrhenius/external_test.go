@@ -119,7 +119,7 @@ func TestCompareAgainstR(t *testing.T) {
 	if !c.Differ || r.Group != "L2" || r.Reference != "L1" {
 		t.Errorf("verdict fields: differ %v, %s vs %s", c.Differ, r.Group, r.Reference)
 	}
-	wantVerdict := "Lots L1 and L2 differ (p = 0.0061): D of L2 is 1.28 times D of L1 at 1198.15 K (925 °C) (95 % CI 1.11–1.47)."
+	wantVerdict := "Lots L1 and L2 differ (p = 0.0061): D of L2 is 1.28 times D of L1 at 925 °C (1198.15 K) (95 % CI 1.11–1.47)."
 	if c.Verdict != wantVerdict {
 		t.Errorf("verdict\n got %q\nwant %q", c.Verdict, wantVerdict)
 	}
