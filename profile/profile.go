@@ -29,7 +29,7 @@ type Profile struct {
 	// interface (a diffusion couple: header "position_<unit>"); such
 	// positions may be negative.
 	Across bool
-	Value []float64 // ValueUnit
+	Value  []float64 // ValueUnit
 	// Sigma holds the standard uncertainty of each value (ValueUnit);
 	// nil when the file has no sigma column.
 	Sigma []float64
