@@ -49,5 +49,5 @@ func (r *Result) bandQuantile() float64 {
 	if r.Covariance == "absolute" {
 		return distuv.UnitNormal.Quantile(0.5 + r.CILevel/2)
 	}
-	return distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(r.Stats.DOF)}.Quantile(0.5 + r.CILevel/2)
+	return tQuantile(r.Stats.DOF, r.CILevel)
 }

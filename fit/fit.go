@@ -213,6 +213,9 @@ func fitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 	if n < k+2 {
 		return nil, fmt.Errorf("%w: %d %s cannot support %d free parameters with an error estimate (need at least %d points); add points or fix a parameter with --fix", ErrBadInput, n, plural(n, "point", "points"), k, k+2)
 	}
+	if nd := distinctDepths(d.X); nd < k {
+		return nil, fmt.Errorf("%w: the points lie at only %d distinct %s, which cannot determine the %d free parameters of the %s model (need at least %d distinct depths); add points at other depths or fix a parameter with --fix", ErrNoAnswer, nd, plural(nd, "depth", "depths"), k, m.Name(), k)
+	}
 	if constant(d.Y) {
 		return nil, fmt.Errorf("%w: all %d values are equal (%g): there is no profile to fit", ErrBadInput, n, d.Y[0])
 	}
@@ -221,7 +224,7 @@ func fitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 		return nil, err
 	}
 	if !sol.Converged {
-		return nil, fmt.Errorf("%w: the %s fit did not converge: %s. Try fixing a parameter (--fix), adding deeper or shallower points, or another model", ErrNoAnswer, m.Name(), sol.Reason)
+		return nil, fmt.Errorf("%w: the %s fit did not converge: %s. Try fixing a parameter (--fix), adding deeper or shallower points, or another model", ErrNoAnswer, m.Name(), failureReason(m, sol, free))
 	}
 	r := &Result{
 		ID: p.ID, Source: p.Source, Lot: p.Lot, Material: p.Material, Model: m.Name(),
@@ -344,4 +347,57 @@ func plural(n int, one, many string) string {
 		return one
 	}
 	return many
+}
+
+// failureReason says in words why the solver stopped, naming parameters by
+// the names --fix takes.
+func failureReason(m Model, sol *Solution, free []bool) string {
+	params := m.Params()
+	switch {
+	case sol.Stuck >= 0 && sol.Stuck < len(params):
+		name := params[sol.Stuck].Name
+		return fmt.Sprintf("%s has no effect on the curve at the final point: it ran off towards an asymptote (0 or infinity), so these data do not determine %s", name, name)
+	case sol.Unidentified:
+		var idx []int
+		for j, f := range free {
+			if f {
+				idx = append(idx, j)
+			}
+		}
+		// The pair of free parameters whose Jacobian columns are most
+		// nearly parallel is the pair the data cannot tell apart.
+		k := len(idx)
+		bi, bj, best := -1, -1, -1.0
+		for a := 0; a < k; a++ {
+			for b := a + 1; b < k; b++ {
+				c := math.Abs(sol.JTJ[a*k+b]) / math.Sqrt(sol.JTJ[a*k+a]*sol.JTJ[b*k+b])
+				if c > best {
+					bi, bj, best = a, b, c
+				}
+			}
+		}
+		if bi >= 0 && finite(best) {
+			return fmt.Sprintf("%s and %s cannot be told apart by these data: their effects on the curve are nearly the same (column correlation %.6f, condition number %.2g)", params[idx[bi]].Name, params[idx[bj]].Name, best, sol.Cond)
+		}
+		return fmt.Sprintf("the free parameters cannot all be determined from these data (condition number %.2g)", sol.Cond)
+	}
+	return sol.Reason
+}
+
+// distinctDepths counts the different depths among x.
+func distinctDepths(x []float64) int {
+	if sort.Float64sAreSorted(x) {
+		n := 1
+		for i := 1; i < len(x); i++ {
+			if x[i] != x[i-1] {
+				n++
+			}
+		}
+		return n
+	}
+	seen := make(map[float64]struct{}, len(x))
+	for _, v := range x {
+		seen[v] = struct{}{}
+	}
+	return len(seen)
 }

@@ -79,6 +79,12 @@ type Solution struct {
 	Jac []float64
 	// Cond is the condition number of the unit-diagonal scaled JTJ.
 	Cond float64
+	// Stuck is the index of a free parameter that ran off to an asymptote
+	// (it no longer changes the model), or −1.
+	Stuck int
+	// Unidentified is true when the scaled JᵀWJ is too ill-conditioned for
+	// the free parameters to be told apart.
+	Unidentified bool
 }
 
 // Solve minimises the problem by Levenberg–Marquardt with Moré's scaling
@@ -169,7 +175,7 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 		}
 	}
 
-	sol := &Solution{}
+	sol := &Solution{Stuck: -1}
 	pr.Func(p, f, jac)
 	if !allFinite(f) || !allFinite(jac) {
 		return nil, fmt.Errorf("%w: the model cannot be evaluated at the starting values", ErrNoAnswer)
@@ -314,6 +320,7 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 		for aa, ja := range idx {
 			if math.Sqrt(a[aa*k+aa]/wmax(pr.W))*math.Max(math.Abs(p[ja]), 1) < 1e-9*yn {
 				sol.Converged = false
+				sol.Stuck = ja
 				sol.Reason = fmt.Sprintf("parameter %d has no effect on the model at the final point (it ran off towards an asymptote)", ja+1)
 				return sol, nil
 			}
@@ -321,6 +328,7 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 		sol.Cond = scaledCond(a, k)
 		if c := sol.Cond; !(c <= set.CondMax) {
 			sol.Converged = false
+			sol.Unidentified = true
 			sol.Reason = fmt.Sprintf("the free parameters are not identified by the data (condition number of the scaled JᵀWJ %.2g)", c)
 		}
 	}
