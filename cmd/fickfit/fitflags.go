@@ -28,7 +28,7 @@ type fitFlags struct {
 	decarbFraction               float64
 	hardnessCal                  string
 	cal                          *profile.Calibration
-	dc                           string
+	dc, dcTable                  string
 	surface                      string
 }
 
@@ -50,7 +50,8 @@ func (f *fitFlags) register(c *cobra.Command) {
 	fl.IntVar(&f.faces, "faces", 2, "slab model: 2 = both faces exposed, 1 = far face sealed")
 	fl.StringVar(&f.caseThreshold, "case-threshold", "", "effective case depth at this level: 550HV1 (absolute hardness), core+50HV (margin over core), 0.35wt% (concentration)")
 	fl.Float64Var(&f.decarbFraction, "decarb-fraction", 0, "decarburization depth: where the profile has recovered this fraction of the way to the base level (e.g. 0.95)")
-	fl.StringVar(&f.dc, "dc", "const", "numeric model: concentration dependence of D: const or exp (D(C) = D·exp(k·(C − C0)))")
+	fl.StringVar(&f.dc, "dc", "const", "numeric model: concentration dependence of D: const, exp (D(C) = D·exp(k·(C − C0))) or table (--dc-table)")
+	fl.StringVar(&f.dcTable, "dc-table", "", "numeric model with --dc table: CSV of D against concentration (e.g. C_wt%,D_m2/s); its shape is kept and its scale fitted")
 	fl.StringVar(&f.surface, "surface", "fixed", "numeric model: surface condition: fixed (Cs) or masstransfer (beta, Cp)")
 	fl.StringVar(&f.hardnessCal, "hardness-calibration", "", "CSV of hardness–concentration pairs for this material: hardness profiles are converted to concentration before fitting")
 }
@@ -79,6 +80,18 @@ func (f *fitFlags) options() (fit.Options, error) {
 	}
 	if strings.EqualFold(f.model, "numeric") {
 		cfg := numeric.Config{DC: f.dc}
+		if f.dc == "table" {
+			if f.dcTable == "" {
+				return o, usagef("--dc table needs --dc-table FILE")
+			}
+			c, d, err := profile.ReadDiffusivityTable(f.dcTable)
+			if err != nil {
+				return o, err
+			}
+			if cfg.Table, err = numeric.NewTable(c, d); err != nil {
+				return o, usagef("--dc-table: %v", err)
+			}
+		}
 		switch f.surface {
 		case "fixed":
 		case "masstransfer":
