@@ -229,6 +229,16 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 				lambda *= 10
 				continue
 			}
+			if tries == 0 && gaussNewtonLike(a, diag, lambda, k) {
+				// With negligible damping the quadratic model is the
+				// Gauss–Newton one: when even its full step would reduce S
+				// by less than FTol relatively, S is at its minimum to
+				// working precision and the trial evaluation is not needed.
+				if predicted(a, g, delta, k) <= set.FTol*cur {
+					converged, reason = true, "predicted reduction of the residual sum below tolerance"
+					break
+				}
+			}
 			copy(trial, p)
 			for aa, ja := range idx {
 				trial[ja] += delta[aa]
@@ -238,15 +248,7 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 			if allFinite(ftr) {
 				next = rss(ftr)
 			}
-			// Predicted reduction of the quadratic model: δᵀ(2g − Aδ).
-			var pred float64
-			for aa := 0; aa < k; aa++ {
-				var ad float64
-				for bb := 0; bb < k; bb++ {
-					ad += a[aa*k+bb] * delta[bb]
-				}
-				pred += delta[aa] * (2*g[aa] - ad)
-			}
+			pred := predicted(a, g, delta, k)
 			var dx, xn float64
 			for aa, ja := range idx {
 				d := diag[aa]
@@ -336,6 +338,36 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 }
 
 const tiny = 1e-300
+
+// predicted is the reduction of S that the quadratic model predicts for
+// the step δ: δᵀ(2g − Aδ).
+func predicted(a, g, delta []float64, k int) float64 {
+	var pred float64
+	for aa := 0; aa < k; aa++ {
+		var ad float64
+		for bb := 0; bb < k; bb++ {
+			ad += a[aa*k+bb] * delta[bb]
+		}
+		pred += delta[aa] * (2*g[aa] - ad)
+	}
+	return pred
+}
+
+// gaussNewtonLike reports whether the damping λ·d² is below 1 % of every
+// diagonal element of JᵀWJ: the damped step then predicts nearly the same
+// reduction as the Gauss–Newton step.
+func gaussNewtonLike(a, diag []float64, lambda float64, k int) bool {
+	for j := 0; j < k; j++ {
+		d := diag[j]
+		if d == 0 {
+			d = 1
+		}
+		if lambda*d*d > 1e-2*a[j*k+j] {
+			return false
+		}
+	}
+	return true
+}
 
 // wmax returns the largest weight (1 when unweighted), used to put JᵀWJ back
 // on the scale of the observations.
