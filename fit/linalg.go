@@ -88,8 +88,8 @@ func jacobiEigen(s []float64, k int) {
 // which keeps the inverse accurate when parameters differ by many orders
 // of magnitude.
 func invertSPD(a []float64, k int) ([][]float64, bool) {
-	back := make([]float64, 3*k*k+k)
-	l, inv, s, sc := back[:k*k], back[k*k:2*k*k], back[2*k*k:3*k*k], back[3*k*k:]
+	back := make([]float64, 2*k*k+2*k)
+	inv, s, sc, e := back[:k*k], back[k*k:2*k*k], back[2*k*k:2*k*k+k], back[2*k*k+k:]
 	for i := 0; i < k; i++ {
 		if !(a[i*k+i] > 0) {
 			return nil, false
@@ -101,44 +101,18 @@ func invertSPD(a []float64, k int) ([][]float64, bool) {
 			s[i*k+j] = a[i*k+j] * sc[i] * sc[j]
 		}
 	}
-	// Cholesky s = L Lᵀ.
-	for j := 0; j < k; j++ {
-		d := s[j*k+j]
-		for m := 0; m < j; m++ {
-			d -= l[j*k+m] * l[j*k+m]
-		}
-		if !(d > 1e-15) { // relative to the unit diagonal: numerically singular
-			return nil, false
-		}
-		l[j*k+j] = math.Sqrt(d)
-		for i := j + 1; i < k; i++ {
-			t := s[i*k+j]
-			for m := 0; m < j; m++ {
-				t -= l[i*k+m] * l[j*k+m]
-			}
-			l[i*k+j] = t / l[j*k+j]
-		}
+	// Cholesky s = L Lᵀ; a pivot below 1e-15 of the unit diagonal means
+	// the matrix is numerically singular.
+	if !cholesky(s, k, 1e-15) {
+		return nil, false
 	}
-	// Columns of the inverse: solve L Lᵀ x = e_c.
+	// Column c of the inverse solves L Lᵀ x = e_c.
 	for c := 0; c < k; c++ {
-		x := inv[c*k : (c+1)*k]
-		for i := 0; i < k; i++ {
-			t := 0.0
-			if i == c {
-				t = 1
-			}
-			for m := 0; m < i; m++ {
-				t -= l[i*k+m] * x[m]
-			}
-			x[i] = t / l[i*k+i]
+		for i := range e {
+			e[i] = 0
 		}
-		for i := k - 1; i >= 0; i-- {
-			t := x[i]
-			for m := i + 1; m < k; m++ {
-				t -= l[m*k+i] * x[m]
-			}
-			x[i] = t / l[i*k+i]
-		}
+		e[c] = 1
+		cholSubst(s, e, inv[c*k:(c+1)*k], k)
 	}
 	out := make([][]float64, k)
 	for i := range out {
@@ -148,4 +122,59 @@ func invertSPD(a []float64, k int) ([][]float64, bool) {
 		}
 	}
 	return out, true
+}
+
+// cholesky overwrites the lower triangle of the k×k symmetric matrix a
+// (row-major) with its Cholesky factor L, a = L Lᵀ. It reports false when a
+// pivot falls to minPivot or below: the matrix is not (numerically)
+// positive definite.
+func cholesky(a []float64, k int, minPivot float64) bool {
+	for j := 0; j < k; j++ {
+		s := a[j*k+j]
+		for m := 0; m < j; m++ {
+			s -= a[j*k+m] * a[j*k+m]
+		}
+		if !(s > minPivot) {
+			return false
+		}
+		d := math.Sqrt(s)
+		a[j*k+j] = d
+		for i := j + 1; i < k; i++ {
+			t := a[i*k+j]
+			for m := 0; m < j; m++ {
+				t -= a[i*k+m] * a[j*k+m]
+			}
+			a[i*k+j] = t / d
+		}
+	}
+	return true
+}
+
+// cholSubst solves L Lᵀ x = b given the factor L in the lower triangle of l.
+func cholSubst(l, b, x []float64, k int) {
+	for i := 0; i < k; i++ {
+		t := b[i]
+		for m := 0; m < i; m++ {
+			t -= l[i*k+m] * x[m]
+		}
+		x[i] = t / l[i*k+i]
+	}
+	for i := k - 1; i >= 0; i-- {
+		t := x[i]
+		for m := i + 1; m < k; m++ {
+			t -= l[m*k+i] * x[m]
+		}
+		x[i] = t / l[i*k+i]
+	}
+}
+
+// cholSolve solves a x = b for symmetric positive definite a (k×k,
+// row-major), overwriting a with its Cholesky factor. It reports false when
+// a is not numerically positive definite.
+func cholSolve(a, b, x []float64, k int) bool {
+	if !cholesky(a, k, 0) {
+		return false
+	}
+	cholSubst(a, b, x, k)
+	return true
 }
