@@ -1,15 +1,20 @@
 package main
 
 import (
+	"io"
+	"path/filepath"
+	"strings"
+
 	"github.com/spf13/cobra"
 
 	"github.com/fickfit/fickfit/fit/matano"
 	"github.com/fickfit/fickfit/profile"
+	"github.com/fickfit/fickfit/report"
 )
 
 func newMatanoCmd() *cobra.Command {
 	var out outFlags
-	var method, tm string
+	var method, tm, figure string
 	var at []float64
 	var level float64
 	var resamples int
@@ -58,6 +63,11 @@ Near the end compositions the method is ill-conditioned and says so.`,
 				}
 				results = append(results, r)
 			}
+			if figure != "" {
+				if err := writeMatanoFigures(figure, results, ps); err != nil {
+					return err
+				}
+			}
 			return out.write(c, func(w writer) error { return writeValue(w, out.format, results) })
 		},
 	}
@@ -69,5 +79,34 @@ Near the end compositions the method is ill-conditioned and says so.`,
 	fl.Float64Var(&level, "level", 0.95, "confidence level of the bootstrap band")
 	fl.IntVar(&resamples, "resamples", 1000, "bootstrap resamples for the band")
 	fl.Uint64Var(&seed, "seed", 1, "bootstrap seed: the same seed gives the same band")
+	fl.StringVar(&figure, "figure", "", "also draw the profile and D(C) to this .svg or .png file (one file per couple: the id is added when there are several)")
 	return c
+}
+
+// writeMatanoFigures draws each analysis to path (SVG or PNG by extension).
+func writeMatanoFigures(path string, results []*matano.Result, ps []profile.Profile) error {
+	ext := strings.ToLower(filepath.Ext(path))
+	if ext != ".svg" && ext != ".png" {
+		return usagef("--figure %s: name an .svg or .png file", path)
+	}
+	for i, r := range results {
+		f, err := report.MatanoFigure(r, &ps[i], report.FigureOptions{})
+		if err != nil {
+			return err
+		}
+		target := path
+		if len(results) > 1 {
+			target = strings.TrimSuffix(path, filepath.Ext(path)) + "-" + f.Name + ext
+		}
+		err = report.WriteFileAtomic(target, func(w io.Writer) error {
+			if ext == ".png" {
+				return f.WritePNG(w, 0)
+			}
+			return f.WriteSVG(w)
+		})
+		if err != nil {
+			return err
+		}
+	}
+	return nil
 }
