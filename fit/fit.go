@@ -139,19 +139,21 @@ func setup(m Model, d *Data, o Options) (p0 []float64, free []bool, err error) {
 		return nil, nil, err
 	}
 	free = make([]bool, len(params))
-	index := map[string]int{}
-	var names []string
 	for j, pa := range params {
 		free[j] = pa.Free
-		index[strings.ToLower(pa.Name)] = j
-		names = append(names, pa.Name)
 	}
 	lookup := func(name string) (int, error) {
-		j, ok := index[strings.ToLower(strings.TrimSpace(name))]
-		if !ok {
-			return 0, fmt.Errorf("%w: the %s model has no parameter %q (its parameters: %s)", ErrBadInput, m.Name(), name, strings.Join(names, ", "))
+		name = strings.TrimSpace(name)
+		for j, pa := range params {
+			if strings.EqualFold(pa.Name, name) {
+				return j, nil
+			}
 		}
-		return j, nil
+		names := make([]string, len(params))
+		for j, pa := range params {
+			names[j] = pa.Name
+		}
+		return 0, fmt.Errorf("%w: the %s model has no parameter %q (its parameters: %s)", ErrBadInput, m.Name(), name, strings.Join(names, ", "))
 	}
 	for _, name := range o.Free {
 		j, err := lookup(name)
@@ -160,7 +162,7 @@ func setup(m Model, d *Data, o Options) (p0 []float64, free []bool, err error) {
 		}
 		free[j] = true
 	}
-	fixedNames := make([]string, 0, len(o.Fixed))
+	var fixedNames []string
 	for name := range o.Fixed {
 		fixedNames = append(fixedNames, name)
 	}

@@ -108,12 +108,10 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	r.CIMethod = "wald"
 
 	r.Residuals = make([]Residual, n)
-	res := make([]float64, n)
 	for i := range d.X {
-		res[i] = d.Y[i] - sol.F[i]
-		r.Residuals[i] = Residual{Depth: d.X[i], Observed: d.Y[i], Fitted: sol.F[i], Residual: res[i]}
+		r.Residuals[i] = Residual{Depth: d.X[i], Observed: d.Y[i], Fitted: sol.F[i], Residual: d.Y[i] - sol.F[i]}
 	}
-	r.Stats.RunsP = runsTest(d.X, res)
+	r.Stats.RunsP = runsOf(n, func(i int) (float64, float64) { return r.Residuals[i].Depth, r.Residuals[i].Residual })
 
 	switch o.CI {
 	case "", "profile":
@@ -201,26 +199,39 @@ func aicc(rss float64, n, k int) float64 {
 // positive and negative residuals; zero residuals are dropped. Too few
 // signs of either kind give NaN.
 func runsTest(x, res []float64) float64 {
+	return runsOf(len(x), func(i int) (float64, float64) { return x[i], res[i] })
+}
+
+// runsOf is runsTest on n points given by at(i) = (depth, residual).
+func runsOf(n int, at func(i int) (depth, resid float64)) float64 {
 	var idx []int
-	if !sort.Float64sAreSorted(x) {
-		idx = make([]int, len(x))
-		for i := range idx {
-			idx[i] = i
+	for i := 1; i < n; i++ {
+		prev, _ := at(i - 1)
+		if cur, _ := at(i); cur < prev { // not in depth order: sort an index
+			idx = make([]int, n)
+			for j := range idx {
+				idx[j] = j
+			}
+			sort.SliceStable(idx, func(p, q int) bool {
+				dp, _ := at(idx[p])
+				dq, _ := at(idx[q])
+				return dp < dq
+			})
+			break
 		}
-		sort.SliceStable(idx, func(a, b int) bool { return x[idx[a]] < x[idx[b]] })
 	}
 	var n1, n2, runs int
 	prev := 0
-	for k := range res {
+	for k := 0; k < n; k++ {
 		i := k
 		if idx != nil {
 			i = idx[k]
 		}
 		s := 0
-		switch {
-		case res[i] > 0:
+		switch _, e := at(i); {
+		case e > 0:
 			s, n1 = 1, n1+1
-		case res[i] < 0:
+		case e < 0:
 			s, n2 = -1, n2+1
 		default:
 			continue
