@@ -66,7 +66,6 @@ func BenchmarkFitAll10k(b *testing.B) {
 	perBatch := b.Elapsed().Seconds() / float64(b.N)
 	b.ReportMetric(perBatch, "s/batch")
 	b.ReportMetric(perBatch/float64(len(ps))*1e6, "µs/fit")
-	b.ReportMetric(float64(runtime.GOMAXPROCS(0)), "procs")
 }
 
 // TestFitAllOrderAndDeterminism: FitAll returns the results in input order,
