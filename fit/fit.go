@@ -232,9 +232,11 @@ func fitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 		ID: p.ID, Source: p.Source, Lot: p.Lot, Material: p.Material, Model: m.Name(),
 		ValueUnit: p.ValueUnit, Converged: true, Time: p.Time, Temperature: p.Temperature,
 		TemperatureSigma: p.TemperatureSigma, Thickness: d.Thickness, Meta: p.Meta,
-		model: m, data: d, pint: sol.P, free: free,
+		model: m, data: d, pint: append([]float64(nil), sol.P...), free: free,
 	}
-	if err := r.finish(sol, o); err != nil {
+	err = r.finish(sol, o)
+	sol.release() // the result keeps copies, not the solver's workspace
+	if err != nil {
 		return nil, err
 	}
 	if err := r.depths(o); err != nil {

@@ -3,6 +3,7 @@ package fit
 import (
 	"fmt"
 	"math"
+	"sync"
 )
 
 // Problem is a weighted nonlinear least-squares problem:
@@ -85,6 +86,8 @@ type Solution struct {
 	// Unidentified is true when the scaled JᵀWJ is too ill-conditioned for
 	// the free parameters to be told apart.
 	Unidentified bool
+
+	work *[]float64 // the workspace P, F, Jac and JTJ live in
 }
 
 // Solve minimises the problem by Levenberg–Marquardt with Moré's scaling
@@ -124,7 +127,17 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 	// One workspace block: p, trial, f, ftrial, jac, jtrial, a (JᵀWJ), chol, g, diag, delta.
 	// Trial points are evaluated with their Jacobian: most trials are
 	// accepted, and the Jacobian costs little beyond the values.
-	buf := make([]float64, 2*np+2*n+2*n*np+2*k*k+3*k)
+	size := 2*np + 2*n + 2*n*np + 2*k*k + 3*k
+	var buf []float64
+	bp, _ := workPool.Get().(*[]float64)
+	if bp != nil && cap(*bp) >= size {
+		buf = (*bp)[:size]
+		clear(buf)
+	} else {
+		buf = make([]float64, size)
+		bp = &buf
+	}
+	whole := buf
 	take := func(m int) []float64 { v := buf[:m:m]; buf = buf[m:]; return v }
 	p, trial := take(np), take(np)
 	f, ftr := take(n), take(n)
@@ -306,6 +319,8 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 	normal()
 	// The solution keeps the workspace it was computed in: no copies.
 	sol.P, sol.F, sol.Jac, sol.JTJ = p, f, jac, a
+	*bp = whole
+	sol.work = bp
 	sol.RSS = cur
 	sol.Iterations = iter
 	sol.Converged = converged
@@ -338,6 +353,19 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 }
 
 const tiny = 1e-300
+
+// workPool recycles Solve workspaces released by fits that are done with them.
+var workPool sync.Pool
+
+// release returns the workspace to the pool; the solution's slices must not
+// be used afterwards.
+func (s *Solution) release() {
+	if s == nil || s.work == nil {
+		return
+	}
+	workPool.Put(s.work)
+	s.work, s.P, s.F, s.Jac, s.JTJ = nil, nil, nil, nil, nil
+}
 
 // predicted is the reduction of S that the quadratic model predicts for
 // the step δ: δᵀ(2g − Aδ).
