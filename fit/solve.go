@@ -92,7 +92,7 @@ type Solution struct {
 
 // Solve minimises the problem by Levenberg–Marquardt with Moré's scaling
 // (J. J. Moré, "The Levenberg–Marquardt algorithm: implementation and
-// theory", Lecture Notes in Mathematics 630, 1978): the damped normal
+// theory", in Numerical Analysis, ed. G. A. Watson, Springer LNM 630, 1978): the damped normal
 // equations (JᵀWJ + λ·diag(d²)) δ = JᵀW r, with d the running maximum of the
 // column norms, solved by Cholesky. We keep our own small solver rather than
 // gonum/optimize so that one fit allocates only its workspace: a profile

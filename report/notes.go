@@ -16,7 +16,7 @@ var MethodNotes = []MethodNote{
 		"J. Crank, The Mathematics of Diffusion, 2nd ed., Oxford University Press, 1975, chapters 2–4 (chapter numbers from memory)"},
 	{"Least squares",
 		"Parameters are estimated by weighted nonlinear least squares (Levenberg–Marquardt with Moré's scaling), D on the logarithmic scale so that it stays positive; the solver is checked against the NIST Statistical Reference Datasets for nonlinear regression.",
-		"J. J. Moré, The Levenberg–Marquardt algorithm: implementation and theory, Lecture Notes in Mathematics 630, Springer, 1978; NIST StRD, Nonlinear Regression"},
+		"J. J. Moré, The Levenberg–Marquardt algorithm: implementation and theory, in Numerical Analysis (ed. G. A. Watson), Springer LNM 630, 1978; NIST StRD, Nonlinear Regression"},
 	{"Intervals of the parameters",
 		"Standard errors come from the covariance s²(JᵀWJ)⁻¹ (scaled by the reduced χ² unless the σ are taken as known). Intervals are Wald intervals with Student-t quantiles, profile-likelihood intervals (signed root statistic against t), or seeded bootstrap intervals (percentile or BCa). An interval end the data do not determine is reported as open.",
 		"D. M. Bates & D. G. Watts, Nonlinear Regression Analysis and Its Applications, Wiley, 1988, §6.1; B. Efron & R. J. Tibshirani, An Introduction to the Bootstrap, Chapman & Hall, 1993 (section numbers from memory)"},

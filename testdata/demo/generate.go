@@ -10,6 +10,7 @@ package main
 
 import (
 	"fmt"
+	"log"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -87,9 +88,9 @@ func main() {
 
 func write(path, s string) {
 	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-		panic(err)
+		log.Fatal(err)
 	}
 	if err := os.WriteFile(path, []byte(s), 0o644); err != nil {
-		panic(err)
+		log.Fatal(err)
 	}
 }
