@@ -159,13 +159,15 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 		return sum
 	}
 	// normal builds a = JᵀWJ and g = JᵀW r over the free parameters.
+	var jfBuf [16]float64
+	jf := jfBuf[:0]
+	if k > len(jfBuf) {
+		jf = make([]float64, 0, k)
+	}
+	jf = jf[:k]
 	normal := func() {
-		for i := range a {
-			a[i] = 0
-		}
-		for i := range g {
-			g[i] = 0
-		}
+		clear(a)
+		clear(g)
 		for i := 0; i < n; i++ {
 			w := 1.0
 			if pr.W != nil {
@@ -174,10 +176,14 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 			r := pr.Y[i] - f[i]
 			row := jac[i*np : (i+1)*np]
 			for aa, ja := range idx {
-				wj := w * row[ja]
+				jf[aa] = row[ja]
+			}
+			for aa, ja := range jf {
+				wj := w * ja
 				g[aa] += wj * r
-				for bb := 0; bb <= aa; bb++ {
-					a[aa*k+bb] += wj * row[idx[bb]]
+				arow := a[aa*k : aa*k+aa+1]
+				for bb := range arow {
+					arow[bb] += wj * jf[bb]
 				}
 			}
 		}
@@ -200,6 +206,10 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 	iter := 1
 	for ; iter <= set.MaxIter; iter++ {
 		normal()
+		if !allFinite(a) || !allFinite(g) {
+			reason = "the Jacobian is not finite at the current parameters"
+			break
+		}
 		// Moré's scaling: d_j = max over iterations of the column norm.
 		var gmax float64
 		for aa := 0; aa < k; aa++ {
@@ -257,9 +267,9 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 				trial[ja] += delta[aa]
 			}
 			pr.Func(trial, ftr, jtr)
-			next := math.Inf(1)
-			if allFinite(ftr) {
-				next = rss(ftr)
+			next := rss(ftr) // NaN or Inf when any value is not finite
+			if !finite(next) {
+				next = math.Inf(1)
 			}
 			pred := predicted(a, g, delta, k)
 			var dx, xn float64
@@ -305,10 +315,6 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 		}
 		if !stepped {
 			reason = "the damped step could not reduce the residual sum"
-			break
-		}
-		if !allFinite(jac) {
-			reason = "the Jacobian is not finite at the current parameters"
 			break
 		}
 	}
