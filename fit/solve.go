@@ -168,6 +168,10 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 	normal := func() {
 		clear(a)
 		clear(g)
+		if k == 3 {
+			normal3(pr, f, jac, np, idx, a, g)
+			return
+		}
 		for i := 0; i < n; i++ {
 			w := 1.0
 			if pr.W != nil {
@@ -371,6 +375,42 @@ func (s *Solution) release() {
 	}
 	workPool.Put(s.work)
 	s.work, s.P, s.F, s.Jac, s.JTJ = nil, nil, nil, nil, nil
+}
+
+// normal3 builds JᵀWJ and JᵀW r for exactly three free parameters, the
+// case of every default fit (D, Cs, C0), with the sums held in registers.
+func normal3(pr Problem, f, jac []float64, np int, idx []int, a, g []float64) {
+	j0, j1, j2 := idx[0], idx[1], idx[2]
+	var a00, a10, a11, a20, a21, a22, g0, g1, g2 float64
+	for i, y := range pr.Y {
+		row := jac[i*np : (i+1)*np]
+		x0, x1, x2 := row[j0], row[j1], row[j2]
+		r := y - f[i]
+		if pr.W != nil {
+			w := pr.W[i]
+			r *= w
+			a00 += w * x0 * x0
+			a10 += w * x1 * x0
+			a11 += w * x1 * x1
+			a20 += w * x2 * x0
+			a21 += w * x2 * x1
+			a22 += w * x2 * x2
+		} else {
+			a00 += x0 * x0
+			a10 += x1 * x0
+			a11 += x1 * x1
+			a20 += x2 * x0
+			a21 += x2 * x1
+			a22 += x2 * x2
+		}
+		g0 += x0 * r
+		g1 += x1 * r
+		g2 += x2 * r
+	}
+	a[0], a[1], a[2] = a00, a10, a20
+	a[3], a[4], a[5] = a10, a11, a21
+	a[6], a[7], a[8] = a20, a21, a22
+	g[0], g[1], g[2] = g0, g1, g2
 }
 
 // predicted is the reduction of S that the quadratic model predicts for
