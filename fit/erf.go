@@ -25,15 +25,16 @@ func init() { register("erf", func() Model { return Erf{} }) }
 // Name implements Model.
 func (Erf) Name() string { return "erf" }
 
-// Params implements Model.
-func (Erf) Params() []Param {
-	return []Param{
-		{Name: "D", Log: true, Unit: "m2/s", Free: true},
-		{Name: "Cs", Unit: "value", Free: true},
-		{Name: "C0", Unit: "value", Free: true},
-		{Name: "x0", Unit: "m", Free: false},
-	}
+// erfParams is shared by every call of Params: callers only read it.
+var erfParams = []Param{
+	{Name: "D", Log: true, Unit: "m2/s", Free: true},
+	{Name: "Cs", Unit: "value", Free: true},
+	{Name: "C0", Unit: "value", Free: true},
+	{Name: "x0", Unit: "m", Free: false},
 }
+
+// Params implements Model. The slice is shared: do not modify it.
+func (Erf) Params() []Param { return erfParams }
 
 // erfHalf is the u at which erf(u) = 1/2 (Abramowitz & Stegun, Handbook of
 // Mathematical Functions, 1964, Table 7.1: 0.476936; value from memory).

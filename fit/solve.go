@@ -128,15 +128,13 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 	// Trial points are evaluated with their Jacobian: most trials are
 	// accepted, and the Jacobian costs little beyond the values.
 	size := 2*np + 2*n + 2*n*np + 2*k*k + 3*k
-	var buf []float64
 	bp, _ := workPool.Get().(*[]float64)
-	if bp != nil && cap(*bp) >= size {
-		buf = (*bp)[:size]
-		clear(buf)
-	} else {
-		buf = make([]float64, size)
-		bp = &buf
+	if bp == nil || cap(*bp) < size {
+		fresh := make([]float64, size)
+		bp = &fresh
 	}
+	buf := (*bp)[:size]
+	clear(buf)
 	whole := buf
 	take := func(m int) []float64 { v := buf[:m:m]; buf = buf[m:]; return v }
 	p, trial := take(np), take(np)

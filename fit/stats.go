@@ -15,14 +15,18 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	d, m := r.data, r.model
 	params := m.Params()
 	n := len(d.X)
-	var idx []int
+	k := 0
+	for _, f := range r.free {
+		if f {
+			k++
+		}
+	}
+	r.FreeNames = make([]string, 0, k)
 	for j, f := range r.free {
 		if f {
-			idx = append(idx, j)
 			r.FreeNames = append(r.FreeNames, params[j].Name)
 		}
 	}
-	k := len(idx)
 	dof := n - k
 	r.Stats = Stats{N: n, DOF: dof, RSS: sol.RSS, Iterations: sol.Iterations}
 	r.Stats.Chi2Red = sol.RSS / float64(dof)
