@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"strings"
 	"sync"
 )
 
@@ -103,6 +104,11 @@ func WriteCampaign(dir string, res *CampaignResult, opts CampaignOptions) ([]str
 	if res == nil {
 		return nil, errors.New("no campaign result to write")
 	}
+	if !opts.Force {
+		if foreign := ForeignEntries(dir); len(foreign) > 0 {
+			return nil, fmt.Errorf("%w: the report folder %s already holds %s, which an earlier report did not write; choose an empty folder or add --force", ErrExists, dir, strings.Join(foreign, ", "))
+		}
+	}
 	figDir := filepath.Join(dir, DirFigures)
 	if err := os.MkdirAll(figDir, 0o755); err != nil {
 		return nil, fmt.Errorf("cannot create the report folder: %w", err)
@@ -188,4 +194,30 @@ func WriteCampaign(dir string, res *CampaignResult, opts CampaignOptions) ([]str
 		opts.progress("write", i+1, len(jobs))
 	}
 	return written, nil
+}
+
+// reportNames are the entries a campaign report folder holds.
+var reportNames = map[string]bool{
+	FileJSON: true, FileCSV: true, FileResiduals: true, FileArrhenius: true, FileBackcalc: true,
+	FileSummary: true, FileWorkbook: true, FileHTML: true, DirFigures: true,
+}
+
+// ForeignEntries lists (up to three) entries of dir that are not part of a
+// fickfit report: a folder holding only an earlier report may be rewritten,
+// anything else needs --force.
+func ForeignEntries(dir string) []string {
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		return nil
+	}
+	var out []string
+	for _, e := range entries {
+		if !reportNames[e.Name()] {
+			out = append(out, e.Name())
+			if len(out) == 3 {
+				break
+			}
+		}
+	}
+	return out
 }

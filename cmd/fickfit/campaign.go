@@ -154,6 +154,10 @@ controller fault. All numbers are made up for the demonstration.`,
 			if err != nil {
 				return err
 			}
+			// The demo may rewrite its own earlier report, never other files.
+			if !o.Force && len(report.ForeignEntries(cf.out)) == 0 {
+				o.Force = true
+			}
 			res, err := report.CampaignFS(fickfit.Demo(), o)
 			if err != nil {
 				return err

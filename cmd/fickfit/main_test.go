@@ -149,3 +149,28 @@ func TestUsageErrors(t *testing.T) {
 		}
 	}
 }
+
+// TestCampaignFolderSafety: a report folder holding other files is refused
+// without --force and left as it was; the demo may rewrite its own report
+// (common practice, no source).
+func TestCampaignFolderSafety(t *testing.T) {
+	dir := t.TempDir()
+	mine := filepath.Join(dir, "notes.txt")
+	if err := os.WriteFile(mine, []byte("lab notes"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, _, stderr := runCLI(t, "demo", "--out", dir, "--no-png", "--ci", "wald")
+	if code != 2 || !strings.Contains(stderr, "--force") {
+		t.Fatalf("non-empty folder: exit %d, %s", code, stderr)
+	}
+	entries, _ := os.ReadDir(dir)
+	if len(entries) != 1 {
+		t.Errorf("files were written into a refused folder: %v", entries)
+	}
+	out := filepath.Join(t.TempDir(), "demo")
+	for run := 0; run < 2; run++ {
+		if code, _, stderr := runCLI(t, "demo", "--out", out, "--no-png", "--ci", "wald"); code != 0 {
+			t.Fatalf("demo run %d: exit %d: %s", run+1, code, stderr)
+		}
+	}
+}
