@@ -438,40 +438,10 @@ func (gp *globalProblem) toLnD0(c [2][2]float64) [2][2]float64 {
 // key (case-insensitive), in order of first appearance. A profile without
 // a value is an error naming it.
 func GroupProfiles(ps []profile.Profile, by string) (names []string, groups [][]profile.Profile, err error) {
-	key := strings.ToLower(strings.TrimSpace(by))
-	if key == "" {
-		return []string{""}, [][]profile.Profile{ps}, nil
-	}
-	index := map[string]int{}
-	for _, p := range ps {
-		v := ""
-		switch {
-		case key == "lot" && p.Lot != "":
-			v = p.Lot
-		case key == "material" && p.Material != "":
-			v = p.Material
-		default:
-			for k, mv := range p.Meta {
-				if strings.ToLower(k) == key {
-					v = strings.TrimSpace(mv)
-				}
-			}
-		}
-		if v == "" {
-			e := badInput(p.ID, by, "this profile has no value for the grouping column %q; add it to the file's metadata or choose another column", by)
-			e.Source = p.Source
-			return nil, nil, e
-		}
-		i, ok := index[v]
-		if !ok {
-			i = len(names)
-			index[v] = i
-			names = append(names, v)
-			groups = append(groups, nil)
-		}
-		groups[i] = append(groups[i], p)
-	}
-	return names, groups, nil
+	return groupBy(ps, by, func(p profile.Profile) (string, bool, string, string) {
+		v, ok := groupValue(by, p.Lot, p.Material, p.Meta)
+		return v, ok, p.ID, p.Source
+	})
 }
 
 // TwoStageGroups runs TwoStage on each group of points (see GroupPoints);

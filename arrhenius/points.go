@@ -100,40 +100,60 @@ func PointsFromResults(rs []*fit.Result) ([]Point, error) {
 // (the Lot field, else Meta["lot"]) or any metadata key (case-insensitive).
 // ok is false when the point has no such value.
 func (p Point) GroupKey(by string) (string, bool) {
+	return groupValue(by, p.Lot, "", p.Meta)
+}
+
+// groupValue is the value of the grouping column by for a profile with the
+// given lot, material and metadata: lot and material from their own
+// fields, anything else from the metadata (keys compared without case).
+func groupValue(by, lot, material string, meta map[string]string) (string, bool) {
 	key := strings.ToLower(strings.TrimSpace(by))
-	if key == "lot" && p.Lot != "" {
-		return p.Lot, true
+	switch {
+	case key == "lot" && lot != "":
+		return lot, true
+	case key == "material" && material != "":
+		return material, true
 	}
-	v, ok := p.Meta[key]
-	if !ok || strings.TrimSpace(v) == "" {
-		return "", false
+	for k, v := range meta {
+		if strings.ToLower(k) == key && strings.TrimSpace(v) != "" {
+			return strings.TrimSpace(v), true
+		}
 	}
-	return strings.TrimSpace(v), true
+	return "", false
 }
 
 // GroupPoints splits points by the column by (see Point.GroupKey), keeping
 // groups in order of first appearance. by == "" gives one group named "".
 // A point without a value for the column is an error naming it.
 func GroupPoints(pts []Point, by string) (names []string, groups [][]Point, err error) {
+	return groupBy(pts, by, func(p Point) (string, bool, string, string) {
+		v, ok := p.GroupKey(by)
+		return v, ok, p.ID, p.Source
+	})
+}
+
+// groupBy splits items by the value key gives (with the item's id and
+// source for the error), keeping groups in order of first appearance.
+func groupBy[T any](items []T, by string, key func(T) (value string, ok bool, id, source string)) (names []string, groups [][]T, err error) {
 	if strings.TrimSpace(by) == "" {
-		return []string{""}, [][]Point{pts}, nil
+		return []string{""}, [][]T{items}, nil
 	}
 	index := map[string]int{}
-	for _, p := range pts {
-		g, ok := p.GroupKey(by)
+	for _, it := range items {
+		v, ok, id, source := key(it)
 		if !ok {
-			e := badInput(p.ID, by, "this profile has no value for the grouping column %q; add it to the file's metadata or choose another column", by)
-			e.Source = p.Source
+			e := badInput(id, by, "this profile has no value for the grouping column %q; add it to the file's metadata or choose another column", by)
+			e.Source = source
 			return nil, nil, e
 		}
-		i, seen := index[g]
+		i, seen := index[v]
 		if !seen {
 			i = len(names)
-			index[g] = i
-			names = append(names, g)
+			index[v] = i
+			names = append(names, v)
 			groups = append(groups, nil)
 		}
-		groups[i] = append(groups[i], p)
+		groups[i] = append(groups[i], it)
 	}
 	return names, groups, nil
 }
