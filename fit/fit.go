@@ -226,7 +226,7 @@ func fitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 		return nil, err
 	}
 	if !sol.Converged {
-		return nil, fmt.Errorf("%w: the %s fit did not converge: %s. Try fixing a parameter (--fix), adding deeper or shallower points, or another model", ErrNoAnswer, m.Name(), failureReason(m, sol, free))
+		return nil, fmt.Errorf("%w: the %s fit did not converge: %s. Try fixing a parameter (--fix), adding deeper or shallower points, or another model", ErrNoAnswer, m.Name(), failureReason(m, sol, free, p0))
 	}
 	r := &Result{
 		ID: p.ID, Source: p.Source, Lot: p.Lot, Material: p.Material, Model: m.Name(),
@@ -355,9 +355,30 @@ func plural(n int, one, many string) string {
 
 // failureReason says in words why the solver stopped, naming parameters by
 // the names --fix takes.
-func failureReason(m Model, sol *Solution, free []bool) string {
+func failureReason(m Model, sol *Solution, free []bool, p0 []float64) string {
 	params := m.Params()
 	switch {
+	case strings.HasPrefix(sol.Reason, "iteration limit"):
+		// Name the free parameter that travelled furthest in units of its
+		// effect on the curve: it is the one the data do not hold.
+		kk := countTrue(free)
+		best, far := -1, 0.0
+		if len(sol.JTJ) == kk*kk {
+			k := 0
+			for j, f := range free {
+				if !f {
+					continue
+				}
+				if move := math.Abs(sol.P[j]-p0[j]) * math.Sqrt(math.Abs(sol.JTJ[k*kk+k])); move > far {
+					best, far = j, move
+				}
+				k++
+			}
+		}
+		if best >= 0 {
+			return fmt.Sprintf("%s while %s was still moving: the data may not bound it (is the base level reached? does the profile have the shape of this model?)", sol.Reason, params[best].Name)
+		}
+		return sol.Reason
 	case sol.Stuck >= 0 && sol.Stuck < len(params):
 		name := params[sol.Stuck].Name
 		return fmt.Sprintf("%s has no effect on the curve at the final point: it ran off towards an asymptote (0 or infinity), so these data do not determine %s", name, name)
@@ -404,4 +425,14 @@ func distinctDepths(x []float64) int {
 		seen[v] = struct{}{}
 	}
 	return len(seen)
+}
+
+func countTrue(b []bool) int {
+	n := 0
+	for _, v := range b {
+		if v {
+			n++
+		}
+	}
+	return n
 }
