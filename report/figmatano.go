@@ -282,7 +282,7 @@ func MatanoFigure(r *matano.Result, p *profile.Profile, o FigureOptions) (*Figur
 	dSym := combined(lineSymbol(dLine), glyphSymbol(dGlyph))
 	if haveBand {
 		dSym = combined(bandSymbol(colBand, &dLine), glyphSymbol(dGlyph))
-		legend = append(legend, legendEntry{"D with bootstrap band", dSym})
+		legend = append(legend, legendEntry{"D with " + bandName(r.Level), dSym})
 	} else {
 		legend = append(legend, legendEntry{"D (no band)", dSym})
 	}
@@ -324,7 +324,7 @@ func MatanoFigure(r *matano.Result, p *profile.Profile, o FigureOptions) (*Figur
 	}
 	fig.Title += "; D against " + cLabel + " on a logarithmic axis"
 	if haveBand {
-		fig.Title += " with its bootstrap band"
+		fig.Title += " with its " + bandName(r.Level)
 	}
 	fig.paint = func(c draw.Canvas) {
 		c = drawTitle(c, title, strings.Join(sub, " · "))
@@ -381,4 +381,12 @@ func alignRow(p1, p2 *plot.Plot, c1, c2 draw.Canvas) (draw.Canvas, draw.Canvas) 
 	c1 = draw.Crop(c1, 0, 0, bottom-d1.Min.Y, top-d1.Max.Y)
 	c2 = draw.Crop(c2, 0, 0, bottom-d2.Min.Y, top-d2.Max.Y)
 	return c1, c2
+}
+
+// bandName names the bootstrap band with its level when known.
+func bandName(level float64) string {
+	if level > 0 && level < 1 {
+		return Level(level) + " bootstrap band"
+	}
+	return "bootstrap band"
 }

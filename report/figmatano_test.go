@@ -91,11 +91,11 @@ func TestMatanoFigureSVG(t *testing.T) {
 		{"boltzmann-matano rising", matano.BoltzmannMatano, "erf",
 			[]string{"<title>Couple couple-7, Boltzmann–Matano analysis", "couple-7 · Boltzmann–Matano",
 				"position (µm)", "C (at%)", "D (m", // axes with units ("m²/s" is split by the superscript tspans)
-				"Matano plane", "measured", "smoothed (", "D with bootstrap band",
+				"Matano plane", "measured", "smoothed (", "D with 95 % bootstrap band",
 				"within 10 % of an end composition", "1000 °C · anneal 100 h"},
 			nil},
 		{"sauer-freise falling", matano.SauerFreise, "falling",
-			[]string{"couple-7 · Sauer–Freise", "position (µm)", "C (at%)", "D (m", "D with bootstrap band"},
+			[]string{"couple-7 · Sauer–Freise", "position (µm)", "C (at%)", "D (m", "D with 95 % bootstrap band"},
 			[]string{"Matano plane"}},
 		{"boltzmann-matano asymmetric", matano.BoltzmannMatano, "asymmetric",
 			[]string{"couple-7 · Boltzmann–Matano", "position (µm)", "C (at%)", "D (m", " erf terms)"},

@@ -1495,7 +1495,11 @@ func viewMatanoText(w *bufio.Writer, rs []*matano.Result, o TextOptions) {
 		if s := r.Smooth; s != nil && s.CR != s.CL {
 			last = SigDigits(math.Abs(s.CR-s.CL), 4)
 		}
-		tb := Table{Header: []string{"C", "D (m²/s)", "CI (bootstrap percentile)"}, Align: []Align{Right, Right, Left}, Indent: "  "}
+		ciHead := "CI (bootstrap percentile)"
+		if r.Level > 0 && r.Level < 1 {
+			ciHead = Level(r.Level) + " CI (bootstrap percentile)"
+		}
+		tb := Table{Header: []string{"C", "D (m²/s)", ciHead}, Align: []Align{Right, Right, Left}, Indent: "  "}
 		for _, p := range r.Points {
 			c := Sig(p.C, 4)
 			if r.Smooth != nil && r.Smooth.CR != r.Smooth.CL {

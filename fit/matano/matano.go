@@ -101,6 +101,8 @@ type Result struct {
 	MatanoPlane *float64      `json:"matano_plane_m"`
 	Points      []Point       `json:"points"`
 	Warnings    []fit.Warning `json:"warnings"`
+	// Level is the confidence level of the bootstrap band.
+	Level float64 `json:"-"`
 
 	// Smooth is the fitted smoothing curve (for plots and checks).
 	Smooth *Smooth `json:"-"`
@@ -203,7 +205,7 @@ func analyze(p *profile.Profile, t float64, o Options) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	r := &Result{ID: p.ID, Method: method, Smooth: sm.s, Time: t, Points: []Point{}, Warnings: []fit.Warning{}}
+	r := &Result{ID: p.ID, Method: method, Smooth: sm.s, Time: t, Points: []Point{}, Warnings: []fit.Warning{}, Level: level}
 	r.RMSE = math.Sqrt(sm.rss / float64(n-(3*sm.k+1)))
 	if method == BoltzmannMatano {
 		xm := sm.s.MatanoPlane()
