@@ -4,11 +4,10 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"runtime"
 	"sort"
 	"strings"
-	"sync"
 
+	"github.com/fickfit/fickfit/internal/parallel"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -56,26 +55,7 @@ func FitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 func FitAll(ps []profile.Profile, o Options) (results []*Result, errs []error) {
 	results = make([]*Result, len(ps))
 	errs = make([]error, len(ps))
-	workers := runtime.GOMAXPROCS(0)
-	if workers > len(ps) {
-		workers = len(ps)
-	}
-	var wg sync.WaitGroup
-	next := make(chan int)
-	for w := 0; w < workers; w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range next {
-				results[i], errs[i] = Fit(&ps[i], o)
-			}
-		}()
-	}
-	for i := range ps {
-		next <- i
-	}
-	close(next)
-	wg.Wait()
+	parallel.For(len(ps), func(i int) { results[i], errs[i] = Fit(&ps[i], o) }, nil)
 	return results, errs
 }
 

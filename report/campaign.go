@@ -12,13 +12,12 @@ import (
 	"os"
 	"path"
 	"path/filepath"
-	"runtime"
 	"sort"
 	"strings"
-	"sync"
 
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/parallel"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -410,39 +409,9 @@ func sortProfiles(ps []profile.Profile, by string) {
 
 // fitProgress fits every profile in parallel and reports each finished one.
 func fitProgress(ps []profile.Profile, o fit.Options, progress func(done, total int)) ([]*fit.Result, []error) {
-	n := len(ps)
-	results := make([]*fit.Result, n)
-	errs := make([]error, n)
-	workers := runtime.GOMAXPROCS(0)
-	if workers > n {
-		workers = n
-	}
-	jobs := make(chan int)
-	done := make(chan int)
-	var wg sync.WaitGroup
-	for w := 0; w < workers; w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range jobs {
-				results[i], errs[i] = safeFit(&ps[i], o)
-				done <- i
-			}
-		}()
-	}
-	go func() {
-		for i := range ps {
-			jobs <- i
-		}
-		close(jobs)
-		wg.Wait()
-		close(done)
-	}()
-	k := 0
-	for range done {
-		k++
-		progress(k, n)
-	}
+	results := make([]*fit.Result, len(ps))
+	errs := make([]error, len(ps))
+	parallel.For(len(ps), func(i int) { results[i], errs[i] = safeFit(&ps[i], o) }, progress)
 	return results, errs
 }
 

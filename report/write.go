@@ -7,9 +7,9 @@ import (
 	"io"
 	"os"
 	"path/filepath"
-	"runtime"
 	"strings"
-	"sync"
+
+	"github.com/fickfit/fickfit/internal/parallel"
 )
 
 // Names of the files in a campaign report folder.
@@ -37,46 +37,19 @@ type renderedFigure struct {
 // renderAll draws every figure, in parallel over the available cores.
 func renderAll(figs []*Figure, png bool, dpi int, progress func(done, total int)) ([]renderedFigure, error) {
 	out := make([]renderedFigure, len(figs))
-	workers := runtime.GOMAXPROCS(0)
-	if workers > len(figs) {
-		workers = len(figs)
-	}
-	jobs := make(chan int)
-	done := make(chan int)
-	var wg sync.WaitGroup
-	for w := 0; w < workers; w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range jobs {
-				rf := renderedFigure{fig: figs[i]}
-				rf.svg, rf.err = figs[i].svgBytes()
-				if rf.err == nil {
-					rf.inline, rf.err = figs[i].inlineSVG()
-				}
-				if rf.err == nil && png {
-					var b bytes.Buffer
-					rf.err = figs[i].WritePNG(&b, dpi)
-					rf.png = b.Bytes()
-				}
-				out[i] = rf
-				done <- i
-			}
-		}()
-	}
-	go func() {
-		for i := range figs {
-			jobs <- i
+	parallel.For(len(figs), func(i int) {
+		rf := renderedFigure{fig: figs[i]}
+		rf.svg, rf.err = figs[i].svgBytes()
+		if rf.err == nil {
+			rf.inline, rf.err = figs[i].inlineSVG()
 		}
-		close(jobs)
-		wg.Wait()
-		close(done)
-	}()
-	k := 0
-	for range done {
-		k++
-		progress(k, len(figs))
-	}
+		if rf.err == nil && png {
+			var b bytes.Buffer
+			rf.err = figs[i].WritePNG(&b, dpi)
+			rf.png = b.Bytes()
+		}
+		out[i] = rf
+	}, progress)
 	for _, rf := range out {
 		if rf.err != nil {
 			return nil, rf.err
