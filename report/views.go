@@ -1108,16 +1108,22 @@ var viewSolutionTargets = map[string]string{
 }
 
 func viewSolutionsText(w *bufio.Writer, ss []*arrhenius.Solution, o TextOptions) {
-	if len(ss) == 0 {
-		w.WriteString("No back-calculation.\n")
+	viewEach(w, o, ss, "No back-calculation.", viewSolutionText)
+}
+
+// viewEach writes each item with write, a blank line between items, or the
+// empty sentence when there is none.
+func viewEach[T any](w *bufio.Writer, o TextOptions, items []T, empty string, write func(viewText, T)) {
+	if len(items) == 0 {
+		w.WriteString(empty + "\n")
 		return
 	}
 	t := viewText{w, o}
-	for i, s := range ss {
+	for i, it := range items {
 		if i > 0 {
 			w.WriteString("\n")
 		}
-		viewSolutionText(t, s)
+		write(t, it)
 	}
 }
 
@@ -1248,17 +1254,7 @@ var viewPredictionTargets = map[string]string{
 }
 
 func viewPredictionsText(w *bufio.Writer, ps []*arrhenius.Prediction, o TextOptions) {
-	if len(ps) == 0 {
-		w.WriteString("No prediction.\n")
-		return
-	}
-	t := viewText{w, o}
-	for i, p := range ps {
-		if i > 0 {
-			w.WriteString("\n")
-		}
-		viewPredictionText(t, p)
-	}
+	viewEach(w, o, ps, "No prediction.", viewPredictionText)
 }
 
 func viewPredictionText(t viewText, p *arrhenius.Prediction) {
