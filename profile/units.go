@@ -100,6 +100,18 @@ func (s TemperatureScale) ToKelvin(v float64) float64 {
 	return v
 }
 
+// FromKelvin converts a temperature in kelvin to scale s (the inverse of
+// ToKelvin).
+func (s TemperatureScale) FromKelvin(k float64) float64 {
+	switch s {
+	case Celsius:
+		return k - kelvinAt0C
+	case Fahrenheit:
+		return (k-kelvinAt0C)*9/5 + 32
+	}
+	return k
+}
+
 // DeltaToKelvin converts a temperature difference on scale s to kelvin:
 // 1 °C = 1 K and 1 °F = 5/9 K as differences.
 func (s TemperatureScale) DeltaToKelvin(d float64) float64 {

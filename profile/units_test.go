@@ -198,3 +198,18 @@ func TestParseNumber(t *testing.T) {
 		t.Error("1.000,5 accepted")
 	}
 }
+
+// TestScaleRoundTrip: FromKelvin inverts ToKelvin on every scale; 212 °F is
+// 373.15 K (NIST SP 811 (2008), Appendix B.8, value from memory).
+func TestScaleRoundTrip(t *testing.T) {
+	for _, s := range []TemperatureScale{Kelvin, Celsius, Fahrenheit} {
+		for _, v := range []float64{-40, 0, 25, 925, 1700} {
+			if got := s.FromKelvin(s.ToKelvin(v)); math.Abs(got-v) > 1e-9 {
+				t.Errorf("%v: %g → %g", s, v, got)
+			}
+		}
+	}
+	if k := Fahrenheit.ToKelvin(212); math.Abs(k-373.15) > 1e-9 {
+		t.Errorf("212 °F = %g K", k)
+	}
+}

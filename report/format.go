@@ -9,6 +9,7 @@ import (
 	"unicode/utf8"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/profile"
 )
 
 // Number formatting for people. Every text view, table, figure label and
@@ -342,28 +343,23 @@ func (u TempUnit) Symbol() string {
 	return "°C"
 }
 
-// FromKelvin converts a temperature in K to the unit (ITS-90 offsets:
-// t/°C = T/K − 273.15, t/°F = 1.8·t/°C + 32).
-func (u TempUnit) FromKelvin(k float64) float64 {
+// scale is the unit as the profile package's temperature scale, which
+// holds the conversion formulas for both edges of the program.
+func (u TempUnit) scale() profile.TemperatureScale {
 	switch u {
 	case Kelvin:
-		return k
+		return profile.Kelvin
 	case Fahrenheit:
-		return (k-273.15)*1.8 + 32
+		return profile.Fahrenheit
 	}
-	return k - 273.15
+	return profile.Celsius
 }
 
+// FromKelvin converts a temperature in K to the unit.
+func (u TempUnit) FromKelvin(k float64) float64 { return u.scale().FromKelvin(k) }
+
 // ToKelvin converts a temperature in the unit to K.
-func (u TempUnit) ToKelvin(t float64) float64 {
-	switch u {
-	case Kelvin:
-		return t
-	case Fahrenheit:
-		return (t-32)/1.8 + 273.15
-	}
-	return t + 273.15
-}
+func (u TempUnit) ToKelvin(t float64) float64 { return u.scale().ToKelvin(t) }
 
 // trimmed writes v with at most dec decimals and no trailing zeros.
 func trimmed(v float64, dec int) string {
