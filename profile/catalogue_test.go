@@ -109,6 +109,9 @@ func checkCatalogueError(t *testing.T, err error, file, kind, where, fragment st
 	if e.Hint == "" {
 		t.Errorf("error %q says nothing about what to do", msg)
 	}
+	if len(msg) > 600 {
+		t.Errorf("message of %d bytes: a message quotes short excerpts only", len(msg))
+	}
 }
 
 // TestOddCatalogue reads every file of testdata/odd and compares each

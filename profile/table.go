@@ -141,8 +141,8 @@ func (t *table) classifyHeader(header []string) error {
 	}
 	t.idCol, t.depthCol, t.sigmaCol = kindIndex(byKind, colID), kindIndex(byKind, colDepth), kindIndex(byKind, colSigma)
 	if t.depthCol < 0 {
-		return t.org.errAt(t.headerLine, -1, "", errorf(ErrColumn, "no depth column in the header %q",
-			strings.Join(trimAll(header), " | ")), t.depthHint())
+		return t.org.errAt(t.headerLine, -1, "", errorf(ErrColumn, "no depth column in the header %s",
+			quote(strings.Join(trimAll(header), " | "))), t.depthHint())
 	}
 	return nil
 }
@@ -166,11 +166,11 @@ func trimAll(s []string) []string {
 func (t *table) twoColumns(a, b column, i int) error {
 	if a.kind == colDepth && !strings.EqualFold(a.unit, b.unit) {
 		return t.org.errAt(t.headerLine, i, b.name, errorf(ErrUnit,
-			"depth columns in two units, %q and %q (mixed units)", a.name, b.name),
+			"depth columns in two units, %s and %s (mixed units)", quote(a.name), quote(b.name)),
 			"keep one depth column, in one unit")
 	}
 	return t.org.errAt(t.headerLine, i, b.name, errorf(ErrColumn,
-		"two %s columns, %q and %q", a.kind.describe(), a.name, b.name), "keep one of them")
+		"two %s columns, %s and %s", a.kind.describe(), quote(a.name), quote(b.name)), "keep one of them")
 }
 
 // depthHint suggests a depth header, pointing at a column that looks like
@@ -206,7 +206,7 @@ func (t *table) depthHint() string {
 		}
 		if _, u := splitHeader(c.name); u != "" {
 			if _, err := LengthUnit(u); err == nil {
-				return fmt.Sprintf("rename %q to \"depth_%s\" (the depth column is named depth_<unit> or distance_<unit>)", c.name, u)
+				return fmt.Sprintf("rename %s to %s (the depth column is named depth_<unit> or distance_<unit>)", quote(c.name), quote("depth_"+u))
 			}
 		}
 	}
@@ -225,7 +225,7 @@ func (t *table) applyMeta(m *metaSet, defaultID string) error {
 	}
 	if e, ok := m.get("id"); ok && t.idCol >= 0 {
 		return t.org.errAt(e.line, e.col, "", errorf(ErrMetadata,
-			"metadata id %q in a table with a profile id column %q", e.value, t.cols[t.idCol].name),
+			"metadata id %s in a table with a profile id column %s", quote(e.value), quote(t.cols[t.idCol].name)),
 			"remove the id metadata; the column names the profiles")
 	}
 	if e, ok := m.get("value"); ok {
@@ -301,7 +301,7 @@ func (t *table) checkWidth(cells []string, line int) error {
 		}
 		if t.cols[i].kind == colIgnore {
 			return t.org.errAt(line, i, "", errorf(ErrColumn,
-				"cell %q is under a column without a header (column %d)", c, i+1),
+				"cell %s is under a column without a header (column %d)", quote(c), i+1),
 				"give the column a header or remove the cell")
 		}
 	}
@@ -358,12 +358,12 @@ func (t *table) valueProblem(cand, open []int, line int) error {
 		return nil
 	case t.valueKey.value != "":
 		return t.org.errAt(t.valueKey.line, t.valueKey.col, "", errorf(ErrMetadata,
-			"the metadata names the value column %q but the header has no such column", t.valueKey.value),
+			"the metadata names the value column %s but the header has no such column", quote(t.valueKey.value)),
 			"correct the value metadata to one of the column headers")
 	case len(cand) > 1:
 		names := make([]string, len(cand))
 		for k, i := range cand {
-			names[k] = fmt.Sprintf("%q", t.cols[i].name)
+			names[k] = quote(t.cols[i].name)
 		}
 		return t.org.errAt(t.headerLine, cand[1], t.cols[cand[1]].name, errorf(ErrColumn,
 			"%s could each be the measured value", strings.Join(names, " and ")),
@@ -384,7 +384,7 @@ func (t *table) checkSigmaUnit() error {
 	s, v := t.cols[t.sigmaCol], t.cols[t.valueCol]
 	if s.unit != "" && (s.valueUnit == "" || v.valueUnit == "" || s.valueUnit != v.valueUnit) {
 		return t.org.errAt(t.headerLine, t.sigmaCol, s.name, errorf(ErrUnit,
-			"sigma unit %q does not match the value column %q", s.unit, v.name),
+			"sigma unit %s does not match the value column %s", quote(s.unit), quote(v.name)),
 			"give sigma in the unit of the value (or name the column just \"sigma\")")
 	}
 	return nil
@@ -498,7 +498,7 @@ func (t *table) setFixed(b *building, i int, s string, line int) error {
 			return nil
 		}
 		return t.org.errAt(line, i, c.name, errorf(ErrValue,
-			"profile %q has %s %q here but %q at %s", b.p.ID, c.kind.describe(), s, f.text, t.org.place(f.line, i)),
+			"profile %s has %s %s here but %s at %s", quote(b.p.ID), c.kind.describe(), quote(s), quote(f.text), t.org.place(f.line, i)),
 			fmt.Sprintf("one profile has one %s: correct the cell, or give the other rows their own profile id", c.kind.describe()))
 	}
 	*f = fixedCell{set: true, text: s, v: v, line: line}
@@ -544,12 +544,12 @@ func setColumnField(p *Profile, meta Profile, c column, s string, v float64) err
 func setNumber(dst *float64, meta, v float64, what, s string, zeroOK bool) error {
 	if !(v > 0 || (zeroOK && v == 0)) || math.IsInf(v, 0) {
 		if what == "temperature" {
-			return errorf(ErrValue, "temperature %s is %s K, not above absolute zero", s, fmtNum(v))
+			return errorf(ErrValue, "temperature %s is %s K, not above absolute zero", clip(s), fmtNum(v))
 		}
-		return errorf(ErrValue, "%s %s is not positive", what, s)
+		return errorf(ErrValue, "%s %s is not positive", what, clip(s))
 	}
 	if meta != 0 && math.Abs(v-meta) > 1e-9*math.Abs(meta) {
-		return errorf(ErrMetadata, "%s %s disagrees with the file's metadata (%s in SI)", what, s, fmtNum(meta))
+		return errorf(ErrMetadata, "%s %s disagrees with the file's metadata (%s in SI)", what, clip(s), fmtNum(meta))
 	}
 	*dst = v
 	return nil
@@ -557,7 +557,7 @@ func setNumber(dst *float64, meta, v float64, what, s string, zeroOK bool) error
 
 func setText(dst *string, meta, s, what string) error {
 	if meta != "" && meta != s {
-		return errorf(ErrMetadata, "%s %q disagrees with the file's metadata %q", what, s, meta)
+		return errorf(ErrMetadata, "%s %s disagrees with the file's metadata %s", what, quote(s), quote(meta))
 	}
 	*dst = s
 	return nil

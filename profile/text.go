@@ -59,7 +59,7 @@ func openText(r io.Reader, name string) (*textReader, error) {
 	t.header = append([]string(nil), rec...)
 	if len(t.header) < 2 {
 		return nil, org.errAt(t.headerLine, -1, "", errorf(ErrColumn,
-			"the header %q has only one column", strings.TrimSpace(latin1(header))),
+			"the header %s has only one column", quote(strings.TrimSpace(latin1(header)))),
 			"separate the columns with ',', ';' or tab; a title line above the header must start with '#'")
 	}
 	return t, nil

@@ -179,7 +179,7 @@ func unknownUnit(what, u, valid string) error {
 	if strings.TrimSpace(u) == "" {
 		return errorf(ErrUnit, "no %s unit given (use %s)", what, valid)
 	}
-	return errorf(ErrUnit, "unknown %s unit %q (use %s)", what, u, valid)
+	return errorf(ErrUnit, "unknown %s unit %s (use %s)", what, quote(u), valid)
 }
 
 // ParseTemperature reads a temperature with its unit, "925 C", "925°C",
@@ -195,7 +195,7 @@ func ParseTemperature(s string) (float64, error) {
 	}
 	k := sc.ToKelvin(v)
 	if !(k > 0) || math.IsInf(k, 0) {
-		return 0, errorf(ErrValue, "temperature %q is %s K, not above absolute zero", s, fmtNum(k))
+		return 0, errorf(ErrValue, "temperature %s is %s K, not above absolute zero", quote(s), fmtNum(k))
 	}
 	return k, nil
 }
@@ -213,7 +213,7 @@ func ParseTemperatureDelta(s string) (float64, error) {
 		return 0, err
 	}
 	if v < 0 {
-		return 0, errorf(ErrValue, "temperature difference %q is negative", s)
+		return 0, errorf(ErrValue, "temperature difference %s is negative", quote(s))
 	}
 	return sc.DeltaToKelvin(v), nil
 }
@@ -233,7 +233,7 @@ func ParseDuration(s string) (float64, error) {
 			return 0, err
 		}
 		if v < 0 {
-			return 0, errorf(ErrValue, "time %q is negative", s)
+			return 0, errorf(ErrValue, "time %s is negative", quote(s))
 		}
 		total += f.si(v)
 		if rest = tail; strings.TrimSpace(rest) == "" {
@@ -241,7 +241,7 @@ func ParseDuration(s string) (float64, error) {
 		}
 	}
 	if !(total > 0) || math.IsInf(total, 0) {
-		return 0, errorf(ErrValue, "time %q is not positive", s)
+		return 0, errorf(ErrValue, "time %s is not positive", quote(s))
 	}
 	return total, nil
 }
@@ -258,11 +258,11 @@ func ParseLength(s string) (float64, error) {
 		return 0, err
 	}
 	if v < 0 {
-		return 0, errorf(ErrValue, "length %q is negative", s)
+		return 0, errorf(ErrValue, "length %s is negative", quote(s))
 	}
 	m := f.si(v)
 	if math.IsInf(m, 0) {
-		return 0, errorf(ErrValue, "length %q is too large", s)
+		return 0, errorf(ErrValue, "length %s is too large", quote(s))
 	}
 	return m, nil
 }
@@ -272,7 +272,7 @@ func ParseLength(s string) (float64, error) {
 func splitQuantity(s, what, example string) (float64, string, error) {
 	v, u, tail, err := nextQuantity(s, what, example)
 	if err == nil && strings.TrimSpace(tail) != "" {
-		err = errorf(ErrUnit, "unknown %s unit %q", what, strings.TrimSpace(u+" "+tail))
+		err = errorf(ErrUnit, "unknown %s unit %s", what, quote(strings.TrimSpace(u+" "+tail)))
 	}
 	return v, u, err
 }
@@ -286,12 +286,12 @@ func nextQuantity(s, what, example string) (v float64, unit, tail string, err er
 		if s == "" {
 			return 0, "", "", errorf(ErrNumber, "no %s given (write e.g. %s)", what, example)
 		}
-		return 0, "", "", errorf(ErrNumber, "%q does not start with a number (write e.g. %s)", s, example)
+		return 0, "", "", errorf(ErrNumber, "%s does not start with a number (write e.g. %s)", quote(s), example)
 	}
 	num := s[:n]
 	if ambiguousComma(num) {
-		return 0, "", "", errorf(ErrNumber, "%q is ambiguous: decimal comma or thousands separator? (write %s or %s)",
-			num, strings.ReplaceAll(num, ",", "."), strings.ReplaceAll(num, ",", ""))
+		return 0, "", "", errorf(ErrNumber, "%s is ambiguous: decimal comma or thousands separator? (write %s or %s)",
+			quote(num), clip(strings.ReplaceAll(num, ",", ".")), clip(strings.ReplaceAll(num, ",", "")))
 	}
 	if v, err = parseNumber(num, true); err != nil {
 		return 0, "", "", err
@@ -300,7 +300,7 @@ func nextQuantity(s, what, example string) (v float64, unit, tail string, err er
 	m := unitPrefix(rest)
 	unit, tail = strings.TrimSpace(rest[:m]), rest[m:]
 	if unit == "" {
-		return 0, "", "", errorf(ErrUnit, "no unit in %q (write e.g. %s)", s, example)
+		return 0, "", "", errorf(ErrUnit, "no unit in %s (write e.g. %s)", quote(s), example)
 	}
 	return v, unit, tail, nil
 }
@@ -389,11 +389,11 @@ func parseNumber(s string, comma bool) (float64, error) {
 		return 0, errorf(ErrNumber, "the cell is blank")
 	}
 	if !plainDecimal(t) {
-		return 0, errorf(ErrNumber, "%q is not a number", s)
+		return 0, errorf(ErrNumber, "%s is not a number", quote(s))
 	}
 	v, err := strconv.ParseFloat(t, 64)
 	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
-		return 0, errorf(ErrNumber, "%q is not a finite number", s)
+		return 0, errorf(ErrNumber, "%s is not a finite number", quote(s))
 	}
 	return v, nil
 }

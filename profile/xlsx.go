@@ -227,7 +227,7 @@ func orphanMeta(m *metaSet, org origin) error {
 	for _, e := range m.entries {
 		if c, _ := meaning(e.key); c != "" && c != "id" {
 			return org.errAt(e.line, e.col, "", errorf(ErrNoData,
-				"the sheet has metadata (%q) but no header row with a depth column", e.key),
+				"the sheet has metadata (%s) but no header row with a depth column", quote(e.key)),
 				"add a header row such as depth_mm | C_wt% and the data below it")
 		}
 	}
