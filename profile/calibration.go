@@ -141,6 +141,12 @@ func (c *Calibration) readRows(tr *textReader, hi, ci int) error {
 			return tr.org.errAt(line, hi, c.HardnessName, errorf(ErrValue, "hardness %s is not positive", fmtNum(h)),
 				"fix the cell or remove the row")
 		}
+		if err := checkMeasured(h, "hardness", clip(cellAt(rec, hi))); err != nil {
+			return tr.org.errAt(line, hi, c.HardnessName, err, "fix the cell or remove the row")
+		}
+		if err := checkMeasured(v, "concentration", clip(cellAt(rec, ci))); err != nil {
+			return tr.org.errAt(line, ci, c.ConcentrationName, err, "fix the cell or remove the row")
+		}
 		c.Hardness, c.Concentration, c.Line = append(c.Hardness, h), append(c.Concentration, v), append(c.Line, line)
 	}
 }

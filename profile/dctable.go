@@ -83,6 +83,13 @@ func ReadDiffusivityTableCSV(r io.Reader, name string) (conc, d []float64, err e
 		if e2 != nil || !(v > 0) || math.IsInf(v, 0) {
 			return nil, nil, fail(line, header[dCol], errorf(ErrValue, "D %s is not a positive number", quote(rec[dCol])), "D must be positive")
 		}
+		if err := checkMeasured(c, "concentration", clip(strings.TrimSpace(rec[cCol]))); err != nil {
+			return nil, nil, fail(line, header[cCol], err, "fix the cell")
+		}
+		if dd := v * dFactor; dd > maxDiffusivity || dd < minDiffusivity {
+			return nil, nil, fail(line, header[dCol], errorf(ErrValue, "D %s is %s m²/s, outside %g–%g m²/s",
+				quote(rec[dCol]), fmtNum(dd), minDiffusivity, maxDiffusivity), "check the number and the unit in the header")
+		}
 		if n := len(conc); n > 0 && !(c > conc[n-1]) {
 			return nil, nil, fail(line, header[cCol], errorf(ErrValue, "concentration %g does not increase", c), "sort the table by concentration and remove repeats")
 		}

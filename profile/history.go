@@ -129,13 +129,12 @@ func (h *History) readRows(tr *textReader, ti, tc histColumn) error {
 			return err
 		}
 		t, k := ti.size.si(t), tc.scale.ToKelvin(v)
-		if math.IsInf(t, 0) {
-			return tr.org.errAt(line, ti.idx, ti.name, errorf(ErrValue, "time %s is too large", fmtNum(t)),
-				"fix the cell or remove the row")
+		if math.Abs(t) > maxSeconds {
+			return tr.org.errAt(line, ti.idx, ti.name, errorf(ErrValue, "time %s is longer than 1e10 s (317 years)",
+				clip(cellAt(rec, ti.idx))), "fix the cell or remove the row")
 		}
-		if !(k > 0) || math.IsInf(k, 0) {
-			return tr.org.errAt(line, tc.idx, tc.name, errorf(ErrValue,
-				"temperature %s is %s K, not above absolute zero", fmtNum(v), fmtNum(k)), "fix the cell or remove the row")
+		if err := checkKelvin(k, clip(cellAt(rec, tc.idx))); err != nil {
+			return tr.org.errAt(line, tc.idx, tc.name, err, "fix the cell or remove the row")
 		}
 		if n := len(h.Time); n > 0 && !(t > h.Time[n-1]) {
 			return tr.org.errAt(line, ti.idx, ti.name, errorf(ErrValue,

@@ -435,6 +435,10 @@ func (t *table) addPoint(b *building, cells []string, line int) error {
 	if err != nil {
 		return err
 	}
+	dc := &t.cols[t.depthCol]
+	if err := checkMetres(dc.size.si(d), "depth", clip(cellAt(cells, t.depthCol))+" "+dc.unit); err != nil {
+		return t.org.errAt(line, t.depthCol, dc.name, err, "check the number and the unit in the header")
+	}
 	if d < 0 && !t.cols[t.depthCol].signed {
 		return t.org.errAt(line, t.depthCol, t.cols[t.depthCol].name,
 			errorf(ErrValue, "depth %s is negative", fmtNum(d)),
@@ -443,6 +447,9 @@ func (t *table) addPoint(b *building, cells []string, line int) error {
 	v, err := t.number(cells, t.valueCol, line)
 	if err != nil {
 		return err
+	}
+	if err := checkMeasured(v, "value", clip(cellAt(cells, t.valueCol))); err != nil {
+		return t.org.errAt(line, t.valueCol, t.cols[t.valueCol].name, err, "fix the cell or remove the row")
 	}
 	p := &b.p
 	if t.sigmaCol >= 0 {
@@ -454,6 +461,10 @@ func (t *table) addPoint(b *building, cells []string, line int) error {
 			return t.org.errAt(line, t.sigmaCol, t.cols[t.sigmaCol].name,
 				errorf(ErrValue, "sigma %s is not positive", fmtNum(s)),
 				"sigma is a standard uncertainty and must be > 0; fix the cell or remove the sigma column")
+		}
+		if err := checkSigma(s, clip(cellAt(cells, t.sigmaCol))); err != nil {
+			return t.org.errAt(line, t.sigmaCol, t.cols[t.sigmaCol].name, err,
+				"sigma is the standard uncertainty of one value, in the value's unit; fix the cell")
 		}
 		p.Sigma = append(p.Sigma, s)
 	}
@@ -522,12 +533,28 @@ func (t *table) setFixed(b *building, i int, s string, line int) error {
 func setColumnField(p *Profile, meta Profile, c column, s string, v float64) error {
 	switch c.kind {
 	case colTemp:
-		return setNumber(&p.Temperature, meta.Temperature, c.scale.ToKelvin(v), "temperature", s, false)
+		k := c.scale.ToKelvin(v)
+		if k > maxKelvin {
+			return checkKelvin(k, clip(s))
+		}
+		return setNumber(&p.Temperature, meta.Temperature, k, "temperature", s, false)
 	case colTempSigma:
-		return setNumber(&p.TemperatureSigma, meta.TemperatureSigma, c.scale.DeltaToKelvin(v), "temperature sigma", s, true)
+		k := c.scale.DeltaToKelvin(v)
+		if k > maxKelvin {
+			return errorf(ErrValue, "temperature sigma %s is above %d K", clip(s), maxKelvin)
+		}
+		return setNumber(&p.TemperatureSigma, meta.TemperatureSigma, k, "temperature sigma", s, true)
 	case colTime:
+		if t := c.size.si(v); t > 0 {
+			if err := checkSeconds(t, clip(s)); err != nil {
+				return err
+			}
+		}
 		return setNumber(&p.Time, meta.Time, c.size.si(v), "time", s, false)
 	case colThickness:
+		if err := checkMetres(c.size.si(v), "thickness", clip(s)); err != nil {
+			return err
+		}
 		return setNumber(&p.Thickness, meta.Thickness, c.size.si(v), "thickness", s, false)
 	case colLot:
 		return setText(&p.Lot, meta.Lot, s, "lot")
