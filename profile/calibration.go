@@ -121,7 +121,7 @@ func (c *Calibration) readRows(tr *textReader, hi, ci int) error {
 	for {
 		rec, line, err := tr.next()
 		if err == io.EOF {
-			return nil
+			return tr.finishMarks()
 		}
 		if err != nil {
 			return err
@@ -160,7 +160,7 @@ func calNumber(tr *textReader, rec []string, i, line int, col string) (float64, 
 	if err != nil {
 		return 0, tr.org.errAt(line, i, col, err, "fix the cell or remove the row")
 	}
-	return v, nil
+	return v, tr.noteMark(cellAt(rec, i), line, i, col)
 }
 
 // check sorts the pairs by hardness and refuses too few, repeated

@@ -112,7 +112,7 @@ func (h *History) readRows(tr *textReader, ti, tc histColumn) error {
 	for {
 		rec, line, err := tr.next()
 		if err == io.EOF {
-			return nil
+			return tr.finishMarks()
 		}
 		if err != nil {
 			return err
@@ -150,7 +150,7 @@ func histNumber(tr *textReader, rec []string, c histColumn, line int) (float64, 
 	s := cellAt(rec, c.idx)
 	v, err := parseNumber(s, tr.comma)
 	if err == nil {
-		return v, nil
+		return v, tr.noteMark(s, line, c.idx, c.name)
 	}
 	hint := "fix the cell or remove the row"
 	if c.kind == colTime && strings.ContainsAny(s, ":-/T") && len(s) > 4 {

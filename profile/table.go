@@ -65,10 +65,11 @@ type table struct {
 	depthCol   int
 	valueCol   int // -1 until the first data row decides it
 	sigmaCol   int
-	comma      bool      // a decimal comma is accepted in cells
-	sepComma   bool      // columns are separated by ',' (for hints)
-	valueKey   metaEntry // "value" metadata naming the value column
-	template   Profile   // metadata applied once, copied into every profile
+	comma      bool          // a decimal comma is accepted in cells
+	marks      *decimalMarks // watches decimal marks of text numbers; nil when not needed
+	sepComma   bool          // columns are separated by ',' (for hints)
+	valueKey   metaEntry     // "value" metadata naming the value column
+	template   Profile       // metadata applied once, copied into every profile
 	profiles   []*building
 	index      map[string]int
 	rows       int
@@ -96,11 +97,12 @@ type tableOptions struct {
 	defaultID  string
 	comma      bool
 	sepComma   bool
+	marks      *decimalMarks // see table.marks
 }
 
 // newTable classifies the header cells and applies the metadata.
 func newTable(header []string, o tableOptions) (*table, error) {
-	t := &table{org: o.org, headerLine: o.headerLine, comma: o.comma, sepComma: o.sepComma,
+	t := &table{org: o.org, headerLine: o.headerLine, comma: o.comma, sepComma: o.sepComma, marks: o.marks,
 		idCol: -1, depthCol: -1, valueCol: -1, sigmaCol: -1, index: map[string]int{}}
 	if err := t.classifyHeader(header); err != nil {
 		return nil, err
@@ -426,6 +428,9 @@ func (t *table) numberAt(s string, i, line int) (float64, error) {
 		}
 		return 0, t.org.errAt(line, i, t.cols[i].name, err, hint)
 	}
+	if t.marks != nil {
+		return v, t.marks.note(s, line, i, t.cols[i].name)
+	}
 	return v, nil
 }
 
@@ -599,6 +604,11 @@ func (t *table) finish() ([]Profile, error) {
 		}
 		return nil, t.org.errAt(t.headerLine, -1, "", errorf(ErrNoData,
 			"the %s has a header but no data rows", what), "add data rows below the header, or leave the "+what+" out")
+	}
+	if t.marks != nil {
+		if err := t.marks.finish(); err != nil {
+			return nil, err
+		}
 	}
 	v := t.cols[t.valueCol]
 	out := make([]Profile, 0, len(t.profiles))
