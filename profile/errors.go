@@ -141,13 +141,16 @@ func quote(s string) string {
 
 // clip is s cut as quote cuts it, without the quotes (for numbers as
 // written, which messages show bare: "time 0 is not positive").
-func clip(s string) string {
-	n := 0
+func clip(s string) string { return clipN(s, maxEcho) }
+
+// clipN cuts s to its first n characters and an ellipsis.
+func clipN(s string, n int) string {
+	k := 0
 	for i := range s {
-		if n == maxEcho {
+		if k == n {
 			return s[:i] + "…"
 		}
-		n++
+		k++
 	}
 	return s
 }

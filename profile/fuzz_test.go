@@ -3,13 +3,12 @@ package profile
 import (
 	"bytes"
 	"errors"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
-
-	"github.com/xuri/excelize/v2"
 )
 
 // addFiles adds every file of the given testdata folders as a seed.
@@ -135,7 +134,7 @@ func FuzzXLSX(f *testing.F) {
 	f.Add("title\n1\t2")
 	f.Add("Temperature (°F):\t1700\nthickness: 0,5 in\ndistance_mil\tsigma\tN (ppm)\n1\t2\t300")
 	f.Fuzz(func(t *testing.T, grid string) {
-		ps, err := readRows(gridRows(grid), origin{file: "f.xlsx", sheet: "S"})
+		ps, err := readRows(gridRows(grid), origin{file: "f.xlsx", sheet: "S"}, sheetOptions{})
 		if err == nil && ps == nil {
 			return // a sheet without a header is skipped
 		}
@@ -143,17 +142,28 @@ func FuzzXLSX(f *testing.F) {
 	})
 }
 
-// sliceRows is a rowSource over rows held in memory.
+// sliceRows is a rowSource over rows held in memory: rows split by '\n',
+// cells by '\t', all text, as a worksheet of text cells would yield them.
 type sliceRows struct {
 	rows [][]string
 	i    int
 }
 
-func (s *sliceRows) Next() bool { s.i++; return s.i <= len(s.rows) }
-func (s *sliceRows) Columns(...excelize.Options) ([]string, error) {
-	return s.rows[s.i-1], nil
+func (s *sliceRows) next() (sheetRow, error) {
+	for s.i < len(s.rows) {
+		s.i++
+		r := sheetRow{line: s.i}
+		for c, text := range s.rows[s.i-1] {
+			if text != "" {
+				r.cells = append(r.cells, xcell{col: c, text: text})
+			}
+		}
+		if len(r.cells) > 0 {
+			return r, nil
+		}
+	}
+	return sheetRow{}, io.EOF
 }
-func (s *sliceRows) Error() error { return nil }
 
 func gridRows(grid string) *sliceRows {
 	s := &sliceRows{}
@@ -166,7 +176,7 @@ func gridRows(grid string) *sliceRows {
 // TestXLSXGridPositions: the grid path gives the same cell positions as a
 // real workbook would.
 func TestXLSXGridPositions(t *testing.T) {
-	_, err := readRows(gridRows("\n\tdepth_mm\tC_wt%\n\t0.1\tx"), origin{file: "g.xlsx", sheet: "S"})
+	_, err := readRows(gridRows("\n\tdepth_mm\tC_wt%\n\t0.1\tx"), origin{file: "g.xlsx", sheet: "S"}, sheetOptions{})
 	if err == nil || !strings.Contains(err.Error(), `g.xlsx [Sheet "S"] cell C3`) {
 		t.Errorf("got %v", err)
 	}

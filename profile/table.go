@@ -6,8 +6,6 @@ import (
 	"maps"
 	"math"
 	"strings"
-
-	"github.com/xuri/excelize/v2"
 )
 
 // origin says where rows come from, to build errors that point at them.
@@ -29,11 +27,7 @@ func (o origin) cell(line, col int) string {
 	if o.sheet == "" || line <= 0 || col < 0 {
 		return ""
 	}
-	ref, err := excelize.CoordinatesToCellName(col+1, line)
-	if err != nil {
-		return ""
-	}
-	return ref
+	return cellName(line, col)
 }
 
 // place names a position in a message: "line 4" or "cell B4".
@@ -67,12 +61,20 @@ type table struct {
 	sigmaCol   int
 	comma      bool          // a decimal comma is accepted in cells
 	marks      *decimalMarks // watches decimal marks of text numbers; nil when not needed
-	sepComma   bool          // columns are separated by ',' (for hints)
-	valueKey   metaEntry     // "value" metadata naming the value column
-	template   Profile       // metadata applied once, copied into every profile
-	profiles   []*building
-	index      map[string]int
-	rows       int
+	kept       *textBudget   // text the profiles keep, for the whole file; nil: not counted
+	metaCost   int64         // text of the metadata every new profile copies
+	// kinds are the cell kinds of the row being added (worksheets; nil for
+	// text files, whose cells are all text); rowText and rowKinds are the
+	// buffers a worksheet row is laid out in.
+	kinds    []cellKind
+	rowText  []string
+	rowKinds []cellKind
+	sepComma bool      // columns are separated by ',' (for hints)
+	valueKey metaEntry // "value" metadata naming the value column
+	template Profile   // metadata applied once, copied into every profile
+	profiles []*building
+	index    map[string]int
+	rows     int
 }
 
 // building is a profile being assembled.
@@ -98,11 +100,12 @@ type tableOptions struct {
 	comma      bool
 	sepComma   bool
 	marks      *decimalMarks // see table.marks
+	kept       *textBudget   // see table.kept
 }
 
 // newTable classifies the header cells and applies the metadata.
 func newTable(header []string, o tableOptions) (*table, error) {
-	t := &table{org: o.org, headerLine: o.headerLine, comma: o.comma, sepComma: o.sepComma, marks: o.marks,
+	t := &table{org: o.org, headerLine: o.headerLine, comma: o.comma, sepComma: o.sepComma, marks: o.marks, kept: o.kept,
 		idCol: -1, depthCol: -1, valueCol: -1, sigmaCol: -1, index: map[string]int{}}
 	if err := t.classifyHeader(header); err != nil {
 		return nil, err
@@ -110,8 +113,15 @@ func newTable(header []string, o tableOptions) (*table, error) {
 	if err := t.applyMeta(o.meta, o.defaultID); err != nil {
 		return nil, err
 	}
+	for k, v := range t.template.Meta {
+		t.metaCost += int64(len(k) + len(v))
+	}
 	if t.idCol < 0 {
-		t.profiles = []*building{t.newBuilding(t.template.ID)}
+		b, err := t.newBuilding(t.template.ID, t.headerLine)
+		if err != nil {
+			return nil, err
+		}
+		t.profiles = []*building{b}
 	}
 	return t, nil
 }
@@ -236,19 +246,47 @@ func (t *table) applyMeta(m *metaSet, defaultID string) error {
 	return nil
 }
 
-// newBuilding starts a profile from the template.
-func (t *table) newBuilding(id string) *building {
+// newBuilding starts a profile from the template (first seen at line).
+func (t *table) newBuilding(id string, line int) (*building, error) {
+	if err := t.keep(int64(len(id))+t.metaCost, line); err != nil {
+		return nil, err
+	}
 	b := &building{p: t.template, fixed: make([]fixedCell, len(t.cols))}
 	b.p.ID = id
 	if t.template.Meta != nil {
 		b.p.Meta = maps.Clone(t.template.Meta)
 	}
-	return b
+	return b, nil
 }
+
+// keep counts n bytes of text that a profile keeps against the file's
+// budget: each profile carries its metadata into every report, so a long
+// metadata line over many profiles multiplies.
+func (t *table) keep(n int64, line int) error {
+	if t.kept == nil {
+		return nil
+	}
+	if t.kept.used += n; t.kept.used <= t.kept.limit {
+		return nil
+	}
+	return t.org.errAt(line, -1, "", errorf(ErrTooLarge,
+		"the profiles of this file would keep more than %d MiB of text (ids, metadata and text columns, copied into every profile); it was not read",
+		t.kept.limit>>20), "shorten the long metadata or text cells, or split the file")
+}
+
+// textBudget counts bytes against a limit.
+type textBudget struct{ used, limit int64 }
+
+// maxKeptText bounds the text the profiles of one file keep (ids,
+// metadata, text columns): a report repeats it for every profile.
+const maxKeptText = 16 << 20
 
 // add reads one data row (cells may be fewer than the header: missing
 // cells are blank). Blank rows are skipped.
 func (t *table) add(cells []string, line int) error {
+	if err := t.unreadCells(line); err != nil {
+		return err
+	}
 	if blankRow(cells) {
 		return nil
 	}
@@ -294,12 +332,7 @@ func (t *table) checkWidth(cells []string, line int) error {
 			continue
 		}
 		if i >= len(t.cols) {
-			hint := "remove the extra cells or give them a header"
-			if t.sepComma {
-				hint = "a decimal comma splits numbers in a comma-separated file: separate columns with ';' or tab, or write decimals with a point"
-			}
-			return t.org.errAt(line, i, "", errorf(ErrColumn,
-				"the row has %d cells but the header has %d columns", lastNonBlank(cells)+1, len(t.cols)), hint)
+			return t.beyondHeader(line, i, lastNonBlank(cells))
 		}
 		if t.cols[i].kind == colIgnore {
 			return t.org.errAt(line, i, "", errorf(ErrColumn,
@@ -308,6 +341,17 @@ func (t *table) checkWidth(cells []string, line int) error {
 		}
 	}
 	return nil
+}
+
+// beyondHeader refuses a row with cells from column first to column last
+// (0-based) beyond the header.
+func (t *table) beyondHeader(line, first, last int) error {
+	hint := "remove the extra cells or give them a header"
+	if t.sepComma {
+		hint = "a decimal comma splits numbers in a comma-separated file: separate columns with ';' or tab, or write decimals with a point"
+	}
+	return t.org.errAt(line, first, "", errorf(ErrColumn,
+		"the row has %d cells but the header has %d columns", last+1, len(t.cols)), hint)
 }
 
 func lastNonBlank(cells []string) int {
@@ -405,8 +449,11 @@ func (t *table) profileFor(cells []string, line int) (*building, error) {
 	if k, ok := t.index[id]; ok {
 		return t.profiles[k], nil
 	}
+	b, err := t.newBuilding(id, line)
+	if err != nil {
+		return nil, err
+	}
 	t.index[id] = len(t.profiles)
-	b := t.newBuilding(id)
 	t.profiles = append(t.profiles, b)
 	return b, nil
 }
@@ -416,8 +463,51 @@ func (t *table) number(cells []string, i, line int) (float64, error) {
 	return t.numberAt(cellAt(cells, i), i, line)
 }
 
+// unreadCells refuses, in a worksheet row, a cell under a header that
+// holds a formula without a stored result or an error value: its value
+// cannot be read, and a row of such cells would otherwise pass for blank.
+func (t *table) unreadCells(line int) error {
+	for i, k := range t.kinds {
+		if i >= len(t.cols) || t.cols[i].kind == colIgnore {
+			continue
+		}
+		switch k {
+		case kindFormula:
+			return t.org.errAt(line, i, t.cols[i].name, errorf(ErrNumber,
+				"the cell holds a formula with no stored result, not a value"), formulaHint)
+		case kindErrorValue:
+			return t.org.errAt(line, i, t.cols[i].name, errorf(ErrNumber,
+				"the cell holds the error value %s (a formula that failed)", quote(t.rowText[i])),
+				"correct the formula or type the value")
+		}
+	}
+	return nil
+}
+
+// kindAt is the kind of cell i of the row being added.
+func (t *table) kindAt(i int) cellKind {
+	if i < len(t.kinds) {
+		return t.kinds[i]
+	}
+	return kindText
+}
+
 // numberAt parses s, the cell in column i of row line, as a finite number.
+// A worksheet's stored numbers are read as stored; a logical value is
+// refused (TRUE is not the number 1); text may use a decimal comma.
 func (t *table) numberAt(s string, i, line int) (float64, error) {
+	switch t.kindAt(i) {
+	case kindBool:
+		return 0, t.org.errAt(line, i, t.cols[i].name, errorf(ErrNumber,
+			"the cell holds the logical value %s, not a number", s),
+			"type the measured number: a TRUE/FALSE cell is not read as 1/0")
+	case kindNumber:
+		v, err := parseNumber(s, false)
+		if err != nil {
+			return 0, t.org.errAt(line, i, t.cols[i].name, err, "fix the cell or remove the row")
+		}
+		return v, nil
+	}
 	v, err := parseNumber(s, t.comma)
 	if err != nil {
 		hint := "fix the cell or remove the row"
@@ -518,6 +608,9 @@ func (t *table) setFixed(b *building, i int, s string, line int) error {
 			fmt.Sprintf("one profile has one %s: correct the cell, or give the other rows their own profile id", c.kind.describe()))
 	}
 	*f = fixedCell{set: true, text: s, v: v, line: line}
+	if err := t.keep(int64(len(c.key)+len(s)), line); err != nil {
+		return err
+	}
 	if b.p.Meta == nil {
 		b.p.Meta = map[string]string{}
 	}

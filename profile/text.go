@@ -306,7 +306,8 @@ func readTable(r io.Reader, name, defaultID string) ([]Profile, error) {
 		return nil, err
 	}
 	t, err := newTable(tr.header, tableOptions{org: tr.org, meta: &tr.meta, headerLine: tr.headerLine,
-		defaultID: defaultID, comma: tr.comma, sepComma: tr.sep == ',', marks: tr.marks})
+		defaultID: defaultID, comma: tr.comma, sepComma: tr.sep == ',', marks: tr.marks,
+		kept: &textBudget{limit: maxKeptText}})
 	if err != nil {
 		return nil, err
 	}

@@ -27,6 +27,7 @@ var cases = map[string]func() ([]byte, error){
 	"encrypted.xlsx":               encrypted,
 	"binary_excel_as_xlsx.xlsx":    binaryExcel,
 	"long_shared_string.xlsx":      longSharedString,
+	"cell_too_long.xlsx":           cellTooLong,
 	"shared_string_reused.xlsx":    sharedStringReused,
 	"repeated_sheet_part.xlsx":     repeatedPart,
 	"formula_no_value.xlsx":        formulaNoValue,
@@ -158,6 +159,15 @@ func longSharedString() ([]byte, error) {
 		s.Rows[i] = append(s.Rows[i], Shared(0))
 	}
 	return Zip(Book{Sheets: []Sheet{s}, Shared: []string{strings.Repeat("x", 10<<20)}}.Parts())
+}
+
+// cellTooLong: a note cell holding 100 000 characters (a spreadsheet
+// cell holds at most 32 767).
+func cellTooLong() ([]byte, error) {
+	s := profileSheet()
+	s.Rows[3] = append(s.Rows[3], Str("note"))
+	s.Rows[5] = append(s.Rows[5], Str(strings.Repeat("n", 100000)))
+	return Zip(Book{Sheets: []Sheet{s}}.Parts())
 }
 
 // sharedStringReused: a shared string of 30 000 characters (under the
