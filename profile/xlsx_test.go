@@ -186,6 +186,7 @@ func TestSheetMetadataLayouts(t *testing.T) {
 		{"blank cell between", [][]badinput.Cell{{S("temperature"), E, E, S("925 C")}, {S("time_h"), E, N("4")}}, nil, 1198.15, 14400},
 		{"label before key", [][]badinput.Cell{{S("Hold"), S("temperature"), S("925 C")}, {E, S("time"), S("4 h")}},
 			[]string{"A1:A2"}, 1198.15, 14400},
+		{"key: with nothing is blank", [][]badinput.Cell{{S("temperature:")}, {S("time"), S("4 h")}}, nil, 0, 14400},
 		{"unit in key", [][]badinput.Cell{{S("Temperature (°F):"), N("1700")}, {S("time_min"), N("240")}}, nil, (1700-32)*5.0/9 + 273.15, 14400},
 	} {
 		ps, err := readBook(t, badinput.Book{Sheets: []badinput.Sheet{{Name: "A3", Rows: pointsRows(tc.meta...), Merged: tc.merged}}})
@@ -207,6 +208,9 @@ func TestSheetMetadataLayouts(t *testing.T) {
 		{"value and sigma", [][]badinput.Cell{{S("temperature"), N("925"), N("3")}}, "cell A1", "numbers in row 1"},
 		{"unit that is not one", [][]badinput.Cell{{S("temperature"), N("925"), S("deg")}}, "cell B1", `unknown temperature unit "deg"`},
 		{"formula as value", [][]badinput.Cell{{S("temperature"), badinput.Formula("900+25"), S("C")}}, "cell B1", "formula with no stored result"},
+		{"keys in a row, values below", [][]badinput.Cell{{S("temperature"), S("time")}, {S("925 C"), S("4 h")}}, "cell B1",
+			`two metadata keys, "temperature" and "time"`},
+		{"key alone", [][]badinput.Cell{{S("temperature")}, {S("925 C")}}, "cell A1", `metadata "temperature" has no value beside it`},
 	} {
 		_, err := readBook(t, badinput.Book{Sheets: []badinput.Sheet{{Name: "A3", Rows: pointsRows(tc.meta...)}}})
 		if err == nil || !strings.Contains(err.Error(), `h.xlsx [Sheet "A3"] `+tc.cell) || !strings.Contains(err.Error(), tc.frag) {

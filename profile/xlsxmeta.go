@@ -11,10 +11,11 @@ import (
 // between them may be blank (a merged key cell leaves its other cells
 // blank), and a label may stand before an interpreted key (Hold |
 // temperature | 925 C). Metadata the package interprets (temperature,
-// time…) is read or refused, never dropped: a row that names such a key
-// in a way that cannot be read is an error, and so is a value beside a key
-// cell merged over several rows. Rows that name no key (titles, notes)
-// are skipped.
+// time…) is read or refused, never dropped: a key with more cells than it
+// can use, two such keys in one row, a key with nothing beside it ("key:"
+// alone gives it blank, as in a text file) and a value beside a key cell
+// merged over several rows are errors. Rows that name no key (titles,
+// notes) are skipped.
 type sheetMetaReader struct {
 	org    origin
 	meta   metaSet
@@ -93,6 +94,18 @@ func (m *sheetMetaReader) entry(line int, k xcell, rest []xcell, key, value stri
 			if err := m.unreadable(line, c); err != nil {
 				return err
 			}
+			if k2, _, _, ok := metaKey(c); ok {
+				if c2, _ := meaning(k2); c2 != "" {
+					return m.org.errAt(line, c.col, "", errorf(ErrMetadata,
+						"the row holds two metadata keys, %s and %s; it cannot be told which value is whose", quote(key), quote(k2)),
+						"write one key per row, with its value in the cell to its right (temperature | 925 C)")
+				}
+			}
+		}
+		if !colon && len(rest) == 0 && !strings.HasSuffix(strings.TrimSpace(k.text), ":") {
+			return m.org.errAt(line, k.col, "", errorf(ErrMetadata, "metadata %s has no value beside it", quote(key)),
+				fmt.Sprintf("write the value in the cell to its right, or key and value in one cell as %s; or remove the key",
+					quote(metaExample(canon, true))))
 		}
 		if mr, ok := m.merged[[2]int{line, k.col}]; ok && mr.r1 > mr.r0 {
 			m.keyed = append(m.keyed, keyedRange{mr, key})
@@ -100,7 +113,7 @@ func (m *sheetMetaReader) entry(line int, k xcell, rest []xcell, key, value stri
 	}
 	e := metaEntry{key: key, line: line, col: k.col}
 	switch {
-	case colon && len(rest) == 0:
+	case colon && len(rest) == 0, interpreted && len(rest) == 0: // "temperature:" alone: given blank
 		e.value = value
 	case colon && interpreted && len(rest) == 1:
 		e.value, e.col = strings.TrimSpace(value+" "+rest[0].text), rest[0].col
