@@ -362,3 +362,41 @@ func TestWorkbookStructure(t *testing.T) {
 		}
 	}
 }
+
+// TestDamagedEntries: every way a zip entry can differ from its header is
+// refused before anything is read, naming the part (the generated
+// catalogue cases cover a changed stored byte and a short declared size).
+func TestDamagedEntries(t *testing.T) {
+	for _, tc := range []struct {
+		name   string
+		change func(*badinput.Entry)
+		frag   string
+	}{
+		{"declared longer", func(e *badinput.Entry) { e.Size = uint64(2 * len(e.Data)) }, "is shorter than the"},
+		{"checksum declared 0", func(e *badinput.Entry) { e.ZeroCRC = true }, "fails its checksum"},
+		{"deflate stream corrupt", func(e *badinput.Entry) {
+			e.MutateRaw = func(b []byte) []byte { b[len(b)/2] ^= 0xFF; b[len(b)/2+1] ^= 0xFF; return b }
+		}, `part "xl/worksheets/sheet1.xml"`},
+		{"deflate stream cut", func(e *badinput.Entry) { e.MutateRaw = func(b []byte) []byte { return b[:len(b)/2] } },
+			`part "xl/worksheets/sheet1.xml"`},
+		{"changed stored byte", func(e *badinput.Entry) {
+			e.Store, e.Mutate = true, func(b []byte) []byte { b[len(b)-20] ^= 1; return b }
+		}, "fails its checksum"},
+	} {
+		parts := badinput.Book{Sheets: []badinput.Sheet{{Name: "A3", Rows: pointsRows()}}}.Parts()
+		for i := range parts {
+			if parts[i].Name == "xl/worksheets/sheet1.xml" {
+				tc.change(&parts[i])
+			}
+		}
+		data, err := badinput.Zip(parts)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ps, err := readXLSXBytes(data, "d.xlsx")
+		if !errors.Is(err, ErrFormat) || ps != nil || !strings.Contains(err.Error(), "damaged") ||
+			!strings.Contains(err.Error(), tc.frag) {
+			t.Errorf("%s: %v", tc.name, err)
+		}
+	}
+}

@@ -78,8 +78,11 @@ type Entry struct {
 	// CRC and Size, when not zero, are declared instead of the true values.
 	CRC  uint32
 	Size uint64
-	// Mutate changes the data after the checksum and size are computed.
-	Mutate func([]byte) []byte
+	// ZeroCRC declares a checksum of 0 (which archive/zip does not check).
+	ZeroCRC bool
+	// Mutate changes the data after the checksum and size are computed;
+	// MutateRaw changes the entry's bytes as stored (compressed).
+	Mutate, MutateRaw func([]byte) []byte
 }
 
 // Parts returns the package parts of b in a fixed order.
@@ -206,6 +209,9 @@ func Zip(entries []Entry) ([]byte, error) {
 		if e.Size != 0 {
 			h.UncompressedSize64 = e.Size
 		}
+		if e.ZeroCRC {
+			h.CRC32 = 0
+		}
 		data := e.Data
 		if e.Mutate != nil {
 			data = e.Mutate(append([]byte(nil), data...))
@@ -213,6 +219,9 @@ func Zip(entries []Entry) ([]byte, error) {
 		body, err := compress(data, h.Method)
 		if err != nil {
 			return nil, err
+		}
+		if e.MutateRaw != nil {
+			body = e.MutateRaw(body)
 		}
 		h.CompressedSize64 = uint64(len(body))
 		fw, err := w.CreateRaw(h)
