@@ -6,9 +6,13 @@ import (
 	"runtime"
 	"runtime/metrics"
 	"strconv"
+	"strings"
 	"sync/atomic"
 	"testing"
 	"time"
+
+	"github.com/fickfit/fickfit/internal/badinput"
+	"github.com/xuri/excelize/v2"
 )
 
 // longCSV generates a long table of profiles × points rows (invented
@@ -117,5 +121,78 @@ func BenchmarkParseTemperature(b *testing.B) {
 		if _, err := ParseTemperature("925,5 °C"); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+// longWorkbook is a workbook with one long sheet of profiles × points
+// rows (invented numbers, as longCSV), written by excelize's stream writer.
+func longWorkbook(b *testing.B, profiles, points int) []byte {
+	b.Helper()
+	f := excelize.NewFile()
+	defer f.Close()
+	sw, err := f.NewStreamWriter("Sheet1")
+	if err != nil {
+		b.Fatal(err)
+	}
+	row := 1
+	cell := func() string { c, _ := excelize.CoordinatesToCellName(1, row); row++; return c }
+	if err := sw.SetRow(cell(), []any{"specimen", "lot", "temperature_C", "time_h", "depth_um", "C_wt%", "sigma"}); err != nil {
+		b.Fatal(err)
+	}
+	for p := 0; p < profiles; p++ {
+		for i := 0; i < points; i++ {
+			if err := sw.SetRow(cell(), []any{"S" + strconv.Itoa(p), "L" + strconv.Itoa(p%7), 850 + p%150, 4, 20 * (i + 1),
+				0.2 + 0.7/float64(1+i) + 0.001*float64((i*7+p)%5), 0.01}); err != nil {
+				b.Fatal(err)
+			}
+		}
+	}
+	if err := sw.Flush(); err != nil {
+		b.Fatal(err)
+	}
+	buf, err := f.WriteToBuffer()
+	if err != nil {
+		b.Fatal(err)
+	}
+	return buf.Bytes()
+}
+
+// BenchmarkReadWorkbook reads a long sheet of 2000 profiles × 50 points
+// (10⁵ points): ns per point and the workbook's size.
+func BenchmarkReadWorkbook(b *testing.B) {
+	data := longWorkbook(b, 2000, 50)
+	b.SetBytes(int64(len(data)))
+	for b.Loop() {
+		ps, err := readXLSXBytes(data, "long.xlsx")
+		if err != nil || len(ps) != 2000 {
+			b.Fatal(len(ps), err)
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/1e5, "ns/point")
+}
+
+// BenchmarkRefuseBadInput times the refusal of each generated bad input
+// of the catalogue (internal/badinput): the amplifying ones must be
+// refused in well under a second.
+func BenchmarkRefuseBadInput(b *testing.B) {
+	for _, name := range badinput.Names() {
+		data, err := badinput.Bytes(name)
+		if err != nil {
+			b.Fatal(err)
+		}
+		b.Run(strings.TrimSuffix(strings.TrimSuffix(name, ".xlsx"), ".csv"), func(b *testing.B) {
+			for b.Loop() {
+				var err error
+				if strings.HasSuffix(name, ".csv") {
+					_, err = ReadCSV(bytes.NewReader(data), name)
+				} else {
+					_, err = readXLSXBytes(data, name)
+				}
+				if err == nil {
+					b.Fatal("read without error")
+				}
+			}
+			b.ReportMetric(float64(len(data))/1024, "file-KiB")
+		})
 	}
 }

@@ -100,7 +100,7 @@ func (c *Calibration) columns(tr *textReader) (hi, ci int, err error) {
 		if _, u := valueHeader(names[0]); u != "" {
 			k = 1 // the first is a concentration: the second was meant as hardness
 		}
-		return bad(idx[k], names[k], errorf(ErrUnit, "no known hardness scale in %q", names[k]),
+		return bad(idx[k], names[k], errorf(ErrUnit, "no known hardness scale in %s", quote(names[k])),
 			"name the hardness column by its scale: HV, HV0.5, HV10, HK0.1, HRC, HRB, HR15N, HBW…")
 	}
 	if _, c.Scale = valueHeader(names[hi]); c.Scale == "" {
@@ -121,7 +121,7 @@ func (c *Calibration) readRows(tr *textReader, hi, ci int) error {
 	for {
 		rec, line, err := tr.next()
 		if err == io.EOF {
-			return nil
+			return tr.finishMarks()
 		}
 		if err != nil {
 			return err
@@ -141,6 +141,12 @@ func (c *Calibration) readRows(tr *textReader, hi, ci int) error {
 			return tr.org.errAt(line, hi, c.HardnessName, errorf(ErrValue, "hardness %s is not positive", fmtNum(h)),
 				"fix the cell or remove the row")
 		}
+		if err := checkMeasured(h, "hardness", clip(cellAt(rec, hi))); err != nil {
+			return tr.org.errAt(line, hi, c.HardnessName, err, "fix the cell or remove the row")
+		}
+		if err := checkMeasured(v, "concentration", clip(cellAt(rec, ci))); err != nil {
+			return tr.org.errAt(line, ci, c.ConcentrationName, err, "fix the cell or remove the row")
+		}
 		c.Hardness, c.Concentration, c.Line = append(c.Hardness, h), append(c.Concentration, v), append(c.Line, line)
 	}
 }
@@ -154,7 +160,7 @@ func calNumber(tr *textReader, rec []string, i, line int, col string) (float64, 
 	if err != nil {
 		return 0, tr.org.errAt(line, i, col, err, "fix the cell or remove the row")
 	}
-	return v, nil
+	return v, tr.noteMark(cellAt(rec, i), line, i, col)
 }
 
 // check sorts the pairs by hardness and refuses too few, repeated
@@ -243,7 +249,7 @@ func (c *Calibration) Apply(p *Profile) (Profile, error) {
 	file, sheet := splitSource(p.Source)
 	if !sameScale(p.ValueUnit, c.Scale) {
 		return Profile{}, &Error{File: file, Sheet: sheet, Column: p.ValueName, Err: errorf(ErrUnit,
-			"profile %q is in %q but the calibration %s is in %s", p.ID, p.ValueUnit, c.Source, c.Scale),
+			"profile %s is in %s but the calibration %s is in %s", quote(p.ID), quote(p.ValueUnit), c.Source, c.Scale),
 			Hint: "use a calibration measured on the same hardness scale and test force"}
 	}
 	q := *p
@@ -255,7 +261,7 @@ func (c *Calibration) Apply(p *Profile) (Profile, error) {
 		v, err := c.ToConcentration(h)
 		if err != nil {
 			e := &Error{File: file, Sheet: sheet, Column: p.ValueName,
-				Err:  fmt.Errorf("profile %q at depth %s mm: %w", p.ID, fmtNum(p.Depth[i]*1e3), err),
+				Err:  fmt.Errorf("profile %s at depth %s mm: %w", quote(p.ID), fmtNum(p.Depth[i]*1e3), err),
 				Hint: "extend the calibration to cover this hardness, or remove the point"}
 			if i < len(p.Line) {
 				e.Line = p.Line[i]

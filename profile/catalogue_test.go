@@ -9,6 +9,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/fickfit/fickfit/internal/badinput"
 )
 
 // readTSV reads a catalogue table; lines starting with '#' are comments.
@@ -56,6 +58,12 @@ func TestBadCatalogue(t *testing.T) {
 		listed[file] = true
 		t.Run(file, func(t *testing.T) {
 			path := filepath.Join(dir, file)
+			if badinput.Has(file) {
+				var err error
+				if path, err = badinput.Write(t.TempDir(), file); err != nil {
+					t.Fatal(err)
+				}
+			}
 			var err error
 			switch stage {
 			case "read":
@@ -84,6 +92,14 @@ func TestBadCatalogue(t *testing.T) {
 		if n := e.Name(); !listed[n] && n != "README.md" && n != "cases.tsv" && n != "gen" {
 			t.Errorf("%s is not listed in cases.tsv", n)
 		}
+		if badinput.Has(e.Name()) {
+			t.Errorf("%s is both a file and a generated case", e.Name())
+		}
+	}
+	for _, n := range badinput.Names() {
+		if !listed[n] {
+			t.Errorf("generated case %s is not listed in cases.tsv", n)
+		}
 	}
 }
 
@@ -108,6 +124,9 @@ func checkCatalogueError(t *testing.T, err error, file, kind, where, fragment st
 	}
 	if e.Hint == "" {
 		t.Errorf("error %q says nothing about what to do", msg)
+	}
+	if len(msg) > 600 {
+		t.Errorf("message of %d bytes: a message quotes short excerpts only", len(msg))
 	}
 }
 

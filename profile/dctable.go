@@ -60,7 +60,7 @@ func ReadDiffusivityTableCSV(r io.Reader, name string) (conc, d []float64, err e
 				if strings.EqualFold(root, "D") {
 					f, ok := diffusivityUnits[strings.ToLower(strings.ReplaceAll(unit, " ", ""))]
 					if !ok {
-						return nil, nil, fail(line, h, errorf(ErrUnit, "the D column %q has no known unit", h), "name it D_m2/s, D_cm2/s or D_um2/s")
+						return nil, nil, fail(line, h, errorf(ErrUnit, "the D column %s has no known unit", quote(h)), "name it D_m2/s, D_cm2/s or D_um2/s")
 					}
 					dCol, dFactor = i, f
 				} else if cCol < 0 {
@@ -78,10 +78,17 @@ func ReadDiffusivityTableCSV(r io.Reader, name string) (conc, d []float64, err e
 		c, e1 := strconv.ParseFloat(strings.TrimSpace(rec[cCol]), 64)
 		v, e2 := strconv.ParseFloat(strings.TrimSpace(rec[dCol]), 64)
 		if e1 != nil || math.IsNaN(c) || math.IsInf(c, 0) {
-			return nil, nil, fail(line, header[cCol], errorf(ErrNumber, "%q is not a number", rec[cCol]), "fix the cell")
+			return nil, nil, fail(line, header[cCol], errorf(ErrNumber, "%s is not a number", quote(rec[cCol])), "fix the cell")
 		}
 		if e2 != nil || !(v > 0) || math.IsInf(v, 0) {
-			return nil, nil, fail(line, header[dCol], errorf(ErrValue, "D %q is not a positive number", rec[dCol]), "D must be positive")
+			return nil, nil, fail(line, header[dCol], errorf(ErrValue, "D %s is not a positive number", quote(rec[dCol])), "D must be positive")
+		}
+		if err := checkMeasured(c, "concentration", clip(strings.TrimSpace(rec[cCol]))); err != nil {
+			return nil, nil, fail(line, header[cCol], err, "fix the cell")
+		}
+		if dd := v * dFactor; dd > maxDiffusivity || dd < minDiffusivity {
+			return nil, nil, fail(line, header[dCol], errorf(ErrValue, "D %s is %s m²/s, outside %g–%g m²/s",
+				quote(rec[dCol]), fmtNum(dd), minDiffusivity, maxDiffusivity), "check the number and the unit in the header")
 		}
 		if n := len(conc); n > 0 && !(c > conc[n-1]) {
 			return nil, nil, fail(line, header[cCol], errorf(ErrValue, "concentration %g does not increase", c), "sort the table by concentration and remove repeats")

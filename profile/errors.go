@@ -3,6 +3,7 @@ package profile
 import (
 	"errors"
 	"fmt"
+	"strconv"
 	"strings"
 )
 
@@ -68,7 +69,7 @@ func (e *Error) Error() string {
 		if b.Len() > 0 {
 			b.WriteString(": ")
 		}
-		fmt.Fprintf(&b, "column %q", e.Column)
+		b.WriteString("column " + quote(e.Column))
 	}
 	if e.Err != nil {
 		if b.Len() > 0 {
@@ -87,7 +88,7 @@ func (e *Error) Error() string {
 func (e *Error) where() string {
 	s := e.File
 	if e.Sheet != "" {
-		s += fmt.Sprintf(" [Sheet %q]", e.Sheet)
+		s += " [Sheet " + quote(e.Sheet) + "]"
 		switch {
 		case e.Cell != "":
 			s += " cell " + e.Cell
@@ -118,4 +119,38 @@ func (k *kindError) Unwrap() error { return k.kind }
 // errorf makes an error of the given kind with a formatted message.
 func errorf(kind error, format string, args ...any) error {
 	return &kindError{kind: kind, msg: fmt.Sprintf(format, args...)}
+}
+
+// maxEcho is the number of characters of a cell, line or name that a
+// message quotes at most: enough to recognise it, never a whole overlong
+// cell (a workbook cell may hold 32 767 characters, a text line 1 MiB).
+const maxEcho = 40
+
+// quote returns s in double quotes, in Go syntax as %q writes it, cut to
+// its first maxEcho characters and an ellipsis when it is longer.
+func quote(s string) string {
+	n := 0
+	for i := range s {
+		if n == maxEcho {
+			return strconv.Quote(s[:i] + "…")
+		}
+		n++
+	}
+	return strconv.Quote(s)
+}
+
+// clip is s cut as quote cuts it, without the quotes (for numbers as
+// written, which messages show bare: "time 0 is not positive").
+func clip(s string) string { return clipN(s, maxEcho) }
+
+// clipN cuts s to its first n characters and an ellipsis.
+func clipN(s string, n int) string {
+	k := 0
+	for i := range s {
+		if k == n {
+			return s[:i] + "…"
+		}
+		k++
+	}
+	return s
 }

@@ -3,13 +3,14 @@ package profile
 import (
 	"bytes"
 	"errors"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 
-	"github.com/xuri/excelize/v2"
+	"github.com/fickfit/fickfit/internal/badinput"
 )
 
 // addFiles adds every file of the given testdata folders as a seed.
@@ -134,8 +135,11 @@ func FuzzXLSX(f *testing.F) {
 	f.Add("profile\tdepth_um\ttemperature_K\tHV0.5\nA\t50\t1200\t800\nB\t50\t1300\t700")
 	f.Add("title\n1\t2")
 	f.Add("Temperature (°F):\t1700\nthickness: 0,5 in\ndistance_mil\tsigma\tN (ppm)\n1\t2\t300")
+	f.Add("temperature\t925\tC\ntime:\t4 h\nHold\t\tlot\tL1\ndepth_mm\tC_wt%\n0.1\t0.8\n1.025\t0,7")
+	f.Add("temperature\ttime\n925 C\t4 h\ndepth_mm\tC_wt%\n0.1\t0.8")
+	f.Add("temperature\nlot\tL1\tL2\ndepth_um;x\tHV0.5\n1,025\t650\n2,5\t600")
 	f.Fuzz(func(t *testing.T, grid string) {
-		ps, err := readRows(gridRows(grid), origin{file: "f.xlsx", sheet: "S"})
+		ps, err := readRows(gridRows(grid), origin{file: "f.xlsx", sheet: "S"}, sheetOptions{})
 		if err == nil && ps == nil {
 			return // a sheet without a header is skipped
 		}
@@ -143,17 +147,28 @@ func FuzzXLSX(f *testing.F) {
 	})
 }
 
-// sliceRows is a rowSource over rows held in memory.
+// sliceRows is a rowSource over rows held in memory: rows split by '\n',
+// cells by '\t', all text, as a worksheet of text cells would yield them.
 type sliceRows struct {
 	rows [][]string
 	i    int
 }
 
-func (s *sliceRows) Next() bool { s.i++; return s.i <= len(s.rows) }
-func (s *sliceRows) Columns(...excelize.Options) ([]string, error) {
-	return s.rows[s.i-1], nil
+func (s *sliceRows) next() (sheetRow, error) {
+	for s.i < len(s.rows) {
+		s.i++
+		r := sheetRow{line: s.i}
+		for c, text := range s.rows[s.i-1] {
+			if text != "" {
+				r.cells = append(r.cells, xcell{col: c, text: text})
+			}
+		}
+		if len(r.cells) > 0 {
+			return r, nil
+		}
+	}
+	return sheetRow{}, io.EOF
 }
-func (s *sliceRows) Error() error { return nil }
 
 func gridRows(grid string) *sliceRows {
 	s := &sliceRows{}
@@ -166,7 +181,7 @@ func gridRows(grid string) *sliceRows {
 // TestXLSXGridPositions: the grid path gives the same cell positions as a
 // real workbook would.
 func TestXLSXGridPositions(t *testing.T) {
-	_, err := readRows(gridRows("\n\tdepth_mm\tC_wt%\n\t0.1\tx"), origin{file: "g.xlsx", sheet: "S"})
+	_, err := readRows(gridRows("\n\tdepth_mm\tC_wt%\n\t0.1\tx"), origin{file: "g.xlsx", sheet: "S"}, sheetOptions{})
 	if err == nil || !strings.Contains(err.Error(), `g.xlsx [Sheet "S"] cell C3`) {
 		t.Errorf("got %v", err)
 	}
@@ -182,6 +197,17 @@ func FuzzXLSXBytes(f *testing.F) {
 			f.Fatal(err)
 		}
 		f.Add(b)
+	}
+	for _, name := range badinput.Names() {
+		if strings.HasSuffix(name, ".xlsx") {
+			b, err := badinput.Bytes(name)
+			if err != nil {
+				f.Fatal(err)
+			}
+			if len(b) <= 64<<10 { // larger seeds only slow the fuzzer
+				f.Add(b)
+			}
+		}
 	}
 	f.Fuzz(func(t *testing.T, data []byte) {
 		ps, err := readXLSXBytes(data, "f.xlsx")
@@ -231,6 +257,68 @@ func FuzzHistory(f *testing.F) {
 		for i := range h.Time {
 			if !(h.Temp[i] > 0) || math.IsInf(h.Temp[i], 0) || math.IsNaN(h.Time[i]) || (i > 0 && !(h.Time[i] > h.Time[i-1])) {
 				t.Fatalf("row %d: t %v T %v", i, h.Time[i], h.Temp[i])
+			}
+		}
+	})
+}
+
+// FuzzWorkbookXML feeds fuzzed worksheet and shared-strings XML inside an
+// otherwise valid workbook to the reader: malformed or odd XML must give
+// an *Error or valid profiles, never a panic.
+func FuzzWorkbookXML(f *testing.F) {
+	ns := `xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"`
+	sst := `<sst ` + ns + `><si><t>depth_mm</t></si><si><r><t>C_</t></r><r><t>wt%</t></r><rPh><t>x</t></rPh></si><si><t>0,5</t></si></sst>`
+	f.Add(`<worksheet `+ns+`><sheetData><row r="1"><c r="A1" t="s"><v>0</v></c><c r="B1" t="s"><v>1</v></c></row>`+
+		`<row r="2"><c r="A2"><v>0.1</v></c><c r="B2" t="s"><v>2</v></c></row><row r="3"><c r="A3"><v>0.2</v></c><c r="B3"><f>B2*2</f><v>1</v></c></row>`+
+		`</sheetData><mergeCells count="1"><mergeCell ref="C1:D1"/></mergeCells></worksheet>`, sst)
+	f.Add(`<x:worksheet xmlns:x="http://schemas.openxmlformats.org/spreadsheetml/2006/main"><x:sheetData><x:row><x:c t="inlineStr"><x:is><x:t>temperature</x:t></x:is></x:c>`+
+		`<x:c t="inlineStr"><x:is><x:t>925 C</x:t></x:is></x:c></x:row><x:row><x:c t="s"><x:v>0</x:v></x:c><x:c t="b"><x:v>1</x:v></x:c></x:row>`+
+		`<x:row><x:c><x:v>0.1</x:v></x:c><x:c t="e"><x:v>#N/A</x:v></x:c></x:row></x:sheetData></x:worksheet>`, sst)
+	f.Add(`<worksheet `+ns+`><sheetData><row r="3"><c r="XFD3"><v>1</v></c></row><row r="2"/></sheetData></worksheet>`, `<sst/>`)
+	f.Fuzz(func(t *testing.T, sheet, shared string) {
+		parts := badinput.Book{Sheets: []badinput.Sheet{{Name: "S", Rows: [][]badinput.Cell{{badinput.Str("x")}}}},
+			Shared: []string{"x"}}.Parts()
+		for i := range parts {
+			parts[i].Store = true // no deflate: fuzzing time goes to the reader
+			switch parts[i].Name {
+			case "xl/worksheets/sheet1.xml":
+				parts[i].Data = []byte(sheet)
+			case "xl/sharedStrings.xml":
+				parts[i].Data = []byte(shared)
+			}
+		}
+		data, err := badinput.Zip(parts)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ps, err := readXLSXBytes(data, "f.xlsx")
+		checkResult(t, ps, err, "f.xlsx")
+	})
+}
+
+// FuzzDecimalMark: in a file whose decimals use a comma (a ';' table) or
+// a point (a tab table), a number is either refused as ambiguous or read
+// as the file's convention reads it (common practice, no source).
+func FuzzDecimalMark(f *testing.F) {
+	for _, s := range []string{"1.025", "1,025", "0,5", "12.5", "−2.500", "1e3", "100", "999,999", "1000.25"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		if strings.ContainsAny(s, "\n\r\t;\"#") {
+			return
+		}
+		want, err := parseNumber(s, true)
+		if err != nil {
+			return
+		}
+		for _, file := range []string{"depth_mm;C_wt%\n0,5;" + s + "\n", "depth_mm\tC_wt%\n0.5\t" + s + "\n"} {
+			ps, err := ReadCSV(strings.NewReader(file), "m.csv")
+			ambiguous := markOf(s) == markDotAmbiguous && file[8] == ';' || markOf(s) == markCommaAmbiguous && file[8] == '\t'
+			switch {
+			case ambiguous && (err == nil || !strings.Contains(err.Error(), "ambiguous")):
+				t.Fatalf("%q in %q: %v", s, file, err)
+			case !ambiguous && err == nil && ps[0].Value[0] != want:
+				t.Fatalf("%q in %q read as %v, want %v", s, file, ps[0].Value[0], want)
 			}
 		}
 	})

@@ -27,8 +27,8 @@ func ReadHistory(path string) (*History, error) {
 	switch strings.ToLower(filepath.Ext(path)) {
 	case ".csv", ".tsv", ".txt":
 	default:
-		return nil, &Error{File: path, Err: errorf(ErrFormat, "a temperature history is read from a text table, not %q",
-			filepath.Ext(path)), Hint: "export the log as CSV with columns such as time_h and temperature_C"}
+		return nil, &Error{File: path, Err: errorf(ErrFormat, "a temperature history is read from a text table, not %s",
+			quote(filepath.Ext(path))), Hint: "export the log as CSV with columns such as time_h and temperature_C"}
 	}
 	f, err := os.Open(path)
 	if err != nil {
@@ -95,7 +95,7 @@ func historyColumns(tr *textReader) (time, temp histColumn, err error) {
 		}
 		if dst.idx >= 0 {
 			return time, temp, tr.org.errAt(tr.headerLine, i, c.name, errorf(ErrColumn,
-				"two %s columns, %q and %q", c.kind.describe(), dst.name, c.name), "keep one of them")
+				"two %s columns, %s and %s", c.kind.describe(), quote(dst.name), quote(c.name)), "keep one of them")
 		}
 		*dst = histColumn{c, i}
 	}
@@ -112,7 +112,7 @@ func (h *History) readRows(tr *textReader, ti, tc histColumn) error {
 	for {
 		rec, line, err := tr.next()
 		if err == io.EOF {
-			return nil
+			return tr.finishMarks()
 		}
 		if err != nil {
 			return err
@@ -129,17 +129,16 @@ func (h *History) readRows(tr *textReader, ti, tc histColumn) error {
 			return err
 		}
 		t, k := ti.size.si(t), tc.scale.ToKelvin(v)
-		if math.IsInf(t, 0) {
-			return tr.org.errAt(line, ti.idx, ti.name, errorf(ErrValue, "time %s is too large", fmtNum(t)),
-				"fix the cell or remove the row")
+		if math.Abs(t) > maxSeconds {
+			return tr.org.errAt(line, ti.idx, ti.name, errorf(ErrValue, "time %s is longer than 1e10 s (317 years)",
+				clip(cellAt(rec, ti.idx))), "fix the cell or remove the row")
 		}
-		if !(k > 0) || math.IsInf(k, 0) {
-			return tr.org.errAt(line, tc.idx, tc.name, errorf(ErrValue,
-				"temperature %s is %s K, not above absolute zero", fmtNum(v), fmtNum(k)), "fix the cell or remove the row")
+		if err := checkKelvin(k, clip(cellAt(rec, tc.idx))); err != nil {
+			return tr.org.errAt(line, tc.idx, tc.name, err, "fix the cell or remove the row")
 		}
 		if n := len(h.Time); n > 0 && !(t > h.Time[n-1]) {
 			return tr.org.errAt(line, ti.idx, ti.name, errorf(ErrValue,
-				"time %s does not increase (line %d has %s)", strings.TrimSpace(rec[ti.idx]), h.Line[n-1],
+				"time %s does not increase (line %d has %s)", clip(strings.TrimSpace(rec[ti.idx])), h.Line[n-1],
 				fmtNum(h.Time[n-1]/ti.size.factor())), "sort the log by time and remove repeated times")
 		}
 		h.Time, h.Temp, h.Line = append(h.Time, t), append(h.Temp, k), append(h.Line, line)
@@ -151,7 +150,7 @@ func histNumber(tr *textReader, rec []string, c histColumn, line int) (float64, 
 	s := cellAt(rec, c.idx)
 	v, err := parseNumber(s, tr.comma)
 	if err == nil {
-		return v, nil
+		return v, tr.noteMark(s, line, c.idx, c.name)
 	}
 	hint := "fix the cell or remove the row"
 	if c.kind == colTime && strings.ContainsAny(s, ":-/T") && len(s) > 4 {

@@ -99,7 +99,7 @@ func (m *metaSet) add(e metaEntry, org origin) error {
 		oc, _ := meaning(o.key)
 		if (c != "" && c == oc) || strings.EqualFold(o.key, e.key) {
 			return org.errAt(e.line, e.col, "", errorf(ErrMetadata,
-				"metadata %q given twice (also at %s)", e.key, org.place(o.line, o.col)),
+				"metadata %s given twice (also at %s)", quote(e.key), org.place(o.line, o.col)),
 				"keep one of them")
 		}
 	}
@@ -130,7 +130,7 @@ func (m *metaSet) apply(p *Profile, org origin) error {
 		}
 		if err := setField(p, e); err != nil {
 			c, _ := meaning(e.key)
-			return org.errAt(e.line, e.col, "", fmt.Errorf("metadata %q: %w", e.key, err),
+			return org.errAt(e.line, e.col, "", fmt.Errorf("metadata %s: %w", quote(e.key), err),
 				fmt.Sprintf("write e.g. %q", metaExample(c, org.sheet != "")))
 		}
 	}

@@ -87,7 +87,7 @@ func readFile(path string) ([]Profile, error) {
 		return nil, &Error{File: path, Err: errorf(ErrFormat, "%s workbooks are not read", ext),
 			Hint: "save the workbook as .xlsx, or export the sheets as CSV"}
 	}
-	return nil, &Error{File: path, Err: errorf(ErrFormat, "unknown file type %q", ext),
+	return nil, &Error{File: path, Err: errorf(ErrFormat, "unknown file type %s", quote(ext)),
 		Hint: "give .csv, .tsv, .txt or .xlsx files"}
 }
 
@@ -155,7 +155,7 @@ func checkUnique(ps []Profile) error {
 		q := ps[j]
 		file, sheet := splitSource(p.Source)
 		e := &Error{File: file, Sheet: sheet, Err: errorf(ErrDuplicate,
-			"profile id %q is also used by %s", p.ID, q.Source),
+			"profile id %s is also used by %s", quote(p.ID), q.Source),
 			Hint: "rename one of them (the id comes from an id metadata line, the id column, the sheet name or the file name)"}
 		if len(p.Line) > 0 {
 			e.Line = p.Line[0]

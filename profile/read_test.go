@@ -315,3 +315,30 @@ func TestPositionAcrossCouple(t *testing.T) {
 		t.Error("negative depth accepted")
 	}
 }
+
+// TestShortEcho: a message quotes at most maxEcho characters of a cell, a
+// header or a name, with an ellipsis (common practice, no source).
+func TestShortEcho(t *testing.T) {
+	long := strings.Repeat("k", 5000)
+	for _, tc := range []struct{ name, text string }{
+		{"cell", "depth_mm,C_wt%\n0.1," + long + "\n"},
+		{"one-column header", long + "\n0.1\n"},
+		{"unit", "depth_" + long + ",C_wt%\n0.1,0.8\n"},
+		{"metadata", "# temperature: 925 " + long + "\ndepth_mm,C_wt%\n0.1,0.8\n"},
+		{"per-profile cell", "profile,lot,depth_mm,C_wt%\nA,L1,0.1,0.8\nA," + long + ",0.2,0.7\n"},
+		{"id", "# id: " + long + "\n# thickness: 1 mm\ndepth_mm,C_wt%\n1.5,0.8\n"},
+		{"header without depth", "x" + long + ",C_wt%\n0.1,0.8\n"},
+	} {
+		_, err := ReadCSV(strings.NewReader(tc.text), "e.csv")
+		if err == nil {
+			t.Errorf("%s: no error", tc.name)
+			continue
+		}
+		if msg := err.Error(); len(msg) > 400 || !strings.Contains(msg, "kkkk…") {
+			t.Errorf("%s: message of %d bytes: %.300s", tc.name, len(msg), msg)
+		}
+	}
+	if got := quote("µµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµ"); got != `"`+strings.Repeat("µ", maxEcho)+`…"` {
+		t.Errorf("quote cuts by bytes, not characters: %s", got)
+	}
+}

@@ -6,8 +6,6 @@ import (
 	"maps"
 	"math"
 	"strings"
-
-	"github.com/xuri/excelize/v2"
 )
 
 // origin says where rows come from, to build errors that point at them.
@@ -29,11 +27,7 @@ func (o origin) cell(line, col int) string {
 	if o.sheet == "" || line <= 0 || col < 0 {
 		return ""
 	}
-	ref, err := excelize.CoordinatesToCellName(col+1, line)
-	if err != nil {
-		return ""
-	}
-	return ref
+	return cellName(line, col)
 }
 
 // place names a position in a message: "line 4" or "cell B4".
@@ -65,13 +59,22 @@ type table struct {
 	depthCol   int
 	valueCol   int // -1 until the first data row decides it
 	sigmaCol   int
-	comma      bool      // a decimal comma is accepted in cells
-	sepComma   bool      // columns are separated by ',' (for hints)
-	valueKey   metaEntry // "value" metadata naming the value column
-	template   Profile   // metadata applied once, copied into every profile
-	profiles   []*building
-	index      map[string]int
-	rows       int
+	comma      bool          // a decimal comma is accepted in cells
+	marks      *decimalMarks // watches decimal marks of text numbers; nil when not needed
+	kept       *textBudget   // text the profiles keep, for the whole file; nil: not counted
+	metaCost   int64         // text of the metadata every new profile copies
+	// kinds are the cell kinds of the row being added (worksheets; nil for
+	// text files, whose cells are all text); rowText and rowKinds are the
+	// buffers a worksheet row is laid out in.
+	kinds    []cellKind
+	rowText  []string
+	rowKinds []cellKind
+	sepComma bool      // columns are separated by ',' (for hints)
+	valueKey metaEntry // "value" metadata naming the value column
+	template Profile   // metadata applied once, copied into every profile
+	profiles []*building
+	index    map[string]int
+	rows     int
 }
 
 // building is a profile being assembled.
@@ -96,11 +99,13 @@ type tableOptions struct {
 	defaultID  string
 	comma      bool
 	sepComma   bool
+	marks      *decimalMarks // see table.marks
+	kept       *textBudget   // see table.kept
 }
 
 // newTable classifies the header cells and applies the metadata.
 func newTable(header []string, o tableOptions) (*table, error) {
-	t := &table{org: o.org, headerLine: o.headerLine, comma: o.comma, sepComma: o.sepComma,
+	t := &table{org: o.org, headerLine: o.headerLine, comma: o.comma, sepComma: o.sepComma, marks: o.marks, kept: o.kept,
 		idCol: -1, depthCol: -1, valueCol: -1, sigmaCol: -1, index: map[string]int{}}
 	if err := t.classifyHeader(header); err != nil {
 		return nil, err
@@ -108,8 +113,15 @@ func newTable(header []string, o tableOptions) (*table, error) {
 	if err := t.applyMeta(o.meta, o.defaultID); err != nil {
 		return nil, err
 	}
+	for k, v := range t.template.Meta {
+		t.metaCost += int64(len(k) + len(v))
+	}
 	if t.idCol < 0 {
-		t.profiles = []*building{t.newBuilding(t.template.ID)}
+		b, err := t.newBuilding(t.template.ID, t.headerLine)
+		if err != nil {
+			return nil, err
+		}
+		t.profiles = []*building{b}
 	}
 	return t, nil
 }
@@ -141,8 +153,8 @@ func (t *table) classifyHeader(header []string) error {
 	}
 	t.idCol, t.depthCol, t.sigmaCol = kindIndex(byKind, colID), kindIndex(byKind, colDepth), kindIndex(byKind, colSigma)
 	if t.depthCol < 0 {
-		return t.org.errAt(t.headerLine, -1, "", errorf(ErrColumn, "no depth column in the header %q",
-			strings.Join(trimAll(header), " | ")), t.depthHint())
+		return t.org.errAt(t.headerLine, -1, "", errorf(ErrColumn, "no depth column in the header %s",
+			quote(strings.Join(trimAll(header), " | "))), t.depthHint())
 	}
 	return nil
 }
@@ -166,11 +178,11 @@ func trimAll(s []string) []string {
 func (t *table) twoColumns(a, b column, i int) error {
 	if a.kind == colDepth && !strings.EqualFold(a.unit, b.unit) {
 		return t.org.errAt(t.headerLine, i, b.name, errorf(ErrUnit,
-			"depth columns in two units, %q and %q (mixed units)", a.name, b.name),
+			"depth columns in two units, %s and %s (mixed units)", quote(a.name), quote(b.name)),
 			"keep one depth column, in one unit")
 	}
 	return t.org.errAt(t.headerLine, i, b.name, errorf(ErrColumn,
-		"two %s columns, %q and %q", a.kind.describe(), a.name, b.name), "keep one of them")
+		"two %s columns, %s and %s", a.kind.describe(), quote(a.name), quote(b.name)), "keep one of them")
 }
 
 // depthHint suggests a depth header, pointing at a column that looks like
@@ -206,7 +218,7 @@ func (t *table) depthHint() string {
 		}
 		if _, u := splitHeader(c.name); u != "" {
 			if _, err := LengthUnit(u); err == nil {
-				return fmt.Sprintf("rename %q to \"depth_%s\" (the depth column is named depth_<unit> or distance_<unit>)", c.name, u)
+				return fmt.Sprintf("rename %s to %s (the depth column is named depth_<unit> or distance_<unit>)", quote(c.name), quote("depth_"+u))
 			}
 		}
 	}
@@ -225,7 +237,7 @@ func (t *table) applyMeta(m *metaSet, defaultID string) error {
 	}
 	if e, ok := m.get("id"); ok && t.idCol >= 0 {
 		return t.org.errAt(e.line, e.col, "", errorf(ErrMetadata,
-			"metadata id %q in a table with a profile id column %q", e.value, t.cols[t.idCol].name),
+			"metadata id %s in a table with a profile id column %s", quote(e.value), quote(t.cols[t.idCol].name)),
 			"remove the id metadata; the column names the profiles")
 	}
 	if e, ok := m.get("value"); ok {
@@ -234,19 +246,47 @@ func (t *table) applyMeta(m *metaSet, defaultID string) error {
 	return nil
 }
 
-// newBuilding starts a profile from the template.
-func (t *table) newBuilding(id string) *building {
+// newBuilding starts a profile from the template (first seen at line).
+func (t *table) newBuilding(id string, line int) (*building, error) {
+	if err := t.keep(int64(len(id))+t.metaCost, line); err != nil {
+		return nil, err
+	}
 	b := &building{p: t.template, fixed: make([]fixedCell, len(t.cols))}
 	b.p.ID = id
 	if t.template.Meta != nil {
 		b.p.Meta = maps.Clone(t.template.Meta)
 	}
-	return b
+	return b, nil
 }
+
+// keep counts n bytes of text that a profile keeps against the file's
+// budget: each profile carries its metadata into every report, so a long
+// metadata line over many profiles multiplies.
+func (t *table) keep(n int64, line int) error {
+	if t.kept == nil {
+		return nil
+	}
+	if t.kept.used += n; t.kept.used <= t.kept.limit {
+		return nil
+	}
+	return t.org.errAt(line, -1, "", errorf(ErrTooLarge,
+		"the profiles of this file would keep more than %d MiB of text (ids, metadata and text columns, copied into every profile); it was not read",
+		t.kept.limit>>20), "shorten the long metadata or text cells, or split the file")
+}
+
+// textBudget counts bytes against a limit.
+type textBudget struct{ used, limit int64 }
+
+// maxKeptText bounds the text the profiles of one file keep (ids,
+// metadata, text columns): a report repeats it for every profile.
+const maxKeptText = 16 << 20
 
 // add reads one data row (cells may be fewer than the header: missing
 // cells are blank). Blank rows are skipped.
 func (t *table) add(cells []string, line int) error {
+	if err := t.unreadCells(line); err != nil {
+		return err
+	}
 	if blankRow(cells) {
 		return nil
 	}
@@ -292,20 +332,26 @@ func (t *table) checkWidth(cells []string, line int) error {
 			continue
 		}
 		if i >= len(t.cols) {
-			hint := "remove the extra cells or give them a header"
-			if t.sepComma {
-				hint = "a decimal comma splits numbers in a comma-separated file: separate columns with ';' or tab, or write decimals with a point"
-			}
-			return t.org.errAt(line, i, "", errorf(ErrColumn,
-				"the row has %d cells but the header has %d columns", lastNonBlank(cells)+1, len(t.cols)), hint)
+			return t.beyondHeader(line, i, lastNonBlank(cells))
 		}
 		if t.cols[i].kind == colIgnore {
 			return t.org.errAt(line, i, "", errorf(ErrColumn,
-				"cell %q is under a column without a header (column %d)", c, i+1),
+				"cell %s is under a column without a header (column %d)", quote(c), i+1),
 				"give the column a header or remove the cell")
 		}
 	}
 	return nil
+}
+
+// beyondHeader refuses a row with cells from column first to column last
+// (0-based) beyond the header.
+func (t *table) beyondHeader(line, first, last int) error {
+	hint := "remove the extra cells or give them a header"
+	if t.sepComma {
+		hint = "a decimal comma splits numbers in a comma-separated file: separate columns with ';' or tab, or write decimals with a point"
+	}
+	return t.org.errAt(line, first, "", errorf(ErrColumn,
+		"the row has %d cells but the header has %d columns", last+1, len(t.cols)), hint)
 }
 
 func lastNonBlank(cells []string) int {
@@ -358,12 +404,12 @@ func (t *table) valueProblem(cand, open []int, line int) error {
 		return nil
 	case t.valueKey.value != "":
 		return t.org.errAt(t.valueKey.line, t.valueKey.col, "", errorf(ErrMetadata,
-			"the metadata names the value column %q but the header has no such column", t.valueKey.value),
+			"the metadata names the value column %s but the header has no such column", quote(t.valueKey.value)),
 			"correct the value metadata to one of the column headers")
 	case len(cand) > 1:
 		names := make([]string, len(cand))
 		for k, i := range cand {
-			names[k] = fmt.Sprintf("%q", t.cols[i].name)
+			names[k] = quote(t.cols[i].name)
 		}
 		return t.org.errAt(t.headerLine, cand[1], t.cols[cand[1]].name, errorf(ErrColumn,
 			"%s could each be the measured value", strings.Join(names, " and ")),
@@ -384,7 +430,7 @@ func (t *table) checkSigmaUnit() error {
 	s, v := t.cols[t.sigmaCol], t.cols[t.valueCol]
 	if s.unit != "" && (s.valueUnit == "" || v.valueUnit == "" || s.valueUnit != v.valueUnit) {
 		return t.org.errAt(t.headerLine, t.sigmaCol, s.name, errorf(ErrUnit,
-			"sigma unit %q does not match the value column %q", s.unit, v.name),
+			"sigma unit %s does not match the value column %s", quote(s.unit), quote(v.name)),
 			"give sigma in the unit of the value (or name the column just \"sigma\")")
 	}
 	return nil
@@ -403,8 +449,11 @@ func (t *table) profileFor(cells []string, line int) (*building, error) {
 	if k, ok := t.index[id]; ok {
 		return t.profiles[k], nil
 	}
+	b, err := t.newBuilding(id, line)
+	if err != nil {
+		return nil, err
+	}
 	t.index[id] = len(t.profiles)
-	b := t.newBuilding(id)
 	t.profiles = append(t.profiles, b)
 	return b, nil
 }
@@ -414,8 +463,51 @@ func (t *table) number(cells []string, i, line int) (float64, error) {
 	return t.numberAt(cellAt(cells, i), i, line)
 }
 
+// unreadCells refuses, in a worksheet row, a cell under a header that
+// holds a formula without a stored result or an error value: its value
+// cannot be read, and a row of such cells would otherwise pass for blank.
+func (t *table) unreadCells(line int) error {
+	for i, k := range t.kinds {
+		if i >= len(t.cols) || t.cols[i].kind == colIgnore {
+			continue
+		}
+		switch k {
+		case kindFormula:
+			return t.org.errAt(line, i, t.cols[i].name, errorf(ErrNumber,
+				"the cell holds a formula with no stored result, not a value"), formulaHint)
+		case kindErrorValue:
+			return t.org.errAt(line, i, t.cols[i].name, errorf(ErrNumber,
+				"the cell holds the error value %s (a formula that failed)", quote(t.rowText[i])),
+				"correct the formula or type the value")
+		}
+	}
+	return nil
+}
+
+// kindAt is the kind of cell i of the row being added.
+func (t *table) kindAt(i int) cellKind {
+	if i < len(t.kinds) {
+		return t.kinds[i]
+	}
+	return kindText
+}
+
 // numberAt parses s, the cell in column i of row line, as a finite number.
+// A worksheet's stored numbers are read as stored; a logical value is
+// refused (TRUE is not the number 1); text may use a decimal comma.
 func (t *table) numberAt(s string, i, line int) (float64, error) {
+	switch t.kindAt(i) {
+	case kindBool:
+		return 0, t.org.errAt(line, i, t.cols[i].name, errorf(ErrNumber,
+			"the cell holds the logical value %s, not a number", s),
+			"type the measured number: a TRUE/FALSE cell is not read as 1/0")
+	case kindNumber:
+		v, err := parseNumber(s, false)
+		if err != nil {
+			return 0, t.org.errAt(line, i, t.cols[i].name, err, "fix the cell or remove the row")
+		}
+		return v, nil
+	}
 	v, err := parseNumber(s, t.comma)
 	if err != nil {
 		hint := "fix the cell or remove the row"
@@ -426,6 +518,9 @@ func (t *table) numberAt(s string, i, line int) (float64, error) {
 		}
 		return 0, t.org.errAt(line, i, t.cols[i].name, err, hint)
 	}
+	if t.marks != nil {
+		return v, t.marks.note(s, line, i, t.cols[i].name)
+	}
 	return v, nil
 }
 
@@ -435,6 +530,10 @@ func (t *table) addPoint(b *building, cells []string, line int) error {
 	if err != nil {
 		return err
 	}
+	dc := &t.cols[t.depthCol]
+	if err := checkMetres(dc.size.si(d), "depth", clip(cellAt(cells, t.depthCol))+" "+dc.unit); err != nil {
+		return t.org.errAt(line, t.depthCol, dc.name, err, "check the number and the unit in the header")
+	}
 	if d < 0 && !t.cols[t.depthCol].signed {
 		return t.org.errAt(line, t.depthCol, t.cols[t.depthCol].name,
 			errorf(ErrValue, "depth %s is negative", fmtNum(d)),
@@ -443,6 +542,9 @@ func (t *table) addPoint(b *building, cells []string, line int) error {
 	v, err := t.number(cells, t.valueCol, line)
 	if err != nil {
 		return err
+	}
+	if err := checkMeasured(v, "value", clip(cellAt(cells, t.valueCol))); err != nil {
+		return t.org.errAt(line, t.valueCol, t.cols[t.valueCol].name, err, "fix the cell or remove the row")
 	}
 	p := &b.p
 	if t.sigmaCol >= 0 {
@@ -454,6 +556,10 @@ func (t *table) addPoint(b *building, cells []string, line int) error {
 			return t.org.errAt(line, t.sigmaCol, t.cols[t.sigmaCol].name,
 				errorf(ErrValue, "sigma %s is not positive", fmtNum(s)),
 				"sigma is a standard uncertainty and must be > 0; fix the cell or remove the sigma column")
+		}
+		if err := checkSigma(s, clip(cellAt(cells, t.sigmaCol))); err != nil {
+			return t.org.errAt(line, t.sigmaCol, t.cols[t.sigmaCol].name, err,
+				"sigma is the standard uncertainty of one value, in the value's unit; fix the cell")
 		}
 		p.Sigma = append(p.Sigma, s)
 	}
@@ -498,10 +604,13 @@ func (t *table) setFixed(b *building, i int, s string, line int) error {
 			return nil
 		}
 		return t.org.errAt(line, i, c.name, errorf(ErrValue,
-			"profile %q has %s %q here but %q at %s", b.p.ID, c.kind.describe(), s, f.text, t.org.place(f.line, i)),
+			"profile %s has %s %s here but %s at %s", quote(b.p.ID), c.kind.describe(), quote(s), quote(f.text), t.org.place(f.line, i)),
 			fmt.Sprintf("one profile has one %s: correct the cell, or give the other rows their own profile id", c.kind.describe()))
 	}
 	*f = fixedCell{set: true, text: s, v: v, line: line}
+	if err := t.keep(int64(len(c.key)+len(s)), line); err != nil {
+		return err
+	}
 	if b.p.Meta == nil {
 		b.p.Meta = map[string]string{}
 	}
@@ -522,12 +631,28 @@ func (t *table) setFixed(b *building, i int, s string, line int) error {
 func setColumnField(p *Profile, meta Profile, c column, s string, v float64) error {
 	switch c.kind {
 	case colTemp:
-		return setNumber(&p.Temperature, meta.Temperature, c.scale.ToKelvin(v), "temperature", s, false)
+		k := c.scale.ToKelvin(v)
+		if k > maxKelvin {
+			return checkKelvin(k, clip(s))
+		}
+		return setNumber(&p.Temperature, meta.Temperature, k, "temperature", s, false)
 	case colTempSigma:
-		return setNumber(&p.TemperatureSigma, meta.TemperatureSigma, c.scale.DeltaToKelvin(v), "temperature sigma", s, true)
+		k := c.scale.DeltaToKelvin(v)
+		if k > maxKelvin {
+			return errorf(ErrValue, "temperature sigma %s is above %d K", clip(s), maxKelvin)
+		}
+		return setNumber(&p.TemperatureSigma, meta.TemperatureSigma, k, "temperature sigma", s, true)
 	case colTime:
+		if t := c.size.si(v); t > 0 {
+			if err := checkSeconds(t, clip(s)); err != nil {
+				return err
+			}
+		}
 		return setNumber(&p.Time, meta.Time, c.size.si(v), "time", s, false)
 	case colThickness:
+		if err := checkMetres(c.size.si(v), "thickness", clip(s)); err != nil {
+			return err
+		}
 		return setNumber(&p.Thickness, meta.Thickness, c.size.si(v), "thickness", s, false)
 	case colLot:
 		return setText(&p.Lot, meta.Lot, s, "lot")
@@ -544,12 +669,12 @@ func setColumnField(p *Profile, meta Profile, c column, s string, v float64) err
 func setNumber(dst *float64, meta, v float64, what, s string, zeroOK bool) error {
 	if !(v > 0 || (zeroOK && v == 0)) || math.IsInf(v, 0) {
 		if what == "temperature" {
-			return errorf(ErrValue, "temperature %s is %s K, not above absolute zero", s, fmtNum(v))
+			return errorf(ErrValue, "temperature %s is %s K, not above absolute zero", clip(s), fmtNum(v))
 		}
-		return errorf(ErrValue, "%s %s is not positive", what, s)
+		return errorf(ErrValue, "%s %s is not positive", what, clip(s))
 	}
 	if meta != 0 && math.Abs(v-meta) > 1e-9*math.Abs(meta) {
-		return errorf(ErrMetadata, "%s %s disagrees with the file's metadata (%s in SI)", what, s, fmtNum(meta))
+		return errorf(ErrMetadata, "%s %s disagrees with the file's metadata (%s in SI)", what, clip(s), fmtNum(meta))
 	}
 	*dst = v
 	return nil
@@ -557,7 +682,7 @@ func setNumber(dst *float64, meta, v float64, what, s string, zeroOK bool) error
 
 func setText(dst *string, meta, s, what string) error {
 	if meta != "" && meta != s {
-		return errorf(ErrMetadata, "%s %q disagrees with the file's metadata %q", what, s, meta)
+		return errorf(ErrMetadata, "%s %s disagrees with the file's metadata %s", what, quote(s), quote(meta))
 	}
 	*dst = s
 	return nil
@@ -572,6 +697,11 @@ func (t *table) finish() ([]Profile, error) {
 		}
 		return nil, t.org.errAt(t.headerLine, -1, "", errorf(ErrNoData,
 			"the %s has a header but no data rows", what), "add data rows below the header, or leave the "+what+" out")
+	}
+	if t.marks != nil {
+		if err := t.marks.finish(); err != nil {
+			return nil, err
+		}
 	}
 	v := t.cols[t.valueCol]
 	out := make([]Profile, 0, len(t.profiles))

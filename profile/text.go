@@ -24,9 +24,11 @@ type textReader struct {
 	headerLine int
 	sep        rune
 	comma      bool // decimal comma accepted (separator ';' or tab)
-	cr         *csv.Reader
-	lim        *lineLimiter
-	offset     int // lines before the header line
+	// marks watches decimal marks when a decimal comma is accepted (nil otherwise).
+	marks  *decimalMarks
+	cr     *csv.Reader
+	lim    *lineLimiter
+	offset int // lines before the header line
 }
 
 // openText reads r up to and including the header row. Accepted: UTF-8
@@ -47,6 +49,9 @@ func openText(r io.Reader, name string) (*textReader, error) {
 	}
 	t.sep = sniffSeparator(header)
 	t.comma = t.sep != ','
+	if t.comma {
+		t.marks = &decimalMarks{org: org}
+	}
 	t.offset = t.headerLine - 1
 	cr := csv.NewReader(io.MultiReader(strings.NewReader(header), in))
 	cr.Comma, cr.Comment, cr.FieldsPerRecord, cr.ReuseRecord = t.sep, '#', -1, true
@@ -59,7 +64,7 @@ func openText(r io.Reader, name string) (*textReader, error) {
 	t.header = append([]string(nil), rec...)
 	if len(t.header) < 2 {
 		return nil, org.errAt(t.headerLine, -1, "", errorf(ErrColumn,
-			"the header %q has only one column", strings.TrimSpace(latin1(header))),
+			"the header %s has only one column", quote(strings.TrimSpace(latin1(header)))),
 			"separate the columns with ',', ';' or tab; a title line above the header must start with '#'")
 	}
 	return t, nil
@@ -301,7 +306,8 @@ func readTable(r io.Reader, name, defaultID string) ([]Profile, error) {
 		return nil, err
 	}
 	t, err := newTable(tr.header, tableOptions{org: tr.org, meta: &tr.meta, headerLine: tr.headerLine,
-		defaultID: defaultID, comma: tr.comma, sepComma: tr.sep == ','})
+		defaultID: defaultID, comma: tr.comma, sepComma: tr.sep == ',', marks: tr.marks,
+		kept: &textBudget{limit: maxKeptText}})
 	if err != nil {
 		return nil, err
 	}
@@ -318,4 +324,21 @@ func readTable(r io.Reader, name, defaultID string) ([]Profile, error) {
 		}
 	}
 	return t.finish()
+}
+
+// noteMark passes a number read in column col of line to the decimal-mark
+// watch (when a decimal comma is accepted).
+func (t *textReader) noteMark(s string, line, col int, column string) error {
+	if t.marks == nil {
+		return nil
+	}
+	return t.marks.note(s, line, col, column)
+}
+
+// finishMarks refuses an ambiguous number left undecided at the end.
+func (t *textReader) finishMarks() error {
+	if t.marks == nil {
+		return nil
+	}
+	return t.marks.finish()
 }

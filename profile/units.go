@@ -18,6 +18,88 @@ const (
 	kelvinAt0C    = 273.15
 )
 
+// Bounds of the quantities the readers accept (common practice, no
+// source). They are generous by orders of magnitude and exist to catch a
+// wrong unit or a pasted overflow such as 1e308 at the line that holds it,
+// before the number reaches a fit whose arithmetic would overflow.
+const (
+	// maxKelvin bounds hold temperatures and their uncertainty: no solid
+	// material survives 6000 K.
+	maxKelvin = 6000
+	// maxSeconds and minSeconds bound hold times: about 317 years, and a
+	// nanosecond (pulsed-laser treatments are the shortest).
+	maxSeconds = 1e10
+	minSeconds = 1e-9
+	// maxMetres bounds depths, positions and thicknesses: no diffusion
+	// profile is a metre deep.
+	maxMetres = 1
+	// maxMeasured bounds measured values, sigma and calibration values in
+	// the file's own unit (one part per billion of a whole is 1e9).
+	maxMeasured = 1e12
+	// minSigma is the smallest standard uncertainty read, in the value's
+	// unit; below it the weights 1/σ² would dwarf everything else.
+	minSigma = 1e-12
+	// minDiffusivity and maxDiffusivity bound a tabulated D(C): solids
+	// diffuse at 1e-30 m²/s and more, gases at about 1e-5 m²/s.
+	minDiffusivity = 1e-40
+	maxDiffusivity = 1e-2
+)
+
+// checkKelvin refuses a temperature k (kelvin) at or below absolute zero
+// or above maxKelvin; s is the temperature as written.
+func checkKelvin(k float64, s string) error {
+	switch {
+	case !(k > 0):
+		return errorf(ErrValue, "temperature %s is %s K, not above absolute zero", s, fmtNum(k))
+	case k > maxKelvin:
+		return errorf(ErrValue, "temperature %s is above %d K (no solid survives that)", s, maxKelvin)
+	}
+	return nil
+}
+
+// checkSeconds refuses a time t (seconds) outside [minSeconds, maxSeconds];
+// s is the time as written.
+func checkSeconds(t float64, s string) error {
+	switch {
+	case !(t > 0):
+		return errorf(ErrValue, "time %s is not positive", s)
+	case t > maxSeconds:
+		return errorf(ErrValue, "time %s is longer than 1e10 s (317 years)", s)
+	case t < minSeconds:
+		return errorf(ErrValue, "time %s is shorter than 1 ns", s)
+	}
+	return nil
+}
+
+// checkMetres refuses a length m (metres) beyond maxMetres; s is the
+// length as written.
+func checkMetres(m float64, what, s string) error {
+	if math.Abs(m) > maxMetres || math.IsNaN(m) {
+		return errorf(ErrValue, "%s %s is beyond 1 m (no diffusion profile is that deep)", what, s)
+	}
+	return nil
+}
+
+// checkSigma refuses a standard uncertainty outside [minSigma, maxMeasured].
+func checkSigma(v float64, s string) error {
+	switch {
+	case v > maxMeasured:
+		return errorf(ErrValue, "sigma %s is beyond 1e12, too large to be an uncertainty in any unit", s)
+	case v < minSigma:
+		return errorf(ErrValue, "sigma %s is below 1e-12: a weight 1/σ² that large would swamp every other point", s)
+	}
+	return nil
+}
+
+// checkMeasured refuses a measured number beyond ±maxMeasured; what names
+// it and s is the number as written.
+func checkMeasured(v float64, what, s string) error {
+	if math.Abs(v) > maxMeasured || math.IsNaN(v) {
+		return errorf(ErrValue, "%s %s is beyond ±1e12, too large to be a measurement in any unit", what, s)
+	}
+	return nil
+}
+
 // linear is a unit that is a fixed multiple of the SI unit. For decimal
 // submultiples the value is divided by an exact power of ten (50 µm gives
 // exactly the double nearest 5e-5 m); other units are multiplied.
@@ -179,11 +261,12 @@ func unknownUnit(what, u, valid string) error {
 	if strings.TrimSpace(u) == "" {
 		return errorf(ErrUnit, "no %s unit given (use %s)", what, valid)
 	}
-	return errorf(ErrUnit, "unknown %s unit %q (use %s)", what, u, valid)
+	return errorf(ErrUnit, "unknown %s unit %s (use %s)", what, quote(u), valid)
 }
 
 // ParseTemperature reads a temperature with its unit, "925 C", "925°C",
-// "1198 K", "1700 F", and returns kelvin. The result must be above 0 K.
+// "1198 K", "1700 F", and returns kelvin. The result must be above 0 K
+// and at most 6000 K.
 func ParseTemperature(s string) (float64, error) {
 	v, u, err := splitQuantity(s, "temperature", "925 C or 1198 K")
 	if err != nil {
@@ -194,15 +277,15 @@ func ParseTemperature(s string) (float64, error) {
 		return 0, err
 	}
 	k := sc.ToKelvin(v)
-	if !(k > 0) || math.IsInf(k, 0) {
-		return 0, errorf(ErrValue, "temperature %q is %s K, not above absolute zero", s, fmtNum(k))
+	if err := checkKelvin(k, quote(s)); err != nil {
+		return 0, err
 	}
 	return k, nil
 }
 
 // ParseTemperatureDelta reads a temperature difference with its unit, such
 // as the uncertainty "3 K", "3 C" or "5 F", and returns kelvin (1 °F = 5/9 K).
-// The difference must not be negative.
+// The difference must not be negative nor above 6000 K.
 func ParseTemperatureDelta(s string) (float64, error) {
 	v, u, err := splitQuantity(s, "temperature difference", "3 K or 3 C")
 	if err != nil {
@@ -213,14 +296,18 @@ func ParseTemperatureDelta(s string) (float64, error) {
 		return 0, err
 	}
 	if v < 0 {
-		return 0, errorf(ErrValue, "temperature difference %q is negative", s)
+		return 0, errorf(ErrValue, "temperature difference %s is negative", quote(s))
 	}
-	return sc.DeltaToKelvin(v), nil
+	d := sc.DeltaToKelvin(v)
+	if d > maxKelvin {
+		return 0, errorf(ErrValue, "temperature difference %s is above %d K", quote(s), maxKelvin)
+	}
+	return d, nil
 }
 
 // ParseDuration reads a time with its unit, "4 h", "90 min", "3600 s",
 // "1.5 d", "2 hr", or a sum of such terms ("4 h 30 min"), and returns
-// seconds. The result must be positive.
+// seconds. The result must lie between 1 ns and 1e10 s (317 years).
 func ParseDuration(s string) (float64, error) {
 	total, rest := 0.0, s
 	for {
@@ -233,21 +320,22 @@ func ParseDuration(s string) (float64, error) {
 			return 0, err
 		}
 		if v < 0 {
-			return 0, errorf(ErrValue, "time %q is negative", s)
+			return 0, errorf(ErrValue, "time %s is negative", quote(s))
 		}
 		total += f.si(v)
 		if rest = tail; strings.TrimSpace(rest) == "" {
 			break
 		}
 	}
-	if !(total > 0) || math.IsInf(total, 0) {
-		return 0, errorf(ErrValue, "time %q is not positive", s)
+	if err := checkSeconds(total, quote(s)); err != nil {
+		return 0, err
 	}
 	return total, nil
 }
 
 // ParseLength reads a length with its unit, "12 mm", "0.5 in", "20 mil",
-// "800 µm", "0.0012 m", and returns metres. Negative lengths are refused.
+// "800 µm", "0.0012 m", and returns metres. Negative lengths and lengths
+// beyond 1 m are refused.
 func ParseLength(s string) (float64, error) {
 	v, u, err := splitQuantity(s, "length", "12 mm or 0.5 in")
 	if err != nil {
@@ -258,11 +346,11 @@ func ParseLength(s string) (float64, error) {
 		return 0, err
 	}
 	if v < 0 {
-		return 0, errorf(ErrValue, "length %q is negative", s)
+		return 0, errorf(ErrValue, "length %s is negative", quote(s))
 	}
 	m := f.si(v)
-	if math.IsInf(m, 0) {
-		return 0, errorf(ErrValue, "length %q is too large", s)
+	if err := checkMetres(m, "length", quote(s)); err != nil {
+		return 0, err
 	}
 	return m, nil
 }
@@ -272,7 +360,7 @@ func ParseLength(s string) (float64, error) {
 func splitQuantity(s, what, example string) (float64, string, error) {
 	v, u, tail, err := nextQuantity(s, what, example)
 	if err == nil && strings.TrimSpace(tail) != "" {
-		err = errorf(ErrUnit, "unknown %s unit %q", what, strings.TrimSpace(u+" "+tail))
+		err = errorf(ErrUnit, "unknown %s unit %s", what, quote(strings.TrimSpace(u+" "+tail)))
 	}
 	return v, u, err
 }
@@ -286,12 +374,12 @@ func nextQuantity(s, what, example string) (v float64, unit, tail string, err er
 		if s == "" {
 			return 0, "", "", errorf(ErrNumber, "no %s given (write e.g. %s)", what, example)
 		}
-		return 0, "", "", errorf(ErrNumber, "%q does not start with a number (write e.g. %s)", s, example)
+		return 0, "", "", errorf(ErrNumber, "%s does not start with a number (write e.g. %s)", quote(s), example)
 	}
 	num := s[:n]
 	if ambiguousComma(num) {
-		return 0, "", "", errorf(ErrNumber, "%q is ambiguous: decimal comma or thousands separator? (write %s or %s)",
-			num, strings.ReplaceAll(num, ",", "."), strings.ReplaceAll(num, ",", ""))
+		return 0, "", "", errorf(ErrNumber, "%s is ambiguous: decimal comma or thousands separator? (write %s or %s)",
+			quote(num), clip(strings.ReplaceAll(num, ",", ".")), clip(strings.ReplaceAll(num, ",", "")))
 	}
 	if v, err = parseNumber(num, true); err != nil {
 		return 0, "", "", err
@@ -300,7 +388,7 @@ func nextQuantity(s, what, example string) (v float64, unit, tail string, err er
 	m := unitPrefix(rest)
 	unit, tail = strings.TrimSpace(rest[:m]), rest[m:]
 	if unit == "" {
-		return 0, "", "", errorf(ErrUnit, "no unit in %q (write e.g. %s)", s, example)
+		return 0, "", "", errorf(ErrUnit, "no unit in %s (write e.g. %s)", quote(s), example)
 	}
 	return v, unit, tail, nil
 }
@@ -389,11 +477,11 @@ func parseNumber(s string, comma bool) (float64, error) {
 		return 0, errorf(ErrNumber, "the cell is blank")
 	}
 	if !plainDecimal(t) {
-		return 0, errorf(ErrNumber, "%q is not a number", s)
+		return 0, errorf(ErrNumber, "%s is not a number", quote(s))
 	}
 	v, err := strconv.ParseFloat(t, 64)
 	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
-		return 0, errorf(ErrNumber, "%q is not a finite number", s)
+		return 0, errorf(ErrNumber, "%s is not a finite number", quote(s))
 	}
 	return v, nil
 }

@@ -213,3 +213,69 @@ func TestScaleRoundTrip(t *testing.T) {
 		t.Errorf("212 °F = %g K", k)
 	}
 }
+
+// TestPhysicalBounds: numbers beyond the bounds of the package (common
+// practice, no source) are refused where they are read, with the bound
+// in the message; the edges themselves are accepted.
+func TestPhysicalBounds(t *testing.T) {
+	for _, tc := range []struct {
+		f    func(string) (float64, error)
+		in   string
+		frag string
+	}{
+		{ParseTemperature, "1e308 C", "above 6000 K"},
+		{ParseTemperature, "6001 K", "above 6000 K"},
+		{ParseTemperatureDelta, "1e308 K", "above 6000 K"},
+		{ParseDuration, "1e308 s", "longer than 1e10 s"},
+		{ParseDuration, "1e308 h", "longer than 1e10 s"},
+		{ParseDuration, "1e-12 s", "shorter than 1 ns"},
+		{ParseLength, "1e308 mm", "beyond 1 m"},
+		{ParseLength, "1001 mm", "beyond 1 m"},
+	} {
+		if _, err := tc.f(tc.in); !errors.Is(err, ErrValue) || !strings.Contains(err.Error(), tc.frag) {
+			t.Errorf("%q: %v; want %q", tc.in, err, tc.frag)
+		}
+	}
+	for _, tc := range []struct {
+		f  func(string) (float64, error)
+		in string
+	}{{ParseTemperature, "6000 K"}, {ParseDuration, "1e10 s"}, {ParseDuration, "1e-9 s"},
+		{ParseLength, "1000 mm"}, {ParseTemperatureDelta, "6000 K"}} {
+		if _, err := tc.f(tc.in); err != nil {
+			t.Errorf("%q refused: %v", tc.in, err)
+		}
+	}
+	for _, tc := range []struct{ csv, frag string }{
+		{"depth_mm,C_wt%\n0.1,0.8\n0.2,1e308\n", "value 1e308 is beyond ±1e12"},
+		{"depth_mm,C_wt%\n0.1,0.8\n0.2,-2e12\n", "value -2e12 is beyond ±1e12"},
+		{"depth_mm,C_wt%\n0.1,0.8\n1e308,0.5\n", "depth 1e308 mm is beyond 1 m"},
+		{"depth_um,C_wt%,sigma\n1,0.8,0.1\n2,0.5,1e-200\n", "sigma 1e-200 is below 1e-12"},
+		{"depth_um,C_wt%,sigma\n1,0.8,0.1\n2,0.5,1e13\n", "sigma 1e13 is beyond 1e12"},
+		{"profile,temperature_C,depth_mm,C_wt%\nA,925,0.1,0.8\nB,1e308,0.1,0.8\n", "temperature 1e308 is above 6000 K"},
+		{"profile,time_h,depth_mm,C_wt%\nA,4,0.1,0.8\nB,1e308,0.1,0.8\n", "time 1e308 is longer than 1e10 s"},
+		{"profile,thickness_mm,depth_mm,C_wt%\nA,4,0.1,0.8\nB,1e308,0.1,0.8\n", "thickness 1e308 is beyond 1 m"},
+		{"profile,temperature_sigma_K,depth_mm,C_wt%\nA,4,0.1,0.8\nB,1e308,0.1,0.8\n", "temperature sigma 1e308 is above 6000 K"},
+	} {
+		_, err := ReadCSV(strings.NewReader(tc.csv), "b.csv")
+		var e *Error
+		if !errors.As(err, &e) || !errors.Is(err, ErrValue) || e.Line != 3 || !strings.Contains(err.Error(), tc.frag) {
+			t.Errorf("%q: %v; want line 3 and %q", tc.csv, err, tc.frag)
+		}
+	}
+	if _, err := ReadHistoryCSV(strings.NewReader("time_h,temperature_C\n0,20\n1e308,925\n"), "h.csv"); err == nil ||
+		!strings.Contains(err.Error(), "h.csv:3:") || !strings.Contains(err.Error(), "longer than") {
+		t.Errorf("history time 1e308: %v", err)
+	}
+	if _, err := ReadHistoryCSV(strings.NewReader("time_h,temperature_C\n0,20\n1,1e308\n"), "h.csv"); err == nil ||
+		!strings.Contains(err.Error(), "h.csv:3:") || !strings.Contains(err.Error(), "above 6000 K") {
+		t.Errorf("history temperature 1e308: %v", err)
+	}
+	if _, err := ReadCalibrationCSV(strings.NewReader("HV0.5,C_wt%\n200,0.15\n1e308,0.35\n"), "c.csv"); err == nil ||
+		!strings.Contains(err.Error(), "c.csv:3:") || !strings.Contains(err.Error(), "beyond ±1e12") {
+		t.Errorf("calibration 1e308: %v", err)
+	}
+	if _, _, err := ReadDiffusivityTableCSV(strings.NewReader("C_wt%,D_m2/s\n0.1,1e-11\n0.2,1e308\n"), "d.csv"); err == nil ||
+		!strings.Contains(err.Error(), "d.csv:3:") || !strings.Contains(err.Error(), "outside") {
+		t.Errorf("D table 1e308: %v", err)
+	}
+}

@@ -29,7 +29,7 @@ func (p *Profile) Validate() error {
 // fail builds an *Error about p, at point i when i ≥ 0.
 func (p *Profile) fail(i int, err error, hint string) *Error {
 	file, sheet := splitSource(p.Source)
-	e := &Error{File: file, Sheet: sheet, Err: fmt.Errorf("profile %q: %w", p.ID, err), Hint: hint}
+	e := &Error{File: file, Sheet: sheet, Err: fmt.Errorf("profile %s: %w", quote(p.ID), err), Hint: hint}
 	if i >= 0 && i < len(p.Line) {
 		e.Line = p.Line[i]
 	}
