@@ -1,16 +1,18 @@
 package arrhenius
 
 import (
-	"encoding/json"
 	"fmt"
 	"math"
 	"math/rand/v2"
 	"sort"
 	"strings"
 
-	"github.com/fickfit/fickfit/fit"
-	"github.com/fickfit/fickfit/profile"
 	"gonum.org/v1/gonum/stat/distuv"
+
+	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/jsonx"
+	"github.com/fickfit/fickfit/internal/stats"
+	"github.com/fickfit/fickfit/profile"
 )
 
 // Observation is what a part's fitted profile says about its exposure:
@@ -148,7 +150,7 @@ func (q Quantity) MarshalJSON() ([]byte, error) {
 		ci := q.CI
 		o.CI, o.Method = &ci, q.Method
 	}
-	return json.Marshal(o)
+	return jsonx.Marshal(o)
 }
 
 // MonteCarlo summarises a Monte Carlo interval.
@@ -165,7 +167,7 @@ type MonteCarlo struct {
 
 // MarshalJSON writes non-finite numbers (an open end) as null.
 func (m MonteCarlo) MarshalJSON() ([]byte, error) {
-	return json.Marshal(struct {
+	return jsonx.Marshal(struct {
 		Draws       int          `json:"draws"`
 		Seed        uint64       `json:"seed"`
 		Median      *float64     `json:"median"`
@@ -247,7 +249,7 @@ func (s Solution) MarshalJSON() ([]byte, error) {
 	if o.Warnings == nil {
 		o.Warnings = []fit.Warning{}
 	}
-	return json.Marshal(o)
+	return jsonx.Marshal(o)
 }
 
 // fieller returns Fieller's confidence set for the ratio θ = μN/μD of two
@@ -500,27 +502,8 @@ func monteCarlo(obs Observation, cal Calibration, opt SolveOptions, T, sT float6
 	}
 	sort.Float64s(out)
 	a := (1 - opt.Level) / 2
-	return &MonteCarlo{Draws: opt.Draws, Seed: opt.Seed, Median: percentile(out, 0.5),
-		CI: fit.Interval{Lo: percentile(out, a), Hi: percentile(out, 1-a)}, NonPhysical: float64(bad) / float64(len(out))}
-}
-
-// percentile returns the p-quantile of sorted values by linear
-// interpolation between order statistics (Hyndman & Fan, Am. Stat. 50
-// (1996) 361, definition 7; from memory). +Inf values give +Inf (open).
-func percentile(s []float64, p float64) float64 {
-	h := p * float64(len(s)-1)
-	i := int(math.Floor(h))
-	if i >= len(s)-1 {
-		return s[len(s)-1]
-	}
-	lo, hi := s[i], s[i+1]
-	if math.IsInf(hi, 1) {
-		if h == float64(i) {
-			return lo
-		}
-		return math.Inf(1)
-	}
-	return lo + (h-float64(i))*(hi-lo)
+	return &MonteCarlo{Draws: opt.Draws, Seed: opt.Seed, Median: stats.Quantile(out, 0.5),
+		CI: fit.Interval{Lo: stats.Quantile(out, a), Hi: stats.Quantile(out, 1-a)}, NonPhysical: float64(bad) / float64(len(out))}
 }
 
 // SolveHistoryLevel back-calculates the level of a logged heat treatment
@@ -563,7 +546,7 @@ func SolveHistoryLevel(obs Observation, cal Calibration, h *profile.History, mod
 		return e.lnI - kappa, e.xEff
 	}
 	solve := func(lnD0, q, kappa float64) (float64, bool) {
-		return rootIncreasing(func(c float64) float64 { f, _ := F(lnD0, q, kappa, c); return f }, c0, cLo, cHi)
+		return stats.RootIncreasing(func(c float64) float64 { f, _ := F(lnD0, q, kappa, c); return f }, c0, cLo, cHi)
 	}
 	c, ok := solve(cal.LnD0, cal.Q, obs.LnDt)
 	if !ok {
@@ -589,10 +572,10 @@ func SolveHistoryLevel(obs Observation, cal Calibration, h *profile.History, mod
 			}
 		}
 		ci := fit.Interval{Lo: nan, Hi: nan}
-		if lo, ok := rootIncreasing(g(+1), c, cLo, c); ok {
+		if lo, ok := stats.RootIncreasing(g(+1), c, cLo, c); ok {
 			ci.Lo = lo
 		}
-		if hi, ok := rootIncreasing(g(-1), c, c, cHi); ok {
+		if hi, ok := stats.RootIncreasing(g(-1), c, c, cHi); ok {
 			ci.Hi = hi
 		} else {
 			ci.Hi = math.Inf(1)
@@ -618,78 +601,6 @@ func SolveHistoryLevel(obs Observation, cal Calibration, h *profile.History, mod
 	}
 	s.rangeWarnings(s.Temperature.Value)
 	return s, nil
-}
-
-// rootIncreasing finds c in [lo, hi] with f(c) = 0 for f increasing in c,
-// searching outward from c0 and then by the Illinois variant of regula
-// falsi (Dowell & Jarratt, BIT 11 (1971) 168; from memory). ok is false
-// when f does not change sign inside [lo, hi].
-func rootIncreasing(f func(float64) float64, c0, lo, hi float64) (float64, bool) {
-	if !(lo < hi) {
-		return nan, false
-	}
-	c0 = math.Min(math.Max(c0, lo), hi)
-	f0 := f(c0)
-	if f0 == 0 {
-		return c0, true
-	}
-	// Bracket: move towards the root in growing steps.
-	a, fa := c0, f0
-	step := math.Max((hi-lo)*1e-3, 1e-9*math.Abs(c0))
-	var b, fb float64
-	found := false
-	for it := 0; it < 200; it++ {
-		if f0 > 0 {
-			b = math.Max(a-step, lo)
-		} else {
-			b = math.Min(a+step, hi)
-		}
-		fb = f(b)
-		if math.IsNaN(fb) {
-			return nan, false
-		}
-		if (fb > 0) != (f0 > 0) || fb == 0 {
-			found = true
-			break
-		}
-		if b == lo || b == hi {
-			return nan, false
-		}
-		a, fa = b, fb
-		step *= 2
-	}
-	if !found {
-		return nan, false
-	}
-	if fb == 0 {
-		return b, true
-	}
-	// Illinois iteration on [a, b] with fa, fb of opposite signs.
-	side := 0
-	for it := 0; it < 200; it++ {
-		c := (a*fb - b*fa) / (fb - fa)
-		if !(c > math.Min(a, b) && c < math.Max(a, b)) {
-			c = (a + b) / 2
-		}
-		fc := f(c)
-		if fc == 0 || math.Abs(b-a) <= 1e-13*math.Max(1, math.Abs(c)) {
-			return c, true
-		}
-		if (fc > 0) == (fb > 0) {
-			b, fb = c, fc
-			if side == -1 {
-				fa /= 2
-			}
-			side = -1
-		} else {
-			a, fa = c, fc
-			if side == 1 {
-				fb /= 2
-			}
-			side = 1
-		}
-	}
-	return (a + b) / 2, true
 }
 
 func repeat(s string, n int) []string {

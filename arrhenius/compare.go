@@ -1,15 +1,16 @@
 package arrhenius
 
 import (
-	"encoding/json"
 	"fmt"
 	"math"
 	"strconv"
 	"strings"
 
-	"github.com/fickfit/fickfit/fit"
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat/distuv"
+
+	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/jsonx"
 )
 
 // CompareOptions control a lot comparison. The zero value groups by lot,
@@ -427,7 +428,7 @@ func (c Comparison) MarshalJSON() ([]byte, error) {
 	if out.Warnings == nil {
 		out.Warnings = []fit.Warning{}
 	}
-	return json.Marshal(out)
+	return jsonx.Marshal(out)
 }
 
 // oneDecimal writes v with at most one decimal ("925", "924.1").

@@ -12,6 +12,7 @@ import (
 	"strings"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/jsonx"
 )
 
 // The JSON written by `fickfit arrhenius --format json` (DESIGN §5):
@@ -87,19 +88,9 @@ type lineJSON struct {
 	Warnings      []fit.Warning `json:"warnings"`
 }
 
-func num(v float64) *float64 {
-	if !finite(v) {
-		return nil
-	}
-	return &v
-}
+func num(v float64) *float64 { return jsonx.Num(v) }
 
-func val(p *float64) float64 {
-	if p == nil {
-		return nan
-	}
-	return *p
-}
+func val(p *float64) float64 { return jsonx.Val(p) }
 
 // MarshalJSON writes the line in the shape documented above.
 func (l Line) MarshalJSON() ([]byte, error) {
@@ -121,12 +112,8 @@ func (l Line) MarshalJSON() ([]byte, error) {
 		j.Warnings = []fit.Warning{}
 	}
 	for i, p := range l.Points {
-		ci := p.CI
+		ci := p.Interval(l.Level)
 		se := math.Sqrt(p.VarLnD)
-		if ci.Lo == 0 && ci.Hi == 0 {
-			h := quantile(l.Level, 0) * se
-			ci = fit.Interval{Lo: math.Exp(p.LnD - h), Hi: math.Exp(p.LnD + h)}
-		}
 		j.Points[i] = pointJSON{ID: p.ID, Source: p.Source, Lot: p.Lot, T: p.T, SigmaT: p.SigmaT,
 			D: math.Exp(p.LnD), CI: ci, StdErrLn: num(se), DLine: math.Exp(p.Fitted),
 			Residual: p.Residual, Weight: num(p.Weight)}
@@ -136,7 +123,7 @@ func (l Line) MarshalJSON() ([]byte, error) {
 			ShareTemperature: b.ShareTemperature, ShareProfiles: b.ShareProfiles,
 			Iterations: b.Iterations, Converged: b.Converged}
 	}
-	return json.Marshal(j)
+	return jsonx.Marshal(j)
 }
 
 // UnmarshalJSON reads a line written by MarshalJSON. The points keep what
@@ -180,13 +167,13 @@ type Report struct {
 // {"by":…,"groups":[…]}.
 func (r Report) MarshalJSON() ([]byte, error) {
 	if r.By == "" && len(r.Lines) == 1 {
-		return json.Marshal(r.Lines[0])
+		return jsonx.Marshal(r.Lines[0])
 	}
 	lines := r.Lines
 	if lines == nil {
 		lines = []Line{}
 	}
-	return json.Marshal(struct {
+	return jsonx.Marshal(struct {
 		By     string `json:"by,omitempty"`
 		Groups []Line `json:"groups"`
 	}{r.By, lines})

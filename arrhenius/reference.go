@@ -1,10 +1,11 @@
 package arrhenius
 
 import (
-	"encoding/json"
 	"math"
 	"sort"
 	"strings"
+
+	"github.com/fickfit/fickfit/internal/jsonx"
 )
 
 // Reference is one published pair (D0, Q) for a diffusing species in a
@@ -165,5 +166,5 @@ func (r Reference) MarshalJSON() ([]byte, error) {
 	for _, c := range r.Checks {
 		out.Checks = append(out.Checks, check{c.T, c.D, c.Source})
 	}
-	return json.Marshal(out)
+	return jsonx.Marshal(out)
 }

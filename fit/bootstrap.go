@@ -9,6 +9,8 @@ import (
 	"sync"
 
 	"gonum.org/v1/gonum/stat/distuv"
+
+	"github.com/fickfit/fickfit/internal/stats"
 )
 
 // bootstrapIntervals replaces the intervals of the free parameters by
@@ -148,7 +150,7 @@ func (r *Result) bootstrapIntervals(o Options) error {
 		if jack != nil {
 			lo, hi = bcaLevels(col, r.pint[j], jackColumn(jack, a), alpha)
 		}
-		ql, qh := quantileSorted(col, lo), quantileSorted(col, hi)
+		ql, qh := stats.Quantile(col, lo), stats.Quantile(col, hi)
 		if params[j].Log {
 			ql, qh = math.Exp(ql), math.Exp(qh)
 		}
@@ -239,21 +241,4 @@ func bcaLevels(sorted []float64, est float64, jack []float64, alpha float64) (lo
 		return distuv.UnitNormal.CDF(z0 + (z0+z)/(1-acc*(z0+z)))
 	}
 	return adj(alpha / 2), adj(1 - alpha/2)
-}
-
-// quantileSorted is the type-7 sample quantile (linear interpolation) of
-// sorted data (Hyndman & Fan, Am. Stat. 50, 361–365, 1996).
-func quantileSorted(s []float64, p float64) float64 {
-	if len(s) == 0 {
-		return math.NaN()
-	}
-	h := p * float64(len(s)-1)
-	i := int(math.Floor(h))
-	if i < 0 {
-		return s[0]
-	}
-	if i >= len(s)-1 {
-		return s[len(s)-1]
-	}
-	return s[i] + (h-float64(i))*(s[i+1]-s[i])
 }

@@ -4,6 +4,8 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+
+	"github.com/fickfit/fickfit/internal/jsonx"
 )
 
 // Interval is a confidence interval. An open end is NaN (or ±Inf) and is
@@ -15,7 +17,7 @@ func (iv Interval) Open() bool { return !finite(iv.Lo) || !finite(iv.Hi) }
 
 // MarshalJSON writes [lo, hi] with null for an open end.
 func (iv Interval) MarshalJSON() ([]byte, error) {
-	return json.Marshal([2]*float64{num(iv.Lo), num(iv.Hi)})
+	return jsonx.Marshal([2]*float64{num(iv.Lo), num(iv.Hi)})
 }
 
 // UnmarshalJSON reads [lo, hi] with null for an open end.
@@ -68,7 +70,7 @@ type Stats struct {
 
 // MarshalJSON writes non-finite numbers as null.
 func (s Stats) MarshalJSON() ([]byte, error) {
-	return json.Marshal(struct {
+	return jsonx.Marshal(struct {
 		N          int      `json:"n"`
 		DOF        int      `json:"dof"`
 		RSS        *float64 `json:"rss"`
@@ -194,19 +196,9 @@ func (r *Result) Warn(code, format string, args ...any) {
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
-func num(v float64) *float64 {
-	if !finite(v) {
-		return nil
-	}
-	return &v
-}
+func num(v float64) *float64 { return jsonx.Num(v) }
 
-func val(p *float64) float64 {
-	if p == nil {
-		return math.NaN()
-	}
-	return *p
-}
+func val(p *float64) float64 { return jsonx.Val(p) }
 
 func sprintf(format string, args ...any) string {
 	if len(args) == 0 {

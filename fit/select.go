@@ -1,7 +1,6 @@
 package fit
 
 import (
-	"encoding/json"
 	"fmt"
 	"math"
 	"sort"
@@ -9,6 +8,7 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"github.com/fickfit/fickfit/internal/jsonx"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -32,7 +32,7 @@ type Candidate struct {
 
 // MarshalJSON writes non-finite numbers as null.
 func (c Candidate) MarshalJSON() ([]byte, error) {
-	return json.Marshal(struct {
+	return jsonx.Marshal(struct {
 		Model     string   `json:"model"`
 		Fitted    bool     `json:"fitted"`
 		K         int      `json:"k"`
@@ -58,7 +58,7 @@ type NestedTest struct {
 
 // MarshalJSON writes non-finite numbers as null.
 func (t NestedTest) MarshalJSON() ([]byte, error) {
-	return json.Marshal(struct {
+	return jsonx.Marshal(struct {
 		Reduced string   `json:"reduced"`
 		Full    string   `json:"full"`
 		F       *float64 `json:"F"`

@@ -4,9 +4,10 @@ import (
 	"fmt"
 	"math"
 	"sort"
-	"sync"
 
 	"gonum.org/v1/gonum/stat/distuv"
+
+	"github.com/fickfit/fickfit/internal/stats"
 )
 
 // finish fills statistics, covariance, intervals, residuals and warnings
@@ -75,9 +76,9 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	}
 
 	// Known σ: the normal quantile; σ estimated from the residuals: Student t.
-	tq := tQuantile(dof, level)
+	tq := stats.T(level, dof)
 	if r.Covariance == "absolute" {
-		tq = distuv.UnitNormal.Quantile(0.5 + level/2)
+		tq = stats.Z(level)
 	}
 	r.Params = make([]Estimate, len(params))
 	fi := 0
@@ -317,16 +318,5 @@ func lchoose(n, k int) float64 {
 	return a - b - c
 }
 
-// tQuantile returns the two-sided Student-t quantile t_{dof, (1+level)/2},
-// cached: a batch of fits asks for the same few values again and again.
-func tQuantile(dof int, level float64) float64 {
-	key := [2]float64{float64(dof), level}
-	if v, ok := tCache.Load(key); ok {
-		return v.(float64)
-	}
-	q := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(dof)}.Quantile(0.5 + level/2)
-	tCache.Store(key, q)
-	return q
-}
-
-var tCache sync.Map
+// tQuantile is stats.T with the arguments of profilelik.go, which calls it.
+func tQuantile(dof int, level float64) float64 { return stats.T(level, dof) }

@@ -14,6 +14,7 @@ import (
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/fit"
 	"github.com/fickfit/fickfit/fit/matano"
+	"github.com/fickfit/fickfit/internal/phys"
 )
 
 // Writers for the decision commands (arrhenius, backcalc, predict, compare,
@@ -41,10 +42,8 @@ import (
 //     predictions are written even with TextOptions.NoCautions: those
 //     numbers feed decisions about parts.
 
-// viewFaraday is the molar charge of one electron, N_A·e in C/mol, which
-// converts an energy per mole to electronvolts per atom: 1 eV/atom =
-// 96 485.332 12 J/mol (CODATA 2018; N_A and e are exact since the 2019 SI).
-const viewFaraday = 6.02214076e23 * 1.602176634e-19
+// viewFaraday converts an energy per mole to electronvolts per atom.
+const viewFaraday = phys.Faraday
 
 // viewLabel is the width of the label column of the text views.
 const viewLabel = 15
@@ -401,38 +400,6 @@ func CSV(w io.Writer, v any) error {
 	return c.close()
 }
 
-// viewPointCI is the interval of a point's D: its profile fit's own, or
-// the Wald interval exp(ln D ± z·se) on ln D when none was given (as the
-// line's JSON writes it).
-func viewPointCI(p arrhenius.Point, level float64) fit.Interval {
-	if p.CI.Lo != 0 || p.CI.Hi != 0 {
-		return p.CI
-	}
-	if !(p.VarLnD > 0) {
-		return fit.Interval{Lo: math.NaN(), Hi: math.NaN()}
-	}
-	h := viewZ(level) * math.Sqrt(p.VarLnD)
-	return fit.Interval{Lo: math.Exp(p.LnD - h), Hi: math.Exp(p.LnD + h)}
-}
-
-// viewZ is the two-sided normal quantile for the level, by bisection on
-// math.Erf (no distribution package needed for one number).
-func viewZ(level float64) float64 {
-	if !(level > 0 && level < 1) {
-		level = 0.95
-	}
-	lo, hi := 0.0, 40.0
-	for i := 0; i < 200; i++ {
-		m := (lo + hi) / 2
-		if math.Erf(m/math.Sqrt2) < level {
-			lo = m
-		} else {
-			hi = m
-		}
-	}
-	return (lo + hi) / 2
-}
-
 // viewDAtTemperatures are the temperatures (K) at which the text and CSV
 // views give D on the line: the ends of the measured range and, between
 // them, the centre in 1/T rounded to a whole degree of the user's unit.
@@ -486,7 +453,7 @@ func viewReportCSV(c *viewCSV, r *arrhenius.Report) {
 	for i := range r.Lines {
 		l := &r.Lines[i]
 		for _, p := range l.Points {
-			ci := viewPointCI(p.Point, l.Level)
+			ci := p.Interval(l.Level)
 			c.add("point", l.Group, p.ID, p.Lot, p.Source, csvNumber(p.T), csvNumber(p.SigmaT),
 				csvNumber(math.Exp(p.LnD)), csvNumber(ci.Lo), csvNumber(ci.Hi), csvNumber(math.Sqrt(p.VarLnD)),
 				csvNumber(math.Exp(p.Fitted)), csvNumber(p.Residual), csvNumber(p.Weight), csvNumber(p.Residual*math.Sqrt(p.Weight)))
@@ -1048,7 +1015,7 @@ func viewLineText(t viewText, l *arrhenius.Line) {
 		Align: []Align{Left, Left, Right, Left, Right, Right}, Indent: "  "}
 	for _, p := range l.Points {
 		d := math.Exp(p.LnD)
-		ci := viewPointCI(p.Point, l.Level)
+		ci := p.Interval(l.Level)
 		last := LastDigit(d, ci)
 		civ := ""
 		if finite(ci.Lo) || finite(ci.Hi) {

@@ -477,7 +477,7 @@ func (x *xlWriter) arrheniusSheet(res *CampaignResult, u TempUnit) {
 		x.set(s, 12, row, groupLabel(l), 0)
 		x.set(s, 12, row+1, groupLabel(l)+" line", 0)
 		for _, p := range l.Points {
-			lo, hi := pointCI(p.Point)
+			lo, hi := pointCI(p.Point, l.Level)
 			x.set(s, 1, row, groupLabel(l), 0)
 			x.set(s, 2, row, p.ID, 0)
 			x.set(s, 3, row, u.FromKelvin(p.T), x.st.temp)

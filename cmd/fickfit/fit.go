@@ -90,7 +90,7 @@ func applyHistory(ps []profile.Profile, history, qText, tref string) error {
 	if qText == "" {
 		return usagef("--history needs the activation energy --Q to weigh the log's temperatures")
 	}
-	q, err := parseEnergy(qText)
+	q, err := arrhenius.ParseEnergy(qText)
 	if err != nil {
 		return usagef("--Q: %v", err)
 	}
