@@ -123,6 +123,8 @@ type Part struct {
 	Solution *arrhenius.Solution `json:"result,omitempty"`
 	// Error says why there is no solution; "" when there is one.
 	Error string `json:"error,omitempty"`
+	// kind is the Failure kind of Error: "bad input" or "no answer".
+	kind string
 }
 
 // CampaignResult is everything a campaign found.
@@ -477,7 +479,7 @@ func run(ps []profile.Profile, audit []InputFile, opts CampaignOptions) (*Campai
 		p := &ps[i]
 		u, uerr := unknownOf(p)
 		if uerr != nil {
-			res.Parts = append(res.Parts, Part{ID: p.ID, Lot: p.Lot, Error: uerr.Error()})
+			res.Parts = append(res.Parts, Part{ID: p.ID, Lot: p.Lot, Error: uerr.Error(), kind: kindBadInput})
 			continue
 		}
 		if u != "" {
@@ -553,12 +555,13 @@ func run(ps []profile.Profile, audit []InputFile, opts CampaignOptions) (*Campai
 		r := rs[pi.i]
 		if r == nil {
 			part.Error = "the profile could not be fitted: " + plainError(errs[pi.i])
+			part.kind = failureKind(errs[pi.i])
 			res.Parts = append(res.Parts, part)
 			continue
 		}
 		line, group, err := lineFor(p, res)
 		if err != nil {
-			part.Error = err.Error()
+			part.Error, part.kind = err.Error(), kindNoAnswer
 			res.Parts = append(res.Parts, part)
 			continue
 		}
@@ -572,7 +575,7 @@ func run(ps []profile.Profile, audit []InputFile, opts CampaignOptions) (*Campai
 			}
 		}
 		if err != nil {
-			part.Error = plainError(err)
+			part.Error, part.kind = plainError(err), failureKind(err)
 			part.Solution = nil
 		}
 		res.Parts = append(res.Parts, part)

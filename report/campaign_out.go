@@ -2,10 +2,8 @@ package report
 
 import (
 	"bufio"
-	"encoding/csv"
 	"fmt"
 	"io"
-	"strconv"
 	"strings"
 
 	"github.com/fickfit/fickfit/arrhenius"
@@ -54,48 +52,28 @@ func (res *CampaignResult) WriteJSON(w io.Writer) error {
 	return encodeJSON(w, doc)
 }
 
-// WriteArrheniusCSV writes one row per Arrhenius line: group, method,
-// n_points, n_temperatures, D0_m2_s, D0_ci_lo, D0_ci_hi, Q_J_mol, Q_ci_lo,
-// Q_ci_hi, corr_lnD0_Q, dof, birge_ratio, scaled, ci_level.
-func (res *CampaignResult) WriteArrheniusCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
-	cw.Write([]string{"group", "method", "n_points", "n_temperatures", "D0_m2_s", "D0_ci_lo", "D0_ci_hi",
-		"Q_J_mol", "Q_ci_lo", "Q_ci_hi", "corr_lnD0_Q", "dof", "birge_ratio", "scaled", "ci_level"})
-	if res.Lines != nil {
-		for _, l := range res.Lines.Lines {
-			d0, q := l.D0CI(), l.QCI()
-			cw.Write([]string{l.Group, l.Method, strconv.Itoa(len(l.Points)), strconv.Itoa(l.NTemperatures),
-				csvNumber(l.D0()), csvNumber(d0.Lo), csvNumber(d0.Hi), csvNumber(l.Q), csvNumber(q.Lo), csvNumber(q.Hi),
-				csvNumber(l.Corr()), strconv.Itoa(l.DOF), csvNumber(l.BirgeRatio), strconv.FormatBool(l.Scaled), csvNumber(l.Level)})
-		}
+// Arrhenius is the Document of the campaign's Arrhenius lines, as
+// fickfit arrhenius writes them (arrhenius.csv).
+func (res *CampaignResult) Arrhenius() Arrhenius {
+	if res.Lines == nil {
+		return Arrhenius{Report: &arrhenius.Report{By: res.By}}
 	}
-	cw.Flush()
-	return cw.Error()
+	return Arrhenius{Report: res.Lines}
 }
 
-// WriteBackcalcCSV writes one row per part marked unknown: id, lot,
-// solve_for, temperature_K, temperature_ci_lo, temperature_ci_hi, time_s,
-// time_ci_lo, time_ci_hi, ci_method, ci_level, calibration_group, error.
-func (res *CampaignResult) WriteBackcalcCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
-	cw.Write([]string{"id", "lot", "solve_for", "temperature_K", "temperature_ci_lo", "temperature_ci_hi",
-		"time_s", "time_ci_lo", "time_ci_hi", "ci_method", "ci_level", "calibration_group", "error"})
+// Backcalc is the Document of the parts marked unknown, as fickfit
+// backcalc writes them (backcalc.csv), with the parts that could not be
+// back-calculated as failures.
+func (res *CampaignResult) Backcalc() Backcalc {
+	var b Backcalc
 	for _, p := range res.Parts {
-		row := []string{p.ID, p.Lot, p.SolveFor, "", "", "", "", "", "", "", "", p.Group, p.Error}
-		if s := p.Solution; s != nil {
-			row[3], row[6] = csvNumber(s.Temperature.Value), csvNumber(s.Time.Value)
-			if !s.Temperature.Given {
-				row[4], row[5], row[9] = csvNumber(s.Temperature.CI.Lo), csvNumber(s.Temperature.CI.Hi), s.Temperature.Method
-			}
-			if !s.Time.Given {
-				row[7], row[8], row[9] = csvNumber(s.Time.CI.Lo), csvNumber(s.Time.CI.Hi), s.Time.Method
-			}
-			row[10] = csvNumber(s.Level)
+		if p.Solution != nil {
+			b.Solutions = append(b.Solutions, p.Solution)
+			continue
 		}
-		cw.Write(row)
+		b.Failed = append(b.Failed, Failure{ID: p.ID, Lot: p.Lot, Kind: p.kind, Error: p.Error})
 	}
-	cw.Flush()
-	return cw.Error()
+	return b
 }
 
 // D0Text writes a pre-exponential factor with its interval, in m²/s with cm²/s beside.
@@ -203,4 +181,22 @@ func (res *CampaignResult) WriteSummary(w io.Writer, o TextOptions) error {
 		writeCautions(bw, res.Cautions, o.width())
 	}
 	return bw.Flush()
+}
+
+// CampaignReport is the Document of a whole campaign: its JSON is
+// results.json, its CSV results.csv (one row per profile, as fickfit fit
+// writes it) and its text the summary printed after a run.
+type CampaignReport struct {
+	Result *CampaignResult
+}
+
+// WriteJSON writes results.json.
+func (c CampaignReport) WriteJSON(w io.Writer) error { return c.Result.WriteJSON(w) }
+
+// WriteCSV writes results.csv.
+func (c CampaignReport) WriteCSV(w io.Writer) error { return c.Result.Fits.WriteCSV(w) }
+
+// WriteText writes the summary.
+func (c CampaignReport) WriteText(w io.Writer, o TextOptions) error {
+	return c.Result.WriteSummary(w, o)
 }

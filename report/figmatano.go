@@ -6,11 +6,12 @@ import (
 	"sort"
 	"strings"
 
-	"github.com/fickfit/fickfit/fit/matano"
-	"github.com/fickfit/fickfit/profile"
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"github.com/fickfit/fickfit/fit/matano"
+	"github.com/fickfit/fickfit/profile"
 )
 
 // matanoNearEnd is the fraction of the way between the end compositions

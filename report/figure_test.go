@@ -12,9 +12,10 @@ import (
 	"strings"
 	"testing"
 
+	"gonum.org/v1/plot"
+
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/fit"
-	"gonum.org/v1/plot"
 )
 
 // wellFormed fails the test unless b is well-formed XML.

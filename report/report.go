@@ -17,9 +17,10 @@ package report
 import (
 	"errors"
 	"fmt"
-	"github.com/fickfit/fickfit"
 	"sort"
 	"strings"
+
+	"github.com/fickfit/fickfit"
 
 	"github.com/fickfit/fickfit/fit"
 	"github.com/fickfit/fickfit/profile"
@@ -46,13 +47,23 @@ type Failure struct {
 	Error string `json:"error"`
 }
 
+// Failure kinds.
+const (
+	kindBadInput = "bad input"
+	kindNoAnswer = "no answer"
+)
+
+// failureKind is the Failure kind of err.
+func failureKind(err error) string {
+	if errors.Is(err, fit.ErrBadInput) {
+		return kindBadInput
+	}
+	return kindNoAnswer
+}
+
 // NewFailure describes the error of fitting profile p.
 func NewFailure(p *profile.Profile, err error) Failure {
-	kind := "no answer"
-	if errors.Is(err, fit.ErrBadInput) {
-		kind = "bad input"
-	}
-	return Failure{ID: p.ID, Source: p.Source, Lot: p.Lot, Kind: kind, Error: err.Error()}
+	return Failure{ID: p.ID, Source: p.Source, Lot: p.Lot, Kind: failureKind(err), Error: err.Error()}
 }
 
 // Fits is what the fit writers take: the fitted profiles and the ones that

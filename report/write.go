@@ -63,8 +63,8 @@ func renderAll(figs []*Figure, png bool, dpi int, progress func(done, total int)
 //	results.json    every number, for scripts (byte-identical on a rerun)
 //	results.csv     one row per profile
 //	residuals.csv   one row per measured point
-//	arrhenius.csv   one row per Arrhenius line
-//	backcalc.csv    one row per part marked unknown (when there are any)
+//	arrhenius.csv   the Arrhenius lines, as fickfit arrhenius --format csv writes them
+//	backcalc.csv    the parts marked unknown, as fickfit backcalc --format csv writes them
 //	summary.txt     the terminal summary and every profile's block
 //	results.xlsx    the workbook with native charts and the audit sheet
 //	report.html     the self-contained report
@@ -103,9 +103,9 @@ func WriteCampaign(dir string, res *CampaignResult, opts CampaignOptions) ([]str
 	add(FileJSON, res.WriteJSON)
 	add(FileCSV, res.Fits.WriteCSV)
 	add(FileResiduals, res.Fits.WriteResidualsCSV)
-	add(FileArrhenius, res.WriteArrheniusCSV)
+	add(FileArrhenius, res.Arrhenius().WriteCSV)
 	if len(res.Parts) > 0 {
-		add(FileBackcalc, res.WriteBackcalcCSV)
+		add(FileBackcalc, res.Backcalc().WriteCSV)
 	}
 	to := TextOptions{TempUnit: opts.TempUnit}
 	add(FileSummary, func(w io.Writer) error {

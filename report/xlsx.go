@@ -7,9 +7,10 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"github.com/xuri/excelize/v2"
+
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/fit"
-	"github.com/xuri/excelize/v2"
 )
 
 // Sheet names of the workbook.

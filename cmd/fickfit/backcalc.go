@@ -5,6 +5,7 @@ import (
 
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/profile"
+	"github.com/fickfit/fickfit/report"
 )
 
 func newBackcalcCmd() *cobra.Command {
@@ -101,11 +102,11 @@ codes and licensed engineering judgement before deciding on parts.`,
 				}
 				sols = append(sols, s)
 			}
-			return out.write(c, func(w writer) error { return writeValue(w, out.format, sols) })
+			return out.emit(c, report.Backcalc{Solutions: sols})
 		},
 	}
 	ff.register(c)
-	out.register(c)
+	out.register(c, true)
 	cal.register(c)
 	c.Flags().StringVar(&solve, "solve", "temperature", "what to solve for: temperature or time")
 	c.Flags().StringVar(&history, "history", "", "furnace or service log (CSV of time and temperature) of known shape but unknown level")

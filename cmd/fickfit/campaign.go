@@ -24,8 +24,8 @@ type campaignFlags struct {
 	tref       string
 	tsigma     string
 	refs       []string
-	tempUnit   string
 	noPNG      bool
+	output     outFlags
 }
 
 func (cf *campaignFlags) register(c *cobra.Command, defaultOut string) {
@@ -38,8 +38,8 @@ func (cf *campaignFlags) register(c *cobra.Command, defaultOut string) {
 	fl.StringVar(&cf.tref, "tref", "", "temperature of the lot comparison's D ratio (default: the centre of the data)")
 	fl.StringVar(&cf.tsigma, "temperature-uncertainty", "", "standard uncertainty of every furnace temperature not given in the files (e.g. 3K)")
 	fl.StringSliceVar(&cf.refs, "reference-lines", nil, "draw these rows of the reference table on the Arrhenius plot")
-	fl.StringVar(&cf.tempUnit, "temperature-unit", "C", "temperature unit of the text and reports: C, K or F")
 	fl.BoolVar(&cf.noPNG, "no-png", false, "write SVG figures only")
+	cf.output.register(c, false)
 }
 
 // options turns the flags into campaign options.
@@ -51,10 +51,10 @@ func (cf *campaignFlags) options(c *cobra.Command) (report.CampaignOptions, erro
 	if cf.ff.ci == "bootstrap" {
 		fo.Bootstrap.Progress = nil
 	}
-	u, err := report.ParseTempUnit(cf.tempUnit)
-	if err != nil {
-		return report.CampaignOptions{}, usagef("--temperature-unit: %v", err)
+	if err := cf.output.check(nil); err != nil {
+		return report.CampaignOptions{}, err
 	}
+	u := cf.output.unit
 	o := report.CampaignOptions{
 		Fit: fo, By: cf.by, Method: cf.method, References: cf.refs, TempUnit: u,
 		Force: cf.force, NoPNG: cf.noPNG, Version: fickfit.Version,

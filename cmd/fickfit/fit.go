@@ -8,6 +8,7 @@ import (
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/fit"
 	"github.com/fickfit/fickfit/profile"
+	"github.com/fickfit/fickfit/report"
 )
 
 func newFitCmd() *cobra.Command {
@@ -56,9 +57,9 @@ highest temperature), exact when D does not depend on concentration.`,
 			}
 			results, errs := fit.FitAll(ps, o)
 			worst := firstError(errs)
-			f := fitsOf(ps, results, errs)
+			f := report.NewFits(ps, results, errs)
 			if len(f.Results) > 0 {
-				if err := out.write(c, func(w writer) error { return writeFits(w, out.format, f) }); err != nil {
+				if err := out.emit(c, f); err != nil {
 					return err
 				}
 			}
@@ -71,7 +72,7 @@ highest temperature), exact when D does not depend on concentration.`,
 		},
 	}
 	ff.register(c)
-	out.register(c)
+	out.register(c, true)
 	c.Flags().StringVar(&history, "history", "", "furnace or service log (CSV of time and temperature) the part saw; needs --Q")
 	c.Flags().StringVar(&qText, "Q", "", "activation energy for --history (e.g. 142kJ/mol)")
 	c.Flags().StringVar(&tref, "tref", "", "temperature at which D is reported with --history (default: the log's highest)")

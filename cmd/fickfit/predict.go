@@ -6,6 +6,7 @@ import (
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/fit"
 	"github.com/fickfit/fickfit/profile"
+	"github.com/fickfit/fickfit/report"
 )
 
 func newPredictCmd() *cobra.Command {
@@ -107,10 +108,10 @@ and licensed engineering judgement.`,
 				}
 				preds = append(preds, p)
 			}
-			return out.write(c, func(w writer) error { return writeValue(w, out.format, preds) })
+			return out.emit(c, report.Predictions(preds))
 		},
 	}
-	out.register(c)
+	out.register(c, true)
 	cal.register(c)
 	fl := c.Flags()
 	fl.StringVar(&temperature, "temperature", "", "hold temperature (e.g. 925C)")
