@@ -17,7 +17,6 @@ import (
 
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/fit"
-	"github.com/fickfit/fickfit/internal/parallel"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -409,24 +408,6 @@ func sortProfiles(ps []profile.Profile, by string) {
 	})
 }
 
-// fitProgress fits every profile in parallel and reports each finished one.
-func fitProgress(ps []profile.Profile, o fit.Options, progress func(done, total int)) ([]*fit.Result, []error) {
-	results := make([]*fit.Result, len(ps))
-	errs := make([]error, len(ps))
-	parallel.For(len(ps), func(i int) { results[i], errs[i] = safeFit(&ps[i], o) }, progress)
-	return results, errs
-}
-
-// safeFit turns a panic inside a model into an error naming the profile.
-func safeFit(p *profile.Profile, o fit.Options) (r *fit.Result, err error) {
-	defer func() {
-		if e := recover(); e != nil {
-			r, err = nil, fmt.Errorf("profile %s (%s): %w: internal error while fitting: %v", p.ID, p.Source, fit.ErrNoAnswer, e)
-		}
-	}()
-	return fit.Fit(p, o)
-}
-
 // run does the work after reading.
 func run(ps []profile.Profile, audit []InputFile, opts CampaignOptions) (*CampaignResult, error) {
 	if len(ps) == 0 {
@@ -462,7 +443,7 @@ func run(ps []profile.Profile, audit []InputFile, opts CampaignOptions) (*Campai
 	res.Profiles = ps
 
 	fo := opts.Fit
-	rs, errs := fitProgress(ps, fo, func(done, total int) { opts.progress("fit", done, total) })
+	rs, errs := fit.FitAll(ps, fo, &fit.BatchOptions{Progress: func(done, total int) { opts.progress("fit", done, total) }})
 	res.Fits = NewFits(ps, rs, errs)
 	res.Fits.Version = res.Version
 

@@ -28,7 +28,7 @@ func threeFits(t *testing.T) (Fits, []profile.Profile) {
 		// No time: D stands for Dt.
 		synth{id: "A4", lot: "L2", tempC: 940, hours: 3, cs: 0.95, c0: 0.2, hideTime: true}.profile(rng),
 	}
-	rs, errs := fit.FitAll(ps, fit.Options{CI: "wald"})
+	rs, errs := fit.FitAll(ps, fit.Options{CI: "wald"}, nil)
 	f := NewFits(ps, rs, errs)
 	f.Version = "1.2.3-test"
 	if len(f.Results) != 3 || len(f.Failed) != 1 {

@@ -52,10 +52,11 @@ highest temperature), exact when D does not depend on concentration.`,
 			if err := applyHistory(ps, history, qText, tref); err != nil {
 				return err
 			}
+			batch := &fit.BatchOptions{Progress: progress(c, "fit", 1)}
 			if ff.ci == "bootstrap" {
-				o.Bootstrap.Progress = progress(c, "bootstrap", len(ps))
+				o.Bootstrap.Progress, batch.Progress = progress(c, "bootstrap", len(ps)), nil
 			}
-			results, errs := fit.FitAll(ps, o)
+			results, errs := fit.FitAll(ps, o, batch)
 			worst := firstError(errs)
 			f := report.NewFits(ps, results, errs)
 			if len(f.Results) > 0 {
