@@ -25,7 +25,10 @@ import (
 // Parameters: D (fitted as ln D), beta (ln β, m/s), Cp, C0.
 type MassTransfer struct{}
 
-func init() { register("masstransfer", func() Model { return MassTransfer{} }) }
+func init() {
+	Register(Info{Name: "masstransfer", Title: "surface mass transfer (erfc with surface coefficient)", SemiInfinite: true, InAuto: true, Rank: 20},
+		func() Model { return MassTransfer{} })
+}
 
 // Name implements Model.
 func (MassTransfer) Name() string { return "masstransfer" }

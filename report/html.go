@@ -152,7 +152,7 @@ func (res *CampaignResult) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 	level := res.Options.Level
 	v := htmlView{Title: "Diffusion campaign report", Version: res.Version, Level: Level(level), TempUnit: u.Symbol(),
 		Failed: res.Fits.Failed, LineErrors: res.LineErrors, ComparisonError: res.ComparisonError,
-		Notes: res.Notes, Methods: MethodNotes, Cautions: res.Cautions, Inputs: res.Inputs, Options: res.Options.pairs(),
+		Notes: res.Notes, Methods: MethodNotes(), Cautions: res.Cautions, Inputs: res.Inputs, Options: res.Options.pairs(),
 		PartCautions: arrhenius.Cautions}
 	v.Lead = fmt.Sprintf("%d profiles from %d input files; %d fitted with the %s model, %s intervals by %s.",
 		len(res.Profiles), len(res.Inputs), len(res.Fits.Results), res.Options.Model, Level(level), CIMethodDescription(res.Options.CIMethod))

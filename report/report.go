@@ -97,21 +97,12 @@ func versionOr(v string) string {
 	return v
 }
 
-// modelNames describes the models in words for people.
-var modelNames = map[string]string{
-	"erf":          "constant surface concentration (erf solution)",
-	"masstransfer": "surface mass transfer (erfc with surface coefficient)",
-	"thinfilm":     "thin-film source (Gaussian)",
-	"couple":       "diffusion couple of two semi-infinite bodies",
-	"slab":         "finite slab (Fourier series)",
-	"numeric":      "numerical solution with concentration-dependent D",
-}
-
-// ModelDescription is the model's name in words ("constant surface
-// concentration (erf solution)"), or the flag name when not known.
+// ModelDescription is the model's title in words from the fit registry
+// ("constant surface concentration (erf solution)"), or the flag name when
+// the model is not registered.
 func ModelDescription(name string) string {
-	if d, ok := modelNames[name]; ok {
-		return d
+	if in, ok := fit.Lookup(name); ok && in.Title != "" {
+		return in.Title
 	}
 	return name
 }
@@ -132,11 +123,9 @@ func CIMethodDescription(m string) string {
 	return m
 }
 
-// paramOrder is the canonical order of parameter columns.
-var paramOrder = []string{"D", "Cs", "Cp", "C0", "CL", "CR", "M", "beta", "x0", "xm"}
-
-// paramNames returns the names of every parameter in rs, canonical ones
-// first, then others sorted.
+// paramNames returns the names of every parameter in rs in the order of
+// the fit registry (models by rank, each model's parameters in its own
+// order), then the parameters of unregistered models sorted by name.
 func paramNames(rs []*fit.Result) []string {
 	seen := map[string]bool{}
 	for _, r := range rs {
@@ -145,10 +134,12 @@ func paramNames(rs []*fit.Result) []string {
 		}
 	}
 	var out []string
-	for _, n := range paramOrder {
-		if seen[n] {
-			out = append(out, n)
-			delete(seen, n)
+	for _, in := range fit.Models() {
+		for _, pa := range in.Params {
+			if seen[pa.Name] {
+				out = append(out, pa.Name)
+				delete(seen, pa.Name)
+			}
 		}
 	}
 	var rest []string

@@ -624,14 +624,14 @@ func (x *xlWriter) auditSheet(res *CampaignResult) {
 	}
 	row += len(res.Options.pairs()) + 2
 	x.set(s, 1, row, "method notes", x.st.bold)
-	for i, n := range MethodNotes {
+	for i, n := range MethodNotes() {
 		x.set(s, 1, row+1+i, n.Topic, 0)
 		x.set(s, 2, row+1+i, n.Text+" Source: "+n.Source+".", x.st.note)
 		if x.err == nil {
 			x.err = x.f.SetRowHeight(s, row+1+i, 42)
 		}
 	}
-	row += len(MethodNotes) + 2
+	row += len(MethodNotes()) + 2
 	x.set(s, 1, row, "cautions", x.st.bold)
 	for i, c := range res.Cautions {
 		x.set(s, 2, row+1+i, c, x.st.note)

@@ -60,6 +60,12 @@ type Model struct {
 	fixLength                    float64 // tests: freeze the truncation depth
 }
 
+// The numerical model is described in the fit registry (its title in
+// reports) but not built by name: it needs a Config (NewModel).
+func init() {
+	fit.Register(fit.Info{Name: "numeric", Title: "numerical solution with concentration-dependent D", Rank: 100}, nil)
+}
+
 // NewModel checks the configuration and returns the model.
 func NewModel(c Config) (*Model, error) {
 	opt, err := c.Options.resolve()
