@@ -21,7 +21,7 @@ type Backcalc struct {
 	// Failed are the parts that could not be back-calculated, each with
 	// its reason. The "failed" key and table are written only when there
 	// are any.
-	Failed []Failure
+	Failed []fit.Failure
 }
 
 // WriteJSON writes the solutions, the failed parts and the cautions.
@@ -30,7 +30,7 @@ func (b Backcalc) WriteJSON(w io.Writer) error {
 	return writeJSON(w, struct {
 		envelope
 		Backcalc []*arrhenius.Solution `json:"backcalc"`
-		Failed   []Failure             `json:"failed,omitempty"`
+		Failed   []fit.Failure         `json:"failed,omitempty"`
 		Cautions []string              `json:"cautions"`
 	}{envelope{versionOr("")}, ss, b.Failed, viewSolutionCautions(ss)})
 }
@@ -66,7 +66,7 @@ func viewSolutionCautions(ss []*arrhenius.Solution) []string {
 	return viewUnion(lists)
 }
 
-func viewSolutionsCSV(c *viewCSV, ss []*arrhenius.Solution, failed []Failure) {
+func viewSolutionsCSV(c *viewCSV, ss []*arrhenius.Solution, failed []fit.Failure) {
 	h := []string{"id", "solve_for",
 		"temperature_K", "temperature_ci_lo_K", "temperature_ci_hi_K", "temperature_given", "temperature_ci_method",
 		"time_s", "time_ci_lo_s", "time_ci_hi_s", "time_given", "time_ci_method",

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/fickfit/fickfit/arrhenius"
+	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/fit"
 )
 
@@ -15,33 +16,33 @@ import (
 // the same inputs writes the same bytes.
 type campaignDoc struct {
 	Version         string                `json:"fickfit_version"`
-	Inputs          []InputFile           `json:"inputs"`
-	Options         AuditOptions          `json:"options"`
+	Inputs          []campaign.InputFile  `json:"inputs"`
+	Options         campaign.AuditOptions `json:"options"`
 	Fits            []*fit.Result         `json:"fits"`
-	Failed          []Failure             `json:"failed"`
+	Failed          []fit.Failure         `json:"failed"`
 	Arrhenius       arrheniusDoc          `json:"arrhenius"`
 	Comparison      *arrhenius.Comparison `json:"lot_comparison"`
 	ComparisonError string                `json:"lot_comparison_error,omitempty"`
-	Backcalc        []Part                `json:"backcalc"`
+	Backcalc        []campaign.Part       `json:"backcalc"`
 	Notes           []string              `json:"notes"`
 	Cautions        []string              `json:"cautions"`
 }
 
 type arrheniusDoc struct {
-	Method string           `json:"method"`
-	By     string           `json:"by"`
-	Groups []arrhenius.Line `json:"groups"`
-	Failed []GroupFailure   `json:"failed"`
+	Method string                  `json:"method"`
+	By     string                  `json:"by"`
+	Groups []arrhenius.Line        `json:"groups"`
+	Failed []campaign.GroupFailure `json:"failed"`
 }
 
 // WriteJSON writes the whole campaign as one JSON document: inputs with
 // SHA-256, options, every fit (as the fit command writes them), the
 // Arrhenius lines per group, the lot comparison, the back-calculated parts,
 // notes and cautions.
-func (res *CampaignResult) WriteJSON(w io.Writer) error {
+func (res *CampaignReport) WriteJSON(w io.Writer) error {
 	doc := campaignDoc{
-		Version: res.Version, Inputs: nonNil(res.Inputs), Options: res.Options,
-		Fits: jsonResults(res.Fits.Results), Failed: nonNil(res.Fits.Failed),
+		Version: res.Version, Inputs: nonNil(res.Inputs), Options: res.audit(),
+		Fits: jsonResults(res.Results), Failed: nonNil(res.Failed),
 		Arrhenius:  arrheniusDoc{Method: res.Method, By: res.By, Groups: []arrhenius.Line{}, Failed: nonNil(res.LineErrors)},
 		Comparison: res.Comparison, ComparisonError: res.ComparisonError,
 		Backcalc: nonNil(res.Parts), Notes: nonNil(res.Notes), Cautions: nonNil(res.Cautions),
@@ -54,7 +55,7 @@ func (res *CampaignResult) WriteJSON(w io.Writer) error {
 
 // Arrhenius is the Document of the campaign's Arrhenius lines, as
 // fickfit arrhenius writes them (arrhenius.csv).
-func (res *CampaignResult) Arrhenius() Arrhenius {
+func (res *CampaignReport) Arrhenius() Arrhenius {
 	if res.Lines == nil {
 		return Arrhenius{Report: &arrhenius.Report{By: res.By}}
 	}
@@ -64,14 +65,14 @@ func (res *CampaignResult) Arrhenius() Arrhenius {
 // Backcalc is the Document of the parts marked unknown, as fickfit
 // backcalc writes them (backcalc.csv), with the parts that could not be
 // back-calculated as failures.
-func (res *CampaignResult) Backcalc() Backcalc {
+func (res *CampaignReport) Backcalc() Backcalc {
 	var b Backcalc
 	for _, p := range res.Parts {
 		if p.Solution != nil {
 			b.Solutions = append(b.Solutions, p.Solution)
 			continue
 		}
-		b.Failed = append(b.Failed, Failure{ID: p.ID, Lot: p.Lot, Kind: p.kind, Error: p.Error})
+		b.Failed = append(b.Failed, fit.Failure{ID: p.ID, Lot: p.Lot, Kind: p.Kind, Error: p.Error})
 	}
 	return b
 }
@@ -87,7 +88,7 @@ func D0Text(l *arrhenius.Line) string {
 }
 
 // PartText writes a back-calculated result in one line.
-func PartText(p Part, u TempUnit) string {
+func PartText(p campaign.Part, u TempUnit) string {
 	if p.Solution == nil {
 		return "not back-calculated: " + p.Error
 	}
@@ -101,16 +102,16 @@ func PartText(p Part, u TempUnit) string {
 // WriteSummary writes the short text summary for the terminal: a table of
 // the profiles, the Arrhenius lines, the lot comparison, the back-calculated
 // parts, notes and cautions.
-func (res *CampaignResult) WriteSummary(w io.Writer, o TextOptions) error {
+func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 	bw := bufio.NewWriter(w)
 	u := o.TempUnit
 	nfiles := len(res.Inputs)
 	fmt.Fprintf(bw, "fickfit %s — %d profiles from %d files: %d fitted, %d not fitted\n\n",
-		res.Version, len(res.Profiles), nfiles, len(res.Fits.Results), len(res.Fits.Failed))
+		res.Version, len(res.Profiles), nfiles, len(res.Results), len(res.Failed))
 	level := res.Options.Level
 	tb := Table{Header: []string{"id", "lot", "T", "t", "model", "D (m²/s)", Level(level) + " CI", "R²", "warnings"},
 		Align: []Align{Left, Left, Right, Right, Left, Right, Left, Right, Left}, Indent: "  "}
-	for _, r := range res.Fits.Results {
+	for _, r := range res.Results {
 		d := r.Param("D")
 		dv, ci := "", ""
 		if d != nil {
@@ -128,7 +129,7 @@ func (res *CampaignResult) WriteSummary(w io.Writer, o TextOptions) error {
 	}
 	bw.WriteString("Profiles\n")
 	tb.WriteTo(bw)
-	for _, f := range res.Fits.Failed {
+	for _, f := range res.Failed {
 		writeWrapped(bw, "  not fitted: "+f.ID+": ", f.Error, o.width())
 	}
 	if res.Lines != nil && len(res.Lines.Lines) > 0 {
@@ -183,20 +184,8 @@ func (res *CampaignResult) WriteSummary(w io.Writer, o TextOptions) error {
 	return bw.Flush()
 }
 
-// CampaignReport is the Document of a whole campaign: its JSON is
-// results.json, its CSV results.csv (one row per profile, as fickfit fit
-// writes it) and its text the summary printed after a run.
-type CampaignReport struct {
-	Result *CampaignResult
-}
+// WriteCSV writes results.csv: one row per profile, as fickfit fit writes it.
+func (res *CampaignReport) WriteCSV(w io.Writer) error { return res.fits().WriteCSV(w) }
 
-// WriteJSON writes results.json.
-func (c CampaignReport) WriteJSON(w io.Writer) error { return c.Result.WriteJSON(w) }
-
-// WriteCSV writes results.csv.
-func (c CampaignReport) WriteCSV(w io.Writer) error { return c.Result.Fits.WriteCSV(w) }
-
-// WriteText writes the summary.
-func (c CampaignReport) WriteText(w io.Writer, o TextOptions) error {
-	return c.Result.WriteSummary(w, o)
-}
+// WriteText writes the summary (WriteSummary).
+func (res *CampaignReport) WriteText(w io.Writer, o TextOptions) error { return res.WriteSummary(w, o) }

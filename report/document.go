@@ -57,7 +57,7 @@ var (
 	_ Document = Comparison{}
 	_ Document = References(nil)
 	_ Document = Matano(nil)
-	_ Document = CampaignReport{}
+	_ Document = (*CampaignReport)(nil)
 )
 
 // Format is an output format of the stream-writing commands (--format).

@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
+	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/fit/matano"
 	"github.com/fickfit/fickfit/profile"
 )
@@ -362,7 +363,7 @@ func usableSmooth(s *matano.Smooth) bool {
 func matanoValueLabel(p *profile.Profile) string {
 	q, unit := "", ""
 	if p != nil {
-		q, unit = quantityOf(p), strings.TrimSpace(p.ValueUnit)
+		q, unit = campaign.QuantityOf(p), strings.TrimSpace(p.ValueUnit)
 	}
 	if q == "" {
 		q = "C"

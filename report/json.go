@@ -15,7 +15,7 @@ import (
 type fitsDoc struct {
 	Version  string        `json:"fickfit_version"`
 	Fits     []*fit.Result `json:"fits"`
-	Failed   []Failure     `json:"failed"`
+	Failed   []fit.Failure `json:"failed"`
 	Cautions []string      `json:"cautions"`
 }
 
@@ -26,7 +26,7 @@ func (f Fits) WriteJSON(w io.Writer) error {
 		Version:  versionOr(f.Version),
 		Fits:     jsonResults(f.Results),
 		Failed:   nonNil(f.Failed),
-		Cautions: FitCautions,
+		Cautions: fit.Cautions,
 	})
 }
 

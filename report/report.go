@@ -15,7 +15,6 @@
 package report
 
 import (
-	"errors"
 	"fmt"
 	"sort"
 	"strings"
@@ -29,48 +28,11 @@ import (
 // DefaultVersion is written as the software version when the caller gives none.
 const DefaultVersion = fickfit.Version
 
-// FitCautions accompany every set of fitted diffusion coefficients.
-var FitCautions = []string{
-	"Each D is the estimate of a model: the stated solution of Fick's second law (constant D, the stated boundary condition and geometry) is assumed to describe the profile. The warnings say where these data do not support that.",
-	"Intervals cover the statistical scatter of the measured points only, not bias of the measurement method, surface preparation or the depth scale.",
-	"Verify by metallography (microstructure, microhardness traverse or chemical profile) before acting on a number.",
-	"The applicable specifications decide acceptance; defer to local codes and to licensed engineering judgement.",
-}
-
-// Failure is a profile that gave no fit.
-type Failure struct {
-	ID     string `json:"id"`
-	Source string `json:"source,omitempty"`
-	Lot    string `json:"lot,omitempty"`
-	// Kind is "bad input" (exit status 2) or "no answer" (exit status 1).
-	Kind  string `json:"kind"`
-	Error string `json:"error"`
-}
-
-// Failure kinds.
-const (
-	kindBadInput = "bad input"
-	kindNoAnswer = "no answer"
-)
-
-// failureKind is the Failure kind of err.
-func failureKind(err error) string {
-	if errors.Is(err, fit.ErrBadInput) {
-		return kindBadInput
-	}
-	return kindNoAnswer
-}
-
-// NewFailure describes the error of fitting profile p.
-func NewFailure(p *profile.Profile, err error) Failure {
-	return Failure{ID: p.ID, Source: p.Source, Lot: p.Lot, Kind: failureKind(err), Error: err.Error()}
-}
-
 // Fits is what the fit writers take: the fitted profiles and the ones that
 // gave no answer, each in input order.
 type Fits struct {
 	Results []*fit.Result
-	Failed  []Failure
+	Failed  []fit.Failure
 	// Version is the software version written into JSON; "" means DefaultVersion.
 	Version string
 }
@@ -82,7 +44,7 @@ func NewFits(ps []profile.Profile, results []*fit.Result, errs []error) Fits {
 	for i := range ps {
 		switch {
 		case i < len(errs) && errs[i] != nil:
-			f.Failed = append(f.Failed, NewFailure(&ps[i], errs[i]))
+			f.Failed = append(f.Failed, fit.NewFailure(&ps[i], errs[i]))
 		case i < len(results) && results[i] != nil:
 			f.Results = append(f.Results, results[i])
 		}

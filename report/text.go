@@ -163,7 +163,7 @@ func (f Fits) WriteText(w io.Writer, o TextOptions) error {
 	}
 	if !o.NoCautions {
 		bw.WriteString("\n")
-		writeCautions(bw, FitCautions, o.width())
+		writeCautions(bw, fit.Cautions, o.width())
 	}
 	return bw.Flush()
 }

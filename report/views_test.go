@@ -145,7 +145,6 @@ func viewFixMatano(t *testing.T) []*matano.Result {
 	return []*matano.Result{r}
 }
 
-
 // viewAll returns every supported value with a name.
 func viewAll(t *testing.T) []struct {
 	name string

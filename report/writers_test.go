@@ -84,7 +84,7 @@ func TestFitsJSON(t *testing.T) {
 			t.Errorf("%s: round trip changed numbers", r.ID)
 		}
 	}
-	var failed []Failure
+	var failed []fit.Failure
 	json.Unmarshal(doc["failed"], &failed)
 	if len(failed) != 1 || failed[0].ID != "A3" || failed[0].Kind != "bad input" || !strings.Contains(failed[0].Error, "A3") {
 		t.Errorf("failed = %+v", failed)

@@ -11,6 +11,7 @@ import (
 	"golang.org/x/term"
 
 	"github.com/fickfit/fickfit"
+	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/profile"
 	"github.com/fickfit/fickfit/report"
 )
@@ -42,22 +43,25 @@ func (cf *campaignFlags) register(c *cobra.Command, defaultOut string) {
 	cf.output.register(c, false)
 }
 
-// options turns the flags into campaign options.
-func (cf *campaignFlags) options(c *cobra.Command) (report.CampaignOptions, error) {
+// options turns the flags into the campaign's options (what to compute)
+// and the report's (how to write it).
+func (cf *campaignFlags) options(c *cobra.Command) (campaign.Options, report.CampaignOptions, error) {
+	var o campaign.Options
+	var ro report.CampaignOptions
 	fo, err := cf.ff.options()
 	if err != nil {
-		return report.CampaignOptions{}, err
+		return o, ro, err
 	}
 	if cf.ff.ci == "bootstrap" {
 		fo.Bootstrap.Progress = nil
 	}
 	if err := cf.output.check(nil); err != nil {
-		return report.CampaignOptions{}, err
+		return o, ro, err
 	}
-	u := cf.output.unit
-	o := report.CampaignOptions{
-		Fit: fo, By: cf.by, Method: cf.method, References: cf.refs, TempUnit: u,
-		Force: cf.force, NoPNG: cf.noPNG, Version: fickfit.Version,
+	progress := stageProgress()
+	ro = report.CampaignOptions{TempUnit: cf.output.unit, Force: cf.force, NoPNG: cf.noPNG, Progress: progress}
+	o = campaign.Options{
+		Fit: fo, By: cf.by, Method: cf.method, References: cf.refs, Version: fickfit.Version, Progress: progress,
 		Adjust: func(p *profile.Profile) error {
 			ps := []profile.Profile{*p}
 			if err := cf.ff.override(ps); err != nil {
@@ -70,16 +74,15 @@ func (cf *campaignFlags) options(c *cobra.Command) (report.CampaignOptions, erro
 	o.Solve.Seed = cf.ff.seed
 	if cf.tref != "" {
 		if o.TRef, err = profile.ParseTemperature(cf.tref); err != nil {
-			return o, usagef("--tref: %v", err)
+			return o, ro, usagef("--tref: %v", err)
 		}
 	}
 	if cf.tsigma != "" {
 		if o.Arrhenius.TemperatureSigma, err = profile.ParseTemperatureDelta(cf.tsigma); err != nil {
-			return o, usagef("--temperature-uncertainty: %v", err)
+			return o, ro, usagef("--temperature-uncertainty: %v", err)
 		}
 	}
-	o.Progress = stageProgress()
-	return o, nil
+	return o, ro, nil
 }
 
 // stageProgress draws one bar per stage on a terminal; nil otherwise.
@@ -123,15 +126,15 @@ A rerun with the same inputs gives byte-identical JSON and CSV.`,
   fickfit campaign campaign.xlsx --out report --ci bootstrap --seed 7 --force`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
-			o, err := cf.options(c)
+			o, ro, err := cf.options(c)
 			if err != nil {
 				return err
 			}
-			res, err := report.Campaign(args, o)
+			res, err := campaign.Run(args, o)
 			if err != nil {
 				return err
 			}
-			return finishCampaign(c.OutOrStdout(), cf.out, res, o)
+			return finishCampaign(c.OutOrStdout(), cf.out, res, ro)
 		},
 	}
 	cf.register(c, "fickfit-report")
@@ -150,19 +153,19 @@ lot and temperature) and asks what temperature a pinion saw during a
 controller fault. All numbers are made up for the demonstration.`,
 		Args: cobra.NoArgs,
 		RunE: func(c *cobra.Command, args []string) error {
-			o, err := cf.options(c)
+			o, ro, err := cf.options(c)
 			if err != nil {
 				return err
 			}
 			// The demo may rewrite its own earlier report, never other files.
-			if !o.Force && len(report.ForeignEntries(cf.out)) == 0 {
-				o.Force = true
+			if !ro.Force && len(report.ForeignEntries(cf.out)) == 0 {
+				ro.Force = true
 			}
-			res, err := report.CampaignFS(fickfit.Demo(), o)
+			res, err := campaign.RunFS(fickfit.Demo(), o)
 			if err != nil {
 				return err
 			}
-			return finishCampaign(c.OutOrStdout(), cf.out, res, o)
+			return finishCampaign(c.OutOrStdout(), cf.out, res, ro)
 		},
 	}
 	cf.register(c, "fickfit-demo")
@@ -170,12 +173,13 @@ controller fault. All numbers are made up for the demonstration.`,
 }
 
 // finishCampaign writes the report folder and prints where it went and a summary.
-func finishCampaign(w io.Writer, dir string, res *report.CampaignResult, o report.CampaignOptions) error {
+func finishCampaign(w io.Writer, dir string, res *campaign.Result, o report.CampaignOptions) error {
 	files, err := report.WriteCampaign(dir, res, o)
 	if err != nil {
 		return err
 	}
-	if err := res.WriteSummary(w, report.TextOptions{TempUnit: o.TempUnit}); err != nil {
+	summary := &report.CampaignReport{Result: res, TempUnit: o.TempUnit}
+	if err := summary.WriteText(w, report.TextOptions{TempUnit: o.TempUnit}); err != nil {
 		return err
 	}
 	fmt.Fprintf(w, "\nReport written to %s/ (%d files); open %s/%s in a browser.\n", dir, len(files), dir, report.FileHTML)
