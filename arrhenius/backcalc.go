@@ -5,7 +5,6 @@ import (
 	"math"
 	"math/rand/v2"
 	"sort"
-	"strings"
 
 	"gonum.org/v1/gonum/stat/distuv"
 
@@ -78,11 +77,11 @@ type SolveOptions struct {
 	// the observation's. TemperatureSigma is its standard uncertainty (K); 0
 	// takes the observation's.
 	Temperature, TemperatureSigma float64
-	// Method is "" or "analytic" (Fieller / Wald on ln t / test inversion),
-	// "monte-carlo" (percentile interval of Draws simulations), or "both"
-	// (analytic interval reported, Monte Carlo beside it as a check). No
-	// Monte Carlo runs when the calibration gives no interval.
-	Method string
+	// Method is SolveAnalytic (the default when ""), SolveMonteCarlo
+	// (percentile interval of Draws simulations) or SolveBoth (analytic interval reported,
+	// Monte Carlo beside it as a check). No Monte Carlo runs when the
+	// calibration gives no interval.
+	Method SolveMethod
 	// Draws is the number of Monte Carlo draws; 0 means 10⁴.
 	Draws int
 	// Seed seeds the Monte Carlo generator (PCG); the same seed gives the
@@ -101,16 +100,8 @@ func (o *SolveOptions) defaults() (SolveOptions, error) {
 	if out.Level, err = levelOr(out.Level); err != nil {
 		return out, err
 	}
-	out.Method = strings.ToLower(strings.TrimSpace(out.Method))
-	switch out.Method {
-	case "", "analytic", "fieller", "wald":
-		out.Method = "analytic"
-	case "monte-carlo", "mc", "both":
-		if out.Method == "mc" {
-			out.Method = "monte-carlo"
-		}
-	default:
-		return out, badInput("", "method", "unknown interval method %q (use analytic, monte-carlo or both)", o.Method)
+	if out.Method, err = ParseSolveMethod(string(out.Method)); err != nil {
+		return out, badInput("", "method", "%v", err)
 	}
 	if out.Draws == 0 {
 		out.Draws = 10000
@@ -121,7 +112,7 @@ func (o *SolveOptions) defaults() (SolveOptions, error) {
 	return out, nil
 }
 
-func (o SolveOptions) mc() bool { return o.Method == "monte-carlo" || o.Method == "both" }
+func (o SolveOptions) mc() bool { return o.Method == SolveMonteCarlo || o.Method == SolveBoth }
 
 // Quantity is a solved or given number with its interval.
 type Quantity struct {
@@ -333,7 +324,7 @@ func SolveTemperature(obs Observation, cal Calibration, o *SolveOptions) (*Solut
 			}
 			return 1 / (R * x)
 		})
-		if opt.Method == "monte-carlo" {
+		if opt.Method == SolveMonteCarlo {
 			s.Temperature.CI, s.Temperature.Method = s.MonteCarlo.CI, "monte-carlo"
 		}
 	}
@@ -414,7 +405,7 @@ func SolveTime(obs Observation, cal Calibration, o *SolveOptions) (*Solution, er
 			}
 			return math.Exp(kappa - lnD0 + q/(R*T))
 		})
-		if opt.Method == "monte-carlo" {
+		if opt.Method == SolveMonteCarlo {
 			s.Time.CI, s.Time.Method = s.MonteCarlo.CI, "monte-carlo"
 		}
 	}
@@ -595,7 +586,7 @@ func SolveHistoryLevel(obs Observation, cal Calibration, h *profile.History, mod
 			}
 			return mode.adjust(tmax, c)
 		})
-		if opt.Method == "monte-carlo" {
+		if opt.Method == SolveMonteCarlo {
 			s.Temperature.CI, s.Temperature.Method = s.MonteCarlo.CI, "monte-carlo"
 		}
 	}

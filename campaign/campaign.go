@@ -174,10 +174,10 @@ type AuditOptions struct {
 }
 
 func auditOptions(o Options) AuditOptions {
-	a := AuditOptions{Model: o.Fit.Model, CIMethod: o.Fit.CI, Level: o.level(), AbsoluteSigma: o.Fit.AbsoluteSigma,
+	a := AuditOptions{Model: o.Fit.Model, CIMethod: string(o.Fit.CI), Level: o.level(), AbsoluteSigma: o.Fit.AbsoluteSigma,
 		Fixed: []string{}, Free: append([]string{}, o.Fit.Free...), By: o.by(), Method: o.method(),
 		TSigma: o.Arrhenius.TemperatureSigma, TRef: o.TRef, References: append([]string{}, o.References...),
-		SolveMethod: o.Solve.Method}
+		SolveMethod: string(o.Solve.Method)}
 	if o.Fit.Custom != nil {
 		a.Model = o.Fit.Custom.Name()
 	}

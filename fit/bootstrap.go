@@ -156,9 +156,9 @@ func (r *Result) bootstrapIntervals(o Options) error {
 		}
 		r.Params[j].CI = Interval{ql, qh}
 	}
-	r.CIMethod = "bootstrap-percentile"
+	r.CIMethod = CIBootstrapPercentile
 	if jack != nil {
-		r.CIMethod = "bootstrap-bca"
+		r.CIMethod = CIBootstrapBCa
 	}
 	return nil
 }

@@ -48,7 +48,7 @@ func (r *Result) Curve(x []float64) (y, lo, hi []float64, err error) {
 // bandQuantile is the two-sided quantile of the fit's intervals: normal
 // when σ is taken as known, Student t on the residual dof otherwise.
 func (r *Result) bandQuantile() float64 {
-	if r.Covariance == "absolute" {
+	if r.Covariance == CovAbsolute {
 		return stats.Z(r.CILevel)
 	}
 	return stats.T(r.CILevel, r.Stats.DOF)

@@ -145,10 +145,12 @@ type Result struct {
 	Thickness        float64 `json:"thickness_m,omitempty"`
 
 	CILevel  float64 `json:"ci_level"`
-	CIMethod string  `json:"ci_method"` // "wald", "profile", "bootstrap-percentile", "bootstrap-bca"
-	// Covariance tells how the covariance was scaled: "scaled" (by the
-	// reduced χ², the default) or "absolute" (σ taken as known).
-	Covariance string `json:"covariance"`
+	// CIMethod is how the intervals were obtained: CIWald, CIProfile,
+	// CIBootstrapBCa or CIBootstrapPercentile.
+	CIMethod CIMethod `json:"ci_method"`
+	// Covariance tells how the covariance was scaled: CovScaled (by the
+	// reduced χ², the default) or CovAbsolute (σ taken as known).
+	Covariance Covariance `json:"covariance"`
 
 	Params []Estimate `json:"params"`
 	// Correlation is the correlation matrix of the free parameters, in the

@@ -133,7 +133,7 @@ func SelectModel(p *profile.Profile, o Options, so SelectOptions) (*Selection, e
 			return nil, errAt(p, err)
 		}
 		oc := forModel(o, m)
-		oc.CI = "wald"
+		oc.CI = CIWald
 		r, err := FitModel(p, m, oc)
 		if err != nil {
 			c.Note = trimProfilePrefix(err.Error())

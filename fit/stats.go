@@ -52,13 +52,13 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	if !ok {
 		return fmt.Errorf("%w: the parameters %v cannot be separated by these data (singular Jacobian); fix one of them with --fix or add points where the profile changes", ErrNoAnswer, r.FreeNames)
 	}
-	r.Covariance = "scaled"
+	r.Covariance = CovScaled
 	scale := r.Stats.Chi2Red
 	if o.AbsoluteSigma {
 		if d.W == nil {
 			return fmt.Errorf("%w: --absolute-sigma needs a sigma column with the standard uncertainty of each value", ErrBadInput)
 		}
-		r.Covariance, scale = "absolute", 1
+		r.Covariance, scale = CovAbsolute, 1
 	}
 	for i := range cov {
 		for j := range cov[i] {
@@ -77,7 +77,7 @@ func (r *Result) finish(sol *Solution, o Options) error {
 
 	// Known σ: the normal quantile; σ estimated from the residuals: Student t.
 	tq := stats.T(level, dof)
-	if r.Covariance == "absolute" {
+	if r.Covariance == CovAbsolute {
 		tq = stats.Z(level)
 	}
 	r.Params = make([]Estimate, len(params))
@@ -110,7 +110,7 @@ func (r *Result) finish(sol *Solution, o Options) error {
 		}
 		r.Params[j] = e
 	}
-	r.CIMethod = "wald"
+	r.CIMethod = CIWald
 
 	r.Residuals = make([]Residual, n)
 	for i := range d.X {
@@ -119,12 +119,12 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	r.Stats.RunsP = runsOf(n, func(i int) (float64, float64) { return r.Residuals[i].Depth, r.Residuals[i].Residual })
 
 	switch o.CI {
-	case "", "profile":
+	case "", CIProfile:
 		if err := r.profileIntervals(o); err != nil {
 			return err
 		}
-	case "wald":
-	case "bootstrap":
+	case CIWald:
+	case CIBootstrap:
 		if err := r.bootstrapIntervals(o); err != nil {
 			return err
 		}

@@ -156,7 +156,7 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 		Notes: res.Notes, Methods: MethodNotes(), Cautions: res.Cautions, Inputs: res.Inputs, Options: auditPairs(res.audit()),
 		PartCautions: arrhenius.Cautions}
 	v.Lead = fmt.Sprintf("%d profiles from %d input files; %d fitted with the %s model, %s intervals by %s.",
-		len(res.Profiles), len(res.Inputs), len(res.Results), res.Options.Model, Level(level), CIMethodDescription(res.Options.CIMethod))
+		len(res.Profiles), len(res.Inputs), len(res.Results), res.Options.Model, Level(level), CIMethodDescription(fit.CIMethod(res.Options.CIMethod)))
 	unknown := map[string]bool{}
 	for _, p := range res.Parts {
 		unknown[p.ID] = true

@@ -70,19 +70,19 @@ func ModelDescription(name string) string {
 }
 
 // ciMethodNames describes the interval methods.
-var ciMethodNames = map[string]string{
-	"wald":                 "Wald (Student t)",
-	"profile":              "profile likelihood",
-	"bootstrap-percentile": "bootstrap percentile",
-	"bootstrap-bca":        "bootstrap BCa",
+var ciMethodNames = map[fit.CIMethod]string{
+	fit.CIWald:                "Wald (Student t)",
+	fit.CIProfile:             "profile likelihood",
+	fit.CIBootstrapPercentile: "bootstrap percentile",
+	fit.CIBootstrapBCa:        "bootstrap BCa",
 }
 
 // CIMethodDescription is the interval method in words.
-func CIMethodDescription(m string) string {
+func CIMethodDescription(m fit.CIMethod) string {
 	if d, ok := ciMethodNames[m]; ok {
 		return d
 	}
-	return m
+	return string(m)
 }
 
 // paramNames returns the names of every parameter in rs in the order of

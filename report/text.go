@@ -112,8 +112,8 @@ func statsParts(r *fit.Result) []string {
 func r2Text(v float64) string { return Number(v, -4) }
 
 // covarianceText says how the covariance was scaled.
-func covarianceText(c string) string {
-	if c == "absolute" {
+func covarianceText(c fit.Covariance) string {
+	if c == fit.CovAbsolute {
 		return "covariance absolute (σ taken as known)"
 	}
 	return "covariance scaled by χ²red"

@@ -307,7 +307,7 @@ func (x *xlWriter) profileSheet(s string, r *fit.Result, u TempUnit) {
 		{"source", r.Source}, {"lot", r.Lot},
 		{"temperature (" + u.Symbol() + ")", nil}, {"temperature (K)", nil}, {"time (h)", nil},
 		{"model", ModelDescription(r.Model)},
-		{"interval", Level(r.CILevel) + " " + CIMethodDescription(r.CIMethod) + ", covariance " + r.Covariance},
+		{"interval", Level(r.CILevel) + " " + CIMethodDescription(r.CIMethod) + ", covariance " + r.Covariance.String()},
 	}
 	if r.Temperature > 0 {
 		meta[2][1], meta[3][1] = u.FromKelvin(r.Temperature), r.Temperature

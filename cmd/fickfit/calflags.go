@@ -29,6 +29,12 @@ func (c *calFlags) register(cmd *cobra.Command) {
 	fl.StringVar(&c.qu, "Q-stderr", "", "standard uncertainty of Q (optional, same units as --Q)")
 	fl.Float64Var(&c.corr, "corr", 0, "correlation of ln D0 and Q (optional, with both uncertainties)")
 	fl.StringVar(&c.reference, "reference", "", "a row of the built-in table (see 'fickfit reference')")
+	// Exactly one source of D0 and Q: the file, the explicit values or a row.
+	cmd.MarkFlagsOneRequired("calibration", "D0", "reference")
+	cmd.MarkFlagsMutuallyExclusive("calibration", "D0", "reference")
+	cmd.MarkFlagsMutuallyExclusive("calibration", "Q", "reference")
+	cmd.MarkFlagsRequiredTogether("D0", "Q")
+	_ = cmd.RegisterFlagCompletionFunc("reference", fixed(arrhenius.ReferenceNames()...))
 }
 
 // calibration returns the chosen calibration; exactly one source must be given.

@@ -40,6 +40,7 @@ func (cf *campaignFlags) register(c *cobra.Command, defaultOut string) {
 	fl.StringVar(&cf.tsigma, "temperature-uncertainty", "", "standard uncertainty of every furnace temperature not given in the files (e.g. 3K)")
 	fl.StringSliceVar(&cf.refs, "reference-lines", nil, "draw these rows of the reference table on the Arrhenius plot")
 	fl.BoolVar(&cf.noPNG, "no-png", false, "write SVG figures only")
+	_ = c.RegisterFlagCompletionFunc("arrhenius", fixed("two-stage", "global"))
 	cf.output.register(c, false)
 }
 
@@ -52,7 +53,7 @@ func (cf *campaignFlags) options(c *cobra.Command) (campaign.Options, report.Cam
 	if err != nil {
 		return o, ro, err
 	}
-	if cf.ff.ci == "bootstrap" {
+	if cf.ff.bootstrap() {
 		fo.Bootstrap.Progress = nil
 	}
 	if err := cf.output.check(nil); err != nil {

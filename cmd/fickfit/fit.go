@@ -53,7 +53,7 @@ highest temperature), exact when D does not depend on concentration.`,
 				return err
 			}
 			batch := &fit.BatchOptions{Progress: progress(c, "fit", 1)}
-			if ff.ci == "bootstrap" {
+			if ff.bootstrap() {
 				o.Bootstrap.Progress, batch.Progress = progress(c, "bootstrap", len(ps)), nil
 			}
 			results, errs := fit.FitAll(ps, o, batch)
