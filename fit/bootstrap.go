@@ -4,12 +4,11 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"runtime"
 	"sort"
-	"sync"
 
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"github.com/fickfit/fickfit/internal/parallel"
 	"github.com/fickfit/fickfit/internal/stats"
 )
 
@@ -33,9 +32,6 @@ func (r *Result) bootstrapIntervals(o Options) error {
 		return fmt.Errorf("%w: %d bootstrap resamples are too few for an interval (use at least 100; 2000 is the default)", ErrBadInput, B)
 	}
 	workers := bo.Workers
-	if workers <= 0 {
-		workers = runtime.GOMAXPROCS(0)
-	}
 	d, m := r.data, r.model
 	n := len(d.X)
 	var idx []int
@@ -62,64 +58,45 @@ func (r *Result) bootstrapIntervals(o Options) error {
 	}
 
 	reps := make([][]float64, B) // internal-scale free parameters per replicate
-	var done int
-	var mu sync.Mutex
-	var wg sync.WaitGroup
-	jobs := make(chan int)
-	for w := 0; w < workers; w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			ys := make([]float64, n)
-			xs := make([]float64, n)
-			ws := make([]float64, n)
-			for b := range jobs {
-				rng := rand.New(rand.NewPCG(bo.Seed, uint64(b)))
-				dd := &Data{X: d.X, Y: ys, W: d.W, Time: d.Time, Thickness: d.Thickness, Faces: d.Faces}
-				if bo.Cases {
-					dd.X = xs
-					if d.W != nil {
-						dd.W = ws
-					}
-					for i := 0; i < n; i++ {
-						c := rng.IntN(n)
-						xs[i], ys[i] = d.X[c], d.Y[c]
-						if d.W != nil {
-							ws[i] = d.W[c]
-						}
-					}
-				} else {
-					for i := 0; i < n; i++ {
-						e := res[rng.IntN(n)]
-						if d.W != nil {
-							e /= math.Sqrt(d.W[i])
-						}
-						ys[i] = r.Residuals[i].Fitted + e
-					}
-				}
-				pr := Problem{Y: dd.Y, W: dd.W, Free: r.free, Func: func(p, f, jac []float64) { m.Eval(p, dd, f, jac) }}
-				sol, err := Solve(pr, r.pint, o.Settings)
-				if err == nil && sol.Converged {
-					v := make([]float64, k)
-					for a, j := range idx {
-						v[a] = sol.P[j]
-					}
-					reps[b] = v
-				}
-				if bo.Progress != nil {
-					mu.Lock()
-					done++
-					bo.Progress(done, B)
-					mu.Unlock()
+	type scratch struct{ xs, ys, ws []float64 }
+	newScratch := func() *scratch {
+		return &scratch{xs: make([]float64, n), ys: make([]float64, n), ws: make([]float64, n)}
+	}
+	parallel.Scratch(B, workers, newScratch, func(b int, sc *scratch) {
+		xs, ys, ws := sc.xs, sc.ys, sc.ws
+		rng := rand.New(rand.NewPCG(bo.Seed, uint64(b)))
+		dd := &Data{X: d.X, Y: ys, W: d.W, Time: d.Time, Thickness: d.Thickness, Faces: d.Faces}
+		if bo.Cases {
+			dd.X = xs
+			if d.W != nil {
+				dd.W = ws
+			}
+			for i := 0; i < n; i++ {
+				c := rng.IntN(n)
+				xs[i], ys[i] = d.X[c], d.Y[c]
+				if d.W != nil {
+					ws[i] = d.W[c]
 				}
 			}
-		}()
-	}
-	for b := 0; b < B; b++ {
-		jobs <- b
-	}
-	close(jobs)
-	wg.Wait()
+		} else {
+			for i := 0; i < n; i++ {
+				e := res[rng.IntN(n)]
+				if d.W != nil {
+					e /= math.Sqrt(d.W[i])
+				}
+				ys[i] = r.Residuals[i].Fitted + e
+			}
+		}
+		pr := Problem{Y: dd.Y, W: dd.W, Free: r.free, Func: func(p, f, jac []float64) { m.Eval(p, dd, f, jac) }}
+		sol, err := Solve(pr, r.pint, o.Settings)
+		if err == nil && sol.Converged {
+			v := make([]float64, k)
+			for a, j := range idx {
+				v[a] = sol.P[j]
+			}
+			reps[b] = v
+		}
+	}, bo.Progress)
 
 	good := reps[:0:0]
 	for _, v := range reps {

@@ -59,6 +59,7 @@ type BootstrapOptions struct {
 	Percentile bool
 	// Workers is the number of goroutines; 0 means runtime.GOMAXPROCS(0).
 	Workers int
-	// Progress, when not nil, is called after each finished replicate.
+	// Progress, when not nil, is called after each finished replicate, from
+	// one goroutine at a time.
 	Progress func(done, total int)
 }
