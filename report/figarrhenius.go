@@ -1,6 +1,7 @@
 package report
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"strings"
@@ -95,7 +96,7 @@ func ArrheniusFigure(a ArrheniusPlot, o FigureOptions) (*Figure, error) {
 		}
 	}
 	if len(Ts) == 0 {
-		return nil, fmt.Errorf("Arrhenius figure: no points to draw")
+		return nil, errors.New("no points to draw in the Arrhenius figure")
 	}
 	xmin, xmax := math.Inf(1), math.Inf(-1)
 	for _, T := range Ts {

@@ -8,7 +8,7 @@ import (
 	"github.com/fickfit/fickfit/fit"
 )
 
-// fitsDoc is the JSON document of the fit command (DESIGN §5, contract):
+// fitsDoc is the JSON document of the fit command (docs/output.md, contract):
 // {"fickfit_version", "fits":[…], "failed":[…], "cautions":[…]}. Keys are
 // stable; numbers are SI with the unit in the key or a "unit" field; an
 // open interval end is null.

@@ -67,7 +67,7 @@ func TestFitsJSON(t *testing.T) {
 	if err := json.Unmarshal(doc["fits"], &fits); err != nil {
 		t.Fatal(err)
 	}
-	// DESIGN §5 keys of one fit.
+	// docs/output.md keys of one fit.
 	for _, k := range []string{"id", "model", "converged", "time_s", "temperature_K", "ci_level", "ci_method", "params", "stats", "residuals", "warnings", "covariance"} {
 		if _, ok := fits[0][k]; !ok {
 			t.Errorf("fit key %q missing", k)
