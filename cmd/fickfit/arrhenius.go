@@ -8,6 +8,8 @@ import (
 	"github.com/fickfit/fickfit/report"
 )
 
+func init() { addCommands(newArrheniusCmd) }
+
 func newArrheniusCmd() *cobra.Command {
 	var ff fitFlags
 	var out outFlags

@@ -8,6 +8,8 @@ import (
 	"github.com/fickfit/fickfit/report"
 )
 
+func init() { addCommands(newBackcalcCmd) }
+
 func newBackcalcCmd() *cobra.Command {
 	var ff fitFlags
 	var out outFlags

@@ -109,6 +109,8 @@ func stageProgress() func(stage string, done, total int) {
 	}
 }
 
+func init() { addCommands(newCampaignCmd, newDemoCmd) }
+
 func newCampaignCmd() *cobra.Command {
 	var cf campaignFlags
 	c := &cobra.Command{

@@ -8,6 +8,8 @@ import (
 	"github.com/fickfit/fickfit/report"
 )
 
+func init() { addCommands(newCompareCmd, newReferenceCmd) }
+
 func newCompareCmd() *cobra.Command {
 	var ff fitFlags
 	var out outFlags

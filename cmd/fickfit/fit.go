@@ -11,6 +11,8 @@ import (
 	"github.com/fickfit/fickfit/report"
 )
 
+func init() { addCommands(newFitCmd) }
+
 func newFitCmd() *cobra.Command {
 	var ff fitFlags
 	var out outFlags

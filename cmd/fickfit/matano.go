@@ -12,6 +12,8 @@ import (
 	"github.com/fickfit/fickfit/report"
 )
 
+func init() { addCommands(newMatanoCmd) }
+
 func newMatanoCmd() *cobra.Command {
 	var out outFlags
 	var method, tm, figure string

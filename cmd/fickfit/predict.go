@@ -9,6 +9,8 @@ import (
 	"github.com/fickfit/fickfit/report"
 )
 
+func init() { addCommands(newPredictCmd) }
+
 func newPredictCmd() *cobra.Command {
 	var out outFlags
 	var cal calFlags
