@@ -292,7 +292,7 @@ func SolveTemperature(obs Observation, cal Calibration, o *SolveOptions) (*Solut
 	}
 	if !(t > 0) || !finite(t) {
 		if t == 0 {
-			return nil, badInput(obs.ID, "time", "the hold time is not known: give it (e.g. --time 4h) to solve for the temperature")
+			return nil, badInput(obs.ID, "time", "the hold time is not known: give it (e.g. 4 h) to solve for the temperature")
 		}
 		return nil, badInput(obs.ID, "time", "time %g s must be > 0", t)
 	}
@@ -374,7 +374,7 @@ func SolveTime(obs Observation, cal Calibration, o *SolveOptions) (*Solution, er
 		sT = obs.TemperatureSigma
 	}
 	if T == 0 {
-		return nil, badInput(obs.ID, "temperature", "the hold temperature is not known: give it (e.g. --temperature 925C) to solve for the time")
+		return nil, badInput(obs.ID, "temperature", "the hold temperature is not known: give it (e.g. 925 °C) to solve for the time")
 	}
 	if err := checkTemperatures([]string{obs.ID}, []string{obs.Source}, []float64{T}, opt.ColdOK); err != nil {
 		return nil, err

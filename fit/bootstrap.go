@@ -106,7 +106,7 @@ func (r *Result) bootstrapIntervals(o Options) error {
 	}
 	failed := B - len(good)
 	if len(good) < B/2 {
-		return fmt.Errorf("%w: only %d of %d bootstrap refits converged; the fit is too fragile for a bootstrap interval (use --ci profile)", ErrNoAnswer, len(good), B)
+		return fmt.Errorf("%w: only %d of %d bootstrap refits converged; the fit is too fragile for a bootstrap interval (use profile-likelihood intervals)", ErrNoAnswer, len(good), B)
 	}
 	if failed > B/20 {
 		r.Warn("bootstrap-failures", "%d of %d bootstrap refits did not converge and were left out; the bootstrap interval may be too narrow.", failed, B)

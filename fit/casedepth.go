@@ -633,5 +633,5 @@ func thresholdConversion(th Threshold, vu string, cal *profile.Calibration) (uni
 			return unitConversion{cal: cal, toHard: hardTh}, fmt.Sprintf("The threshold in %s is converted through the calibration %s (monotone interpolation, no extrapolation).", th.Unit, cal.Source), nil
 		}
 	}
-	return unitConversion{}, "", fmt.Errorf("%w: the case-depth threshold is in %s but the profile's values are in %s: state the threshold in %s, or give a hardness–concentration calibration (--hardness-calibration) to convert", ErrBadInput, th.Unit, vu, vu)
+	return unitConversion{}, "", fmt.Errorf("%w: the case-depth threshold is in %s but the profile's values are in %s: state the threshold in %s, or give a hardness–concentration calibration to convert", ErrBadInput, th.Unit, vu, vu)
 }

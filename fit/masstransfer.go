@@ -206,5 +206,5 @@ func linearLevels(g, y, w []float64) (a, b, rss float64, ok bool) {
 // errNoStart is returned by Start when no node of the start grid gives a
 // usable shape for the data.
 func errNoStart(model string) error {
-	return fmt.Errorf("%w: the %s model finds no usable starting values in these data (the profile does not have the shape this model describes); try --model auto or another model", ErrNoAnswer, model)
+	return fmt.Errorf("%w: the %s model finds no usable starting values in these data (the profile does not have the shape this model describes); try automatic model selection or another model", ErrNoAnswer, model)
 }

@@ -50,13 +50,13 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	r.CILevel = level
 	cov, ok := invertSPD(sol.JTJ, k)
 	if !ok {
-		return fmt.Errorf("%w: the parameters %v cannot be separated by these data (singular Jacobian); fix one of them with --fix or add points where the profile changes", ErrNoAnswer, r.FreeNames)
+		return fmt.Errorf("%w: the parameters %v cannot be separated by these data (singular Jacobian); hold one of them fixed at a known value or add points where the profile changes", ErrNoAnswer, r.FreeNames)
 	}
 	r.Covariance = CovScaled
 	scale := r.Stats.Chi2Red
 	if o.AbsoluteSigma {
 		if d.W == nil {
-			return fmt.Errorf("%w: --absolute-sigma needs a sigma column with the standard uncertainty of each value", ErrBadInput)
+			return fmt.Errorf("%w: σ taken as known (absolute) needs a sigma column with the standard uncertainty of each value", ErrBadInput)
 		}
 		r.Covariance, scale = CovAbsolute, 1
 	}

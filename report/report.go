@@ -1,9 +1,9 @@
 // Package report writes fickfit's results for people and for programs:
 // aligned text for the terminal, JSON and CSV for scripts and lab
 // databases, SVG/PNG figures, an XLSX workbook with native charts and a
-// self-contained HTML report. Campaign runs the whole job — read, fit,
-// Arrhenius per lot, lot comparison, back-calculation of unknown parts —
-// and WriteCampaign writes the report folder.
+// self-contained HTML report. Every result kind is a Document (WriteText,
+// WriteJSON, WriteCSV; see document.go and docs/output.md); WriteCampaign
+// writes the report folder of a campaign computed by package campaign.
 //
 // Internal units are SI; report converts only on the way out (see
 // format.go). Machine outputs (JSON, CSV) carry SI numbers in full
