@@ -144,7 +144,7 @@ type Result struct {
 	TemperatureSigma float64 `json:"temperature_sigma_K,omitempty"`
 	Thickness        float64 `json:"thickness_m,omitempty"`
 
-	CILevel  float64 `json:"ci_level"`
+	CILevel float64 `json:"ci_level"`
 	// CIMethod is how the intervals were obtained: CIWald, CIProfile,
 	// CIBootstrapBCa or CIBootstrapPercentile.
 	CIMethod CIMethod `json:"ci_method"`
