@@ -95,26 +95,32 @@ func (o Options) by() string {
 
 // InputFile is one input file of the audit trail.
 type InputFile struct {
-	Name   string `json:"file"`
+	// Name is the path as given (or as found in a folder).
+	Name string `json:"file"`
+	// SHA256 is the hex digest of the file's bytes, Bytes its size.
 	SHA256 string `json:"sha256"`
 	Bytes  int64  `json:"bytes"`
 }
 
 // GroupFailure is an Arrhenius line that could not be fitted for a group.
 type GroupFailure struct {
+	// Group is the group's name ("" when the grouping itself failed).
 	Group string `json:"group"`
+	// Error says why there is no line.
 	Error string `json:"error"`
 }
 
 // Part is a profile marked unknown: its fit and the back-calculated
 // temperature or time.
 type Part struct {
+	// ID and Lot name the part's profile.
 	ID  string `json:"id"`
 	Lot string `json:"lot,omitempty"`
 	// SolveFor is "temperature" or "time".
 	SolveFor string `json:"solve_for"`
 	// Group is the calibration's group ("" for a single line).
-	Group    string              `json:"calibration_group"`
+	Group string `json:"calibration_group"`
+	// Solution is the back-calculated exposure; nil when Error says why not.
 	Solution *arrhenius.Solution `json:"result,omitempty"`
 	// Error says why there is no solution; "" when there is one.
 	Error string `json:"error,omitempty"`

@@ -26,11 +26,13 @@ const (
 // Failure is a profile (or a part) that gave no answer, in the wire form
 // of the "failed" lists of fickfit's documents.
 type Failure struct {
+	// ID, Source and Lot name the profile (or part) and its file.
 	ID     string `json:"id"`
 	Source string `json:"source,omitempty"`
 	Lot    string `json:"lot,omitempty"`
 	// Kind is KindBadInput or KindNoAnswer.
-	Kind  string `json:"kind"`
+	Kind string `json:"kind"`
+	// Error says what went wrong and what to do.
 	Error string `json:"error"`
 }
 
