@@ -2,9 +2,11 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
 	"flag"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strconv"
 	"strings"
 	"testing"
@@ -123,6 +125,23 @@ func TestGoldenCampaign(t *testing.T) {
 			t.Fatal(err)
 		}
 		checkGolden(t, "campaign-"+f, b)
+	}
+	// The lot comparison in results.json is what fickfit compare writes
+	// (the same bytes: no HTML escaping in either).
+	var doc struct {
+		Comparison json.RawMessage `json:"lot_comparison"`
+	}
+	b, _ := os.ReadFile(filepath.Join(out, "results.json"))
+	if err := json.Unmarshal(b, &doc); err != nil {
+		t.Fatal(err)
+	}
+	_, cmp, _ := runCLI(t, "compare", demoDir+"/coupons", demoDir+"/lims-export-HV-2307.csv", "--by", "lot", "--format", "json")
+	var c1, c2 map[string]any
+	json.Unmarshal(doc.Comparison, &c1)
+	json.Unmarshal([]byte(cmp), &c2)
+	delete(c2, "fickfit_version")
+	if !reflect.DeepEqual(c1, c2) || !strings.Contains(string(b), `(p < 0.001)`) {
+		t.Errorf("results.json's lot_comparison differs from fickfit compare --format json")
 	}
 	_, want, _ := runCLI(t, "arrhenius", demoDir+"/coupons", demoDir+"/lims-export-HV-2307.csv", "--by", "lot", "--format", "csv")
 	got, _ := os.ReadFile(filepath.Join(out, "arrhenius.csv"))
