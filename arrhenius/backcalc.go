@@ -1,16 +1,17 @@
 package arrhenius
 
 import (
-	"encoding/json"
 	"fmt"
 	"math"
 	"math/rand/v2"
 	"sort"
-	"strings"
+
+	"gonum.org/v1/gonum/stat/distuv"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/jsonx"
+	"github.com/fickfit/fickfit/internal/stats"
 	"github.com/fickfit/fickfit/profile"
-	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // Observation is what a part's fitted profile says about its exposure:
@@ -76,11 +77,11 @@ type SolveOptions struct {
 	// the observation's. TemperatureSigma is its standard uncertainty (K); 0
 	// takes the observation's.
 	Temperature, TemperatureSigma float64
-	// Method is "" or "analytic" (Fieller / Wald on ln t / test inversion),
-	// "monte-carlo" (percentile interval of Draws simulations), or "both"
-	// (analytic interval reported, Monte Carlo beside it as a check). No
-	// Monte Carlo runs when the calibration gives no interval.
-	Method string
+	// Method is SolveAnalytic (the default when ""), SolveMonteCarlo
+	// (percentile interval of Draws simulations) or SolveBoth (analytic interval reported,
+	// Monte Carlo beside it as a check). No Monte Carlo runs when the
+	// calibration gives no interval.
+	Method SolveMethod
 	// Draws is the number of Monte Carlo draws; 0 means 10⁴.
 	Draws int
 	// Seed seeds the Monte Carlo generator (PCG); the same seed gives the
@@ -99,16 +100,8 @@ func (o *SolveOptions) defaults() (SolveOptions, error) {
 	if out.Level, err = levelOr(out.Level); err != nil {
 		return out, err
 	}
-	out.Method = strings.ToLower(strings.TrimSpace(out.Method))
-	switch out.Method {
-	case "", "analytic", "fieller", "wald":
-		out.Method = "analytic"
-	case "monte-carlo", "mc", "both":
-		if out.Method == "mc" {
-			out.Method = "monte-carlo"
-		}
-	default:
-		return out, badInput("", "method", "unknown interval method %q (use analytic, monte-carlo or both)", o.Method)
+	if out.Method, err = ParseSolveMethod(string(out.Method)); err != nil {
+		return out, badInput("", "method", "%v", err)
 	}
 	if out.Draws == 0 {
 		out.Draws = 10000
@@ -119,7 +112,7 @@ func (o *SolveOptions) defaults() (SolveOptions, error) {
 	return out, nil
 }
 
-func (o SolveOptions) mc() bool { return o.Method == "monte-carlo" || o.Method == "both" }
+func (o SolveOptions) mc() bool { return o.Method == SolveMonteCarlo || o.Method == SolveBoth }
 
 // Quantity is a solved or given number with its interval.
 type Quantity struct {
@@ -148,7 +141,7 @@ func (q Quantity) MarshalJSON() ([]byte, error) {
 		ci := q.CI
 		o.CI, o.Method = &ci, q.Method
 	}
-	return json.Marshal(o)
+	return jsonx.Marshal(o)
 }
 
 // MonteCarlo summarises a Monte Carlo interval.
@@ -165,7 +158,7 @@ type MonteCarlo struct {
 
 // MarshalJSON writes non-finite numbers (an open end) as null.
 func (m MonteCarlo) MarshalJSON() ([]byte, error) {
-	return json.Marshal(struct {
+	return jsonx.Marshal(struct {
 		Draws       int          `json:"draws"`
 		Seed        uint64       `json:"seed"`
 		Median      *float64     `json:"median"`
@@ -247,7 +240,7 @@ func (s Solution) MarshalJSON() ([]byte, error) {
 	if o.Warnings == nil {
 		o.Warnings = []fit.Warning{}
 	}
-	return json.Marshal(o)
+	return jsonx.Marshal(o)
 }
 
 // fieller returns Fieller's confidence set for the ratio θ = μN/μD of two
@@ -299,7 +292,7 @@ func SolveTemperature(obs Observation, cal Calibration, o *SolveOptions) (*Solut
 	}
 	if !(t > 0) || !finite(t) {
 		if t == 0 {
-			return nil, badInput(obs.ID, "time", "the hold time is not known: give it (e.g. --time 4h) to solve for the temperature")
+			return nil, badInput(obs.ID, "time", "the hold time is not known: give it (e.g. 4 h) to solve for the temperature")
 		}
 		return nil, badInput(obs.ID, "time", "time %g s must be > 0", t)
 	}
@@ -331,7 +324,7 @@ func SolveTemperature(obs Observation, cal Calibration, o *SolveOptions) (*Solut
 			}
 			return 1 / (R * x)
 		})
-		if opt.Method == "monte-carlo" {
+		if opt.Method == SolveMonteCarlo {
 			s.Temperature.CI, s.Temperature.Method = s.MonteCarlo.CI, "monte-carlo"
 		}
 	}
@@ -381,7 +374,7 @@ func SolveTime(obs Observation, cal Calibration, o *SolveOptions) (*Solution, er
 		sT = obs.TemperatureSigma
 	}
 	if T == 0 {
-		return nil, badInput(obs.ID, "temperature", "the hold temperature is not known: give it (e.g. --temperature 925C) to solve for the time")
+		return nil, badInput(obs.ID, "temperature", "the hold temperature is not known: give it (e.g. 925 °C) to solve for the time")
 	}
 	if err := checkTemperatures([]string{obs.ID}, []string{obs.Source}, []float64{T}, opt.ColdOK); err != nil {
 		return nil, err
@@ -412,7 +405,7 @@ func SolveTime(obs Observation, cal Calibration, o *SolveOptions) (*Solution, er
 			}
 			return math.Exp(kappa - lnD0 + q/(R*T))
 		})
-		if opt.Method == "monte-carlo" {
+		if opt.Method == SolveMonteCarlo {
 			s.Time.CI, s.Time.Method = s.MonteCarlo.CI, "monte-carlo"
 		}
 	}
@@ -500,27 +493,8 @@ func monteCarlo(obs Observation, cal Calibration, opt SolveOptions, T, sT float6
 	}
 	sort.Float64s(out)
 	a := (1 - opt.Level) / 2
-	return &MonteCarlo{Draws: opt.Draws, Seed: opt.Seed, Median: percentile(out, 0.5),
-		CI: fit.Interval{Lo: percentile(out, a), Hi: percentile(out, 1-a)}, NonPhysical: float64(bad) / float64(len(out))}
-}
-
-// percentile returns the p-quantile of sorted values by linear
-// interpolation between order statistics (Hyndman & Fan, Am. Stat. 50
-// (1996) 361, definition 7; from memory). +Inf values give +Inf (open).
-func percentile(s []float64, p float64) float64 {
-	h := p * float64(len(s)-1)
-	i := int(math.Floor(h))
-	if i >= len(s)-1 {
-		return s[len(s)-1]
-	}
-	lo, hi := s[i], s[i+1]
-	if math.IsInf(hi, 1) {
-		if h == float64(i) {
-			return lo
-		}
-		return math.Inf(1)
-	}
-	return lo + (h-float64(i))*(hi-lo)
+	return &MonteCarlo{Draws: opt.Draws, Seed: opt.Seed, Median: stats.Quantile(out, 0.5),
+		CI: fit.Interval{Lo: stats.Quantile(out, a), Hi: stats.Quantile(out, 1-a)}, NonPhysical: float64(bad) / float64(len(out))}
 }
 
 // SolveHistoryLevel back-calculates the level of a logged heat treatment
@@ -563,7 +537,7 @@ func SolveHistoryLevel(obs Observation, cal Calibration, h *profile.History, mod
 		return e.lnI - kappa, e.xEff
 	}
 	solve := func(lnD0, q, kappa float64) (float64, bool) {
-		return rootIncreasing(func(c float64) float64 { f, _ := F(lnD0, q, kappa, c); return f }, c0, cLo, cHi)
+		return stats.RootIncreasing(func(c float64) float64 { f, _ := F(lnD0, q, kappa, c); return f }, c0, cLo, cHi)
 	}
 	c, ok := solve(cal.LnD0, cal.Q, obs.LnDt)
 	if !ok {
@@ -589,10 +563,10 @@ func SolveHistoryLevel(obs Observation, cal Calibration, h *profile.History, mod
 			}
 		}
 		ci := fit.Interval{Lo: nan, Hi: nan}
-		if lo, ok := rootIncreasing(g(+1), c, cLo, c); ok {
+		if lo, ok := stats.RootIncreasing(g(+1), c, cLo, c); ok {
 			ci.Lo = lo
 		}
-		if hi, ok := rootIncreasing(g(-1), c, c, cHi); ok {
+		if hi, ok := stats.RootIncreasing(g(-1), c, c, cHi); ok {
 			ci.Hi = hi
 		} else {
 			ci.Hi = math.Inf(1)
@@ -612,84 +586,12 @@ func SolveHistoryLevel(obs Observation, cal Calibration, h *profile.History, mod
 			}
 			return mode.adjust(tmax, c)
 		})
-		if opt.Method == "monte-carlo" {
+		if opt.Method == SolveMonteCarlo {
 			s.Temperature.CI, s.Temperature.Method = s.MonteCarlo.CI, "monte-carlo"
 		}
 	}
 	s.rangeWarnings(s.Temperature.Value)
 	return s, nil
-}
-
-// rootIncreasing finds c in [lo, hi] with f(c) = 0 for f increasing in c,
-// searching outward from c0 and then by the Illinois variant of regula
-// falsi (Dowell & Jarratt, BIT 11 (1971) 168; from memory). ok is false
-// when f does not change sign inside [lo, hi].
-func rootIncreasing(f func(float64) float64, c0, lo, hi float64) (float64, bool) {
-	if !(lo < hi) {
-		return nan, false
-	}
-	c0 = math.Min(math.Max(c0, lo), hi)
-	f0 := f(c0)
-	if f0 == 0 {
-		return c0, true
-	}
-	// Bracket: move towards the root in growing steps.
-	a, fa := c0, f0
-	step := math.Max((hi-lo)*1e-3, 1e-9*math.Abs(c0))
-	var b, fb float64
-	found := false
-	for it := 0; it < 200; it++ {
-		if f0 > 0 {
-			b = math.Max(a-step, lo)
-		} else {
-			b = math.Min(a+step, hi)
-		}
-		fb = f(b)
-		if math.IsNaN(fb) {
-			return nan, false
-		}
-		if (fb > 0) != (f0 > 0) || fb == 0 {
-			found = true
-			break
-		}
-		if b == lo || b == hi {
-			return nan, false
-		}
-		a, fa = b, fb
-		step *= 2
-	}
-	if !found {
-		return nan, false
-	}
-	if fb == 0 {
-		return b, true
-	}
-	// Illinois iteration on [a, b] with fa, fb of opposite signs.
-	side := 0
-	for it := 0; it < 200; it++ {
-		c := (a*fb - b*fa) / (fb - fa)
-		if !(c > math.Min(a, b) && c < math.Max(a, b)) {
-			c = (a + b) / 2
-		}
-		fc := f(c)
-		if fc == 0 || math.Abs(b-a) <= 1e-13*math.Max(1, math.Abs(c)) {
-			return c, true
-		}
-		if (fc > 0) == (fb > 0) {
-			b, fb = c, fc
-			if side == -1 {
-				fa /= 2
-			}
-			side = -1
-		} else {
-			a, fa = c, fc
-			if side == 1 {
-				fb /= 2
-			}
-			side = 1
-		}
-	}
-	return (a + b) / 2, true
 }
 
 func repeat(s string, n int) []string {

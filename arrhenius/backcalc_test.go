@@ -220,7 +220,7 @@ func TestObservationFromResult(t *testing.T) {
 	}
 }
 
-// TestSolutionJSON checks the keys promised in DESIGN §5.
+// TestSolutionJSON checks the keys promised in docs/output.md.
 func TestSolutionJSON(t *testing.T) {
 	cal := testCalibration(t)
 	s, err := SolveTemperature(Observation{ID: "P7", LnDt: simLnD(1200) + math.Log(3600), VarLnDt: 0.01}, cal, &SolveOptions{Time: 3600, Method: "both", Seed: 1})

@@ -3,12 +3,13 @@ package arrhenius
 import (
 	"math"
 
-	"gonum.org/v1/gonum/stat/distuv"
+	"github.com/fickfit/fickfit/internal/phys"
+	"github.com/fickfit/fickfit/internal/stats"
 )
 
 // R is the molar gas constant in J mol⁻¹ K⁻¹ (CODATA 2018; exact in the SI
 // since 2019 as N_A·k).
-const R = 8.314462618
+const R = phys.R
 
 // Cautions accompany every back-calculated or predicted number: such
 // numbers feed decisions about parts.
@@ -83,7 +84,7 @@ func (c Calibration) quantileWith(level, vCal, vObs float64) float64 {
 	if nu > 1e7 {
 		return quantile(level, 0)
 	}
-	return distuv.StudentsT{Mu: 0, Sigma: 1, Nu: nu}.Quantile(0.5 + level/2)
+	return stats.TwoSided(level, nu)
 }
 
 // hasCov reports whether any uncertainty of (ln D0, Q) is known.
@@ -154,13 +155,7 @@ func Explicit(D0, uD0, Q, uQ, corr float64) (Calibration, error) {
 
 // quantile returns the two-sided quantile for level: Student-t with dof
 // degrees of freedom, or the normal quantile when dof ≤ 0.
-func quantile(level float64, dof int) float64 {
-	p := 0.5 + level/2
-	if dof <= 0 {
-		return distuv.UnitNormal.Quantile(p)
-	}
-	return distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(dof)}.Quantile(p)
-}
+func quantile(level float64, dof int) float64 { return stats.T(level, dof) }
 
 func levelOr(level float64) (float64, error) {
 	if level == 0 {

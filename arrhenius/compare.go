@@ -1,15 +1,16 @@
 package arrhenius
 
 import (
-	"encoding/json"
 	"fmt"
 	"math"
 	"strconv"
 	"strings"
 
-	"github.com/fickfit/fickfit/fit"
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat/distuv"
+
+	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/jsonx"
 )
 
 // CompareOptions control a lot comparison. The zero value groups by lot,
@@ -380,55 +381,66 @@ func (c *Comparison) verdict(ref string) string {
 	return b.String()
 }
 
-// MarshalJSON writes the comparison; undefined numbers are null and
-// warnings [] when empty.
-func (c Comparison) MarshalJSON() ([]byte, error) {
-	type test struct {
-		Name        string   `json:"test"`
-		Description string   `json:"description"`
-		F           *float64 `json:"F"`
-		DF1         int      `json:"df1"`
-		DF2         int      `json:"df2"`
-		P           *float64 `json:"p"`
-		RSSReduced  float64  `json:"rss_reduced"`
-		RSSFull     float64  `json:"rss_full"`
-	}
-	type ratio struct {
-		Group     string       `json:"group"`
-		Reference string       `json:"reference"`
-		TRef      float64      `json:"temperature_K"`
-		Value     float64      `json:"value"`
-		CI        fit.Interval `json:"ci"`
-		P         *float64     `json:"p"`
-		Model     string       `json:"model"`
-	}
-	out := struct {
-		By       string        `json:"by"`
-		Groups   []string      `json:"groups"`
-		NPoints  []int         `json:"n_points"`
-		Tests    []test        `json:"tests"`
-		Ratios   []ratio       `json:"ratios"`
-		Differ   bool          `json:"differ"`
-		PMain    *float64      `json:"p"`
-		Alpha    float64       `json:"alpha"`
-		Level    float64       `json:"ci_level"`
-		Verdict  string        `json:"verdict"`
-		Scale    float64       `json:"scale"`
-		Warnings []fit.Warning `json:"warnings"`
-	}{By: c.By, Groups: c.Groups, NPoints: c.NPoints, Differ: c.Differ, PMain: num(c.PMain),
+// FTestJSON is the wire form of an FTest; undefined numbers are null.
+type FTestJSON struct {
+	Name        string   `json:"test"`
+	Description string   `json:"description"`
+	F           *float64 `json:"F"`
+	DF1         int      `json:"df1"`
+	DF2         int      `json:"df2"`
+	P           *float64 `json:"p"`
+	RSSReduced  float64  `json:"rss_reduced"`
+	RSSFull     float64  `json:"rss_full"`
+}
+
+// RatioJSON is the wire form of a Ratio; an undefined p is null.
+type RatioJSON struct {
+	Group     string       `json:"group"`
+	Reference string       `json:"reference"`
+	TRef      float64      `json:"temperature_K"`
+	Value     float64      `json:"value"`
+	CI        fit.Interval `json:"ci"`
+	P         *float64     `json:"p"`
+	Model     string       `json:"model"`
+}
+
+// ComparisonJSON is the wire form of a Comparison. It has no MarshalJSON
+// of its own, so that a document can embed it beside keys of its own.
+type ComparisonJSON struct {
+	By       string        `json:"by"`
+	Groups   []string      `json:"groups"`
+	NPoints  []int         `json:"n_points"`
+	Tests    []FTestJSON   `json:"tests"`
+	Ratios   []RatioJSON   `json:"ratios"`
+	Differ   bool          `json:"differ"`
+	PMain    *float64      `json:"p"`
+	Alpha    float64       `json:"alpha"`
+	Level    float64       `json:"ci_level"`
+	Verdict  string        `json:"verdict"`
+	Scale    float64       `json:"scale"`
+	Warnings []fit.Warning `json:"warnings"`
+}
+
+// JSON returns the comparison's wire form: undefined numbers null,
+// tests, ratios and warnings [] when empty.
+func (c Comparison) JSON() ComparisonJSON {
+	out := ComparisonJSON{By: c.By, Groups: c.Groups, NPoints: c.NPoints, Differ: c.Differ, PMain: num(c.PMain),
 		Alpha: c.Alpha, Level: c.Level, Verdict: c.Verdict, Scale: c.Scale, Warnings: c.Warnings,
-		Tests: []test{}, Ratios: []ratio{}}
+		Tests: []FTestJSON{}, Ratios: []RatioJSON{}}
 	for _, t := range c.Tests {
-		out.Tests = append(out.Tests, test{t.Name, t.Description, num(t.F), t.DF1, t.DF2, num(t.P), t.RSSReduced, t.RSSFull})
+		out.Tests = append(out.Tests, FTestJSON{t.Name, t.Description, num(t.F), t.DF1, t.DF2, num(t.P), t.RSSReduced, t.RSSFull})
 	}
 	for _, r := range c.Ratios {
-		out.Ratios = append(out.Ratios, ratio{r.Group, r.Reference, r.TRef, r.Value, r.CI, num(r.P), r.Model})
+		out.Ratios = append(out.Ratios, RatioJSON{r.Group, r.Reference, r.TRef, r.Value, r.CI, num(r.P), r.Model})
 	}
 	if out.Warnings == nil {
 		out.Warnings = []fit.Warning{}
 	}
-	return json.Marshal(out)
+	return out
 }
+
+// MarshalJSON writes the comparison's wire form (JSON).
+func (c Comparison) MarshalJSON() ([]byte, error) { return jsonx.Marshal(c.JSON()) }
 
 // oneDecimal writes v with at most one decimal ("925", "924.1").
 func oneDecimal(v float64) string {

@@ -70,7 +70,7 @@ func Global(ps []profile.Profile, o *GlobalOptions) (*Line, error) {
 	for i := range ps {
 		ids[i], srcs[i], T[i] = ps[i].ID, ps[i].Source, ps[i].Temperature
 		if !(ps[i].Time > 0) {
-			e := badInput(ps[i].ID, "time", "the hold time is not given (or is ≤ 0); the global fit needs each profile's time. Add a `# time:` line or --time")
+			e := badInput(ps[i].ID, "time", "the hold time is not given (or is ≤ 0); the global fit needs each profile's time. Add a `# time:` line or give the time")
 			e.Source = ps[i].Source
 			return nil, e
 		}

@@ -54,6 +54,7 @@ const (
 	Scale
 )
 
+// String is the adjustment's name: "shift" or "scale".
 func (lv LogAdjust) String() string {
 	if lv == Scale {
 		return "scale"

@@ -12,9 +12,10 @@ import (
 	"strings"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/jsonx"
 )
 
-// The JSON written by `fickfit arrhenius --format json` (DESIGN §5):
+// The JSON written by `fickfit arrhenius --format json` (docs/output.md):
 //
 //	{"method":"two-stage",
 //	 "D0":{"value":2.3e-5,"unit":"m2/s","ci":[lo,hi],"ln_value":-10.68,"stderr_ln":0.9},
@@ -33,7 +34,8 @@ import (
 // Open interval ends and undefined numbers are null. "cov_lnD0_Q" and
 // "dof" let the line be reused for back-calculation (LoadCalibration).
 
-type estimateJSON struct {
+// EstimateJSON is the wire form of D0 or Q in LineJSON.
+type EstimateJSON struct {
 	Value    float64      `json:"value"`
 	Unit     string       `json:"unit"`
 	CI       fit.Interval `json:"ci"`
@@ -42,7 +44,8 @@ type estimateJSON struct {
 	StdErr   *float64     `json:"stderr,omitempty"`
 }
 
-type pointJSON struct {
+// PointJSON is the wire form of one point of a line.
+type PointJSON struct {
 	ID       string       `json:"id"`
 	Source   string       `json:"source,omitempty"`
 	Lot      string       `json:"lot,omitempty"`
@@ -56,7 +59,8 @@ type pointJSON struct {
 	Weight   *float64     `json:"weight"`
 }
 
-type budgetJSON struct {
+// BudgetJSON is the wire form of a TemperatureBudget.
+type BudgetJSON struct {
 	HalfWidthQ         *float64 `json:"halfwidth_Q"`
 	HalfWidthQProfiles *float64 `json:"halfwidth_Q_profiles_only"`
 	ShareTemperature   float64  `json:"share_temperature"`
@@ -65,11 +69,14 @@ type budgetJSON struct {
 	Converged          bool     `json:"converged"`
 }
 
-type lineJSON struct {
+// LineJSON is the wire form of a Line, with the keys shown above. It has
+// no MarshalJSON of its own, so that a document can embed it beside keys
+// of its own (report writes "fickfit_version" first).
+type LineJSON struct {
 	Group         string        `json:"group,omitempty"`
 	Method        string        `json:"method"`
-	D0            estimateJSON  `json:"D0"`
-	Q             estimateJSON  `json:"Q"`
+	D0            EstimateJSON  `json:"D0"`
+	Q             EstimateJSON  `json:"Q"`
 	Corr          *float64      `json:"corr_lnD0_Q"`
 	Cov           [2][2]float64 `json:"cov_lnD0_Q"`
 	DOF           int           `json:"dof"`
@@ -81,37 +88,30 @@ type lineJSON struct {
 	Scaled        bool          `json:"birge_scaled"`
 	NTemperatures int           `json:"n_temperatures"`
 	TRange        [2]float64    `json:"temperature_range_K"`
-	Points        []pointJSON   `json:"points"`
-	Budget        *budgetJSON   `json:"temperature_uncertainty,omitempty"`
+	Points        []PointJSON   `json:"points"`
+	Budget        *BudgetJSON   `json:"temperature_uncertainty,omitempty"`
 	Iterations    int           `json:"iterations,omitempty"`
 	Warnings      []fit.Warning `json:"warnings"`
 }
 
-func num(v float64) *float64 {
-	if !finite(v) {
-		return nil
-	}
-	return &v
-}
+func num(v float64) *float64 { return jsonx.Num(v) }
 
-func val(p *float64) float64 {
-	if p == nil {
-		return nan
-	}
-	return *p
-}
+func val(p *float64) float64 { return jsonx.Val(p) }
 
 // MarshalJSON writes the line in the shape documented above.
-func (l Line) MarshalJSON() ([]byte, error) {
+func (l Line) MarshalJSON() ([]byte, error) { return jsonx.Marshal(l.JSON()) }
+
+// JSON returns the line's wire form.
+func (l Line) JSON() LineJSON {
 	lnD0 := l.LnD0
-	j := lineJSON{
+	j := LineJSON{
 		Group: l.Group, Method: l.Method,
-		D0:  estimateJSON{Value: l.D0(), Unit: "m2/s", CI: l.D0CI(), LnValue: &lnD0, StdErrLn: num(l.StdErrLnD0())},
-		Q:   estimateJSON{Value: l.Q, Unit: "J/mol", CI: l.QCI(), StdErr: num(l.StdErrQ())},
+		D0:  EstimateJSON{Value: l.D0(), Unit: "m2/s", CI: l.D0CI(), LnValue: &lnD0, StdErrLn: num(l.StdErrLnD0())},
+		Q:   EstimateJSON{Value: l.Q, Unit: "J/mol", CI: l.QCI(), StdErr: num(l.StdErrQ())},
 		Cov: l.Cov, DOF: l.DOF, CILevel: l.Level, CIMethod: "wald-normal",
 		Corr: num(l.Corr()), ChiSq: num(l.ChiSq), ChiSqP: num(l.ChiSqP), Birge: num(l.BirgeRatio),
 		Scaled: l.Scaled, NTemperatures: l.NTemperatures, Iterations: l.Iterations,
-		Warnings: l.Warnings, Points: make([]pointJSON, len(l.Points)),
+		Warnings: l.Warnings, Points: make([]PointJSON, len(l.Points)),
 	}
 	if l.Scaled {
 		j.CIMethod = "wald-t"
@@ -121,28 +121,24 @@ func (l Line) MarshalJSON() ([]byte, error) {
 		j.Warnings = []fit.Warning{}
 	}
 	for i, p := range l.Points {
-		ci := p.CI
+		ci := p.Interval(l.Level)
 		se := math.Sqrt(p.VarLnD)
-		if ci.Lo == 0 && ci.Hi == 0 {
-			h := quantile(l.Level, 0) * se
-			ci = fit.Interval{Lo: math.Exp(p.LnD - h), Hi: math.Exp(p.LnD + h)}
-		}
-		j.Points[i] = pointJSON{ID: p.ID, Source: p.Source, Lot: p.Lot, T: p.T, SigmaT: p.SigmaT,
+		j.Points[i] = PointJSON{ID: p.ID, Source: p.Source, Lot: p.Lot, T: p.T, SigmaT: p.SigmaT,
 			D: math.Exp(p.LnD), CI: ci, StdErrLn: num(se), DLine: math.Exp(p.Fitted),
 			Residual: p.Residual, Weight: num(p.Weight)}
 	}
 	if b := l.TempBudget; b != nil {
-		j.Budget = &budgetJSON{HalfWidthQ: num(b.HalfWidthQ), HalfWidthQProfiles: num(b.HalfWidthQProfiles),
+		j.Budget = &BudgetJSON{HalfWidthQ: num(b.HalfWidthQ), HalfWidthQProfiles: num(b.HalfWidthQProfiles),
 			ShareTemperature: b.ShareTemperature, ShareProfiles: b.ShareProfiles,
 			Iterations: b.Iterations, Converged: b.Converged}
 	}
-	return json.Marshal(j)
+	return j
 }
 
 // UnmarshalJSON reads a line written by MarshalJSON. The points keep what
 // the JSON holds (id, temperature, D, its interval and standard error).
 func (l *Line) UnmarshalJSON(b []byte) error {
-	var j lineJSON
+	var j LineJSON
 	if err := json.Unmarshal(b, &j); err != nil {
 		return err
 	}
@@ -176,17 +172,21 @@ type Report struct {
 	Lines []Line
 }
 
+// Grouped tells which JSON shape the report has: grouped lines
+// ({"by":…,"groups":[…]}) unless it is one line without a grouping column.
+func (r Report) Grouped() bool { return r.By != "" || len(r.Lines) != 1 }
+
 // MarshalJSON writes a single line as its own object and grouped lines as
 // {"by":…,"groups":[…]}.
 func (r Report) MarshalJSON() ([]byte, error) {
-	if r.By == "" && len(r.Lines) == 1 {
-		return json.Marshal(r.Lines[0])
+	if !r.Grouped() {
+		return jsonx.Marshal(r.Lines[0])
 	}
 	lines := r.Lines
 	if lines == nil {
 		lines = []Line{}
 	}
-	return json.Marshal(struct {
+	return jsonx.Marshal(struct {
 		By     string `json:"by,omitempty"`
 		Groups []Line `json:"groups"`
 	}{r.By, lines})

@@ -61,7 +61,7 @@ func sameJSON(a, b any, path string) error {
 }
 
 // TestGolden pins the JSON contract of `fickfit arrhenius --format json`
-// (DESIGN §5) for testdata/arrhenius/lots.csv, single and grouped.
+// (docs/output.md) for testdata/arrhenius/lots.csv, single and grouped.
 func TestGolden(t *testing.T) {
 	pts := readLots(t)
 	for _, tc := range []struct{ file, by string }{{"line.golden.json", ""}, {"groups.golden.json", "lot"}} {

@@ -5,6 +5,7 @@ import (
 	"strings"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/stats"
 )
 
 // Point is one diffusion coefficient measured at one temperature: the
@@ -22,8 +23,24 @@ type Point struct {
 	// (NaN when the fit gave none).
 	LnD, VarLnD float64
 	// CI is the profile fit's own interval of D (m²/s); an interval with
-	// both ends 0 means none was given, and a Wald interval on ln D is shown.
+	// both ends 0 means none was given (see Interval).
 	CI fit.Interval
+}
+
+// Interval returns the point's interval of D (m²/s) at the confidence
+// level: the profile fit's own (CI) when it gave one, otherwise the Wald
+// interval exp(ln D ± z·√Var(ln D)) with z the two-sided normal quantile
+// of level. Both ends are NaN (not determined) when Var(ln D) is unknown.
+// Every writer and figure takes a point's interval from here.
+func (p Point) Interval(level float64) fit.Interval {
+	if p.CI.Lo != 0 || p.CI.Hi != 0 {
+		return p.CI
+	}
+	if !(p.VarLnD > 0) {
+		return fit.Interval{Lo: nan, Hi: nan}
+	}
+	h := stats.Z(level) * math.Sqrt(p.VarLnD)
+	return fit.Interval{Lo: math.Exp(p.LnD - h), Hi: math.Exp(p.LnD + h)}
 }
 
 // PointFromResult reads the point of one fitted profile: T, ln D and

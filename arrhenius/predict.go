@@ -1,11 +1,11 @@
 package arrhenius
 
 import (
-	"encoding/json"
 	"fmt"
 	"math"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/jsonx"
 )
 
 // PredictOptions control forward predictions. The zero value gives 95 %
@@ -26,7 +26,7 @@ type ProfilePoint struct {
 
 // MarshalJSON writes {"depth_m","value","lo","hi"} (null for an open end).
 func (p ProfilePoint) MarshalJSON() ([]byte, error) {
-	return json.Marshal(struct {
+	return jsonx.Marshal(struct {
 		Depth float64  `json:"depth_m"`
 		Value float64  `json:"value"`
 		Lo    *float64 `json:"lo"`
@@ -103,7 +103,7 @@ func (p Prediction) MarshalJSON() ([]byte, error) {
 	if out.Warnings == nil {
 		out.Warnings = []fit.Warning{}
 	}
-	return json.Marshal(out)
+	return jsonx.Marshal(out)
 }
 
 func (p *Prediction) warn(code, msg string) {

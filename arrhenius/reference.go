@@ -1,10 +1,11 @@
 package arrhenius
 
 import (
-	"encoding/json"
 	"math"
 	"sort"
 	"strings"
+
+	"github.com/fickfit/fickfit/internal/jsonx"
 )
 
 // Reference is one published pair (D0, Q) for a diffusing species in a
@@ -163,7 +164,7 @@ func (r Reference) MarshalJSON() ([]byte, error) {
 	}{Name: r.Name, Aliases: r.Aliases, Solute: r.Solute, Host: r.Host, D0: v{r.D0, "m2/s"}, Q: v{r.Q, "J/mol"},
 		Valid: [2]float64{r.TMin, r.TMax}, RangeNote: r.RangeNote, Source: r.Source, FromMemory: r.FromMemory, Checks: []check{}}
 	for _, c := range r.Checks {
-		out.Checks = append(out.Checks, check{c.T, c.D, c.Source})
+		out.Checks = append(out.Checks, check(c))
 	}
-	return json.Marshal(out)
+	return jsonx.Marshal(out)
 }

@@ -52,7 +52,7 @@ func BenchmarkFitAll10k(b *testing.B) {
 	b.ReportAllocs()
 	failed := 0
 	for b.Loop() {
-		_, errs := FitAll(ps, o)
+		_, errs := FitAll(ps, o, nil)
 		failed = 0
 		for _, err := range errs {
 			if err != nil {
@@ -75,8 +75,8 @@ func BenchmarkFitAll10k(b *testing.B) {
 func TestFitAllOrderAndDeterminism(t *testing.T) {
 	ps := batchProfiles(600, 50, 3)
 	o := Options{CI: "wald"}
-	run1, errs1 := FitAll(ps, o)
-	run2, errs2 := FitAll(ps, o)
+	run1, errs1 := FitAll(ps, o, nil)
+	run2, errs2 := FitAll(ps, o, nil)
 	for i := range ps {
 		if errs1[i] != nil || errs2[i] != nil {
 			t.Fatalf("profile %d: %v / %v", i, errs1[i], errs2[i])
@@ -199,7 +199,7 @@ func BenchmarkReadFit1M(b *testing.B) {
 		if len(ps) != profiles {
 			b.Fatalf("%d profiles, want %d", len(ps), profiles)
 		}
-		_, errs := FitAll(ps, o)
+		_, errs := FitAll(ps, o, nil)
 		failed = 0
 		for _, err := range errs {
 			if err != nil {

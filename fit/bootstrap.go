@@ -4,11 +4,12 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"runtime"
 	"sort"
-	"sync"
 
 	"gonum.org/v1/gonum/stat/distuv"
+
+	"github.com/fickfit/fickfit/internal/parallel"
+	"github.com/fickfit/fickfit/internal/stats"
 )
 
 // bootstrapIntervals replaces the intervals of the free parameters by
@@ -31,9 +32,6 @@ func (r *Result) bootstrapIntervals(o Options) error {
 		return fmt.Errorf("%w: %d bootstrap resamples are too few for an interval (use at least 100; 2000 is the default)", ErrBadInput, B)
 	}
 	workers := bo.Workers
-	if workers <= 0 {
-		workers = runtime.GOMAXPROCS(0)
-	}
 	d, m := r.data, r.model
 	n := len(d.X)
 	var idx []int
@@ -60,64 +58,45 @@ func (r *Result) bootstrapIntervals(o Options) error {
 	}
 
 	reps := make([][]float64, B) // internal-scale free parameters per replicate
-	var done int
-	var mu sync.Mutex
-	var wg sync.WaitGroup
-	jobs := make(chan int)
-	for w := 0; w < workers; w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			ys := make([]float64, n)
-			xs := make([]float64, n)
-			ws := make([]float64, n)
-			for b := range jobs {
-				rng := rand.New(rand.NewPCG(bo.Seed, uint64(b)))
-				dd := &Data{X: d.X, Y: ys, W: d.W, Time: d.Time, Thickness: d.Thickness, Faces: d.Faces}
-				if bo.Cases {
-					dd.X = xs
-					if d.W != nil {
-						dd.W = ws
-					}
-					for i := 0; i < n; i++ {
-						c := rng.IntN(n)
-						xs[i], ys[i] = d.X[c], d.Y[c]
-						if d.W != nil {
-							ws[i] = d.W[c]
-						}
-					}
-				} else {
-					for i := 0; i < n; i++ {
-						e := res[rng.IntN(n)]
-						if d.W != nil {
-							e /= math.Sqrt(d.W[i])
-						}
-						ys[i] = r.Residuals[i].Fitted + e
-					}
-				}
-				pr := Problem{Y: dd.Y, W: dd.W, Free: r.free, Func: func(p, f, jac []float64) { m.Eval(p, dd, f, jac) }}
-				sol, err := Solve(pr, r.pint, o.Settings)
-				if err == nil && sol.Converged {
-					v := make([]float64, k)
-					for a, j := range idx {
-						v[a] = sol.P[j]
-					}
-					reps[b] = v
-				}
-				if bo.Progress != nil {
-					mu.Lock()
-					done++
-					bo.Progress(done, B)
-					mu.Unlock()
+	type scratch struct{ xs, ys, ws []float64 }
+	newScratch := func() *scratch {
+		return &scratch{xs: make([]float64, n), ys: make([]float64, n), ws: make([]float64, n)}
+	}
+	parallel.Scratch(B, workers, newScratch, func(b int, sc *scratch) {
+		xs, ys, ws := sc.xs, sc.ys, sc.ws
+		rng := rand.New(rand.NewPCG(bo.Seed, uint64(b)))
+		dd := &Data{X: d.X, Y: ys, W: d.W, Time: d.Time, Thickness: d.Thickness, Faces: d.Faces}
+		if bo.Cases {
+			dd.X = xs
+			if d.W != nil {
+				dd.W = ws
+			}
+			for i := 0; i < n; i++ {
+				c := rng.IntN(n)
+				xs[i], ys[i] = d.X[c], d.Y[c]
+				if d.W != nil {
+					ws[i] = d.W[c]
 				}
 			}
-		}()
-	}
-	for b := 0; b < B; b++ {
-		jobs <- b
-	}
-	close(jobs)
-	wg.Wait()
+		} else {
+			for i := 0; i < n; i++ {
+				e := res[rng.IntN(n)]
+				if d.W != nil {
+					e /= math.Sqrt(d.W[i])
+				}
+				ys[i] = r.Residuals[i].Fitted + e
+			}
+		}
+		pr := Problem{Y: dd.Y, W: dd.W, Free: r.free, Func: func(p, f, jac []float64) { m.Eval(p, dd, f, jac) }}
+		sol, err := Solve(pr, r.pint, o.Settings)
+		if err == nil && sol.Converged {
+			v := make([]float64, k)
+			for a, j := range idx {
+				v[a] = sol.P[j]
+			}
+			reps[b] = v
+		}
+	}, bo.Progress)
 
 	good := reps[:0:0]
 	for _, v := range reps {
@@ -127,7 +106,7 @@ func (r *Result) bootstrapIntervals(o Options) error {
 	}
 	failed := B - len(good)
 	if len(good) < B/2 {
-		return fmt.Errorf("%w: only %d of %d bootstrap refits converged; the fit is too fragile for a bootstrap interval (use --ci profile)", ErrNoAnswer, len(good), B)
+		return fmt.Errorf("%w: only %d of %d bootstrap refits converged; the fit is too fragile for a bootstrap interval (use profile-likelihood intervals)", ErrNoAnswer, len(good), B)
 	}
 	if failed > B/20 {
 		r.Warn("bootstrap-failures", "%d of %d bootstrap refits did not converge and were left out; the bootstrap interval may be too narrow.", failed, B)
@@ -148,15 +127,15 @@ func (r *Result) bootstrapIntervals(o Options) error {
 		if jack != nil {
 			lo, hi = bcaLevels(col, r.pint[j], jackColumn(jack, a), alpha)
 		}
-		ql, qh := quantileSorted(col, lo), quantileSorted(col, hi)
+		ql, qh := stats.Quantile(col, lo), stats.Quantile(col, hi)
 		if params[j].Log {
 			ql, qh = math.Exp(ql), math.Exp(qh)
 		}
 		r.Params[j].CI = Interval{ql, qh}
 	}
-	r.CIMethod = "bootstrap-percentile"
+	r.CIMethod = CIBootstrapPercentile
 	if jack != nil {
-		r.CIMethod = "bootstrap-bca"
+		r.CIMethod = CIBootstrapBCa
 	}
 	return nil
 }
@@ -239,21 +218,4 @@ func bcaLevels(sorted []float64, est float64, jack []float64, alpha float64) (lo
 		return distuv.UnitNormal.CDF(z0 + (z0+z)/(1-acc*(z0+z)))
 	}
 	return adj(alpha / 2), adj(1 - alpha/2)
-}
-
-// quantileSorted is the type-7 sample quantile (linear interpolation) of
-// sorted data (Hyndman & Fan, Am. Stat. 50, 361–365, 1996).
-func quantileSorted(s []float64, p float64) float64 {
-	if len(s) == 0 {
-		return math.NaN()
-	}
-	h := p * float64(len(s)-1)
-	i := int(math.Floor(h))
-	if i < 0 {
-		return s[0]
-	}
-	if i >= len(s)-1 {
-		return s[len(s)-1]
-	}
-	return s[i] + (h-float64(i))*(s[i+1]-s[i])
 }

@@ -1,13 +1,14 @@
 package fit
 
 import (
-	"encoding/json"
 	"fmt"
 	"math"
 	"regexp"
 	"strconv"
 	"strings"
 
+	"github.com/fickfit/fickfit/internal/jsonx"
+	"github.com/fickfit/fickfit/internal/stats"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -236,7 +237,7 @@ func (e DepthEstimate) MarshalJSON() ([]byte, error) {
 		Method          string   `json:"method"`
 		Notes           []string `json:"notes"`
 	}
-	return json.Marshal(out{e.Kind, num(e.Depth), e.CI, e.CILevel, num(e.FromData), e.Threshold,
+	return jsonx.Marshal(out{e.Kind, num(e.Depth), e.CI, e.CILevel, num(e.FromData), e.Threshold,
 		num(e.Level), num(e.LevelFromData), num(e.Core), num(e.CoreFromData), num(e.Surface),
 		num(e.SurfaceFromData), e.Unit, e.Method, e.Notes})
 }
@@ -265,7 +266,7 @@ const DepthCaution = "Case and decarburization depths from a fitted model rest o
 // measured points, fall from the surface level to the threshold.
 //
 // From the fit: the root of f(x) = level on the side from the surface to
-// the core, found by bracketing and bisection to 1e-12 relative; the core
+// the core, found by bracketing and the shared root finder (stats.Root) to 1e-13 relative; the core
 // is the fitted C0. Its interval comes from the delta method on ln x*:
 // with x* defined implicitly by f(x*, θ) = L(θ), ∂x*/∂θ = −(∂f/∂θ − ∂L/∂θ)/(∂f/∂x)
 // (implicit-function theorem; ∂f/∂x by a central difference), Var ln x* =
@@ -479,15 +480,11 @@ func (c *depthCurve) solve(e *DepthEstimate, dL []float64) {
 		}
 		lo, hi = hi, math.Min(2*hi, c.xmax)
 	}
-	for k := 0; k < 200 && hi-lo > 1e-12*hi; k++ {
-		mid := (lo + hi) / 2
-		if g(mid) > 0 {
-			lo = mid
-		} else {
-			hi = mid
-		}
+	x, ok := stats.Root(g, lo, g(lo), hi, g(hi), 1e-13)
+	if !ok {
+		e.Notes = append(e.Notes, "The fitted curve does not cross the level cleanly within the specimen: not determined.")
+		return
 	}
-	x := (lo + hi) / 2
 	e.Depth = x
 	if x > c.deep {
 		e.Notes = append(e.Notes, fmt.Sprintf("The fitted depth %s lies beyond the deepest measured point (%s): it is an extrapolation of the model.", fmtLength(x), fmtLength(c.deep)))
@@ -636,5 +633,5 @@ func thresholdConversion(th Threshold, vu string, cal *profile.Calibration) (uni
 			return unitConversion{cal: cal, toHard: hardTh}, fmt.Sprintf("The threshold in %s is converted through the calibration %s (monotone interpolation, no extrapolation).", th.Unit, cal.Source), nil
 		}
 	}
-	return unitConversion{}, "", fmt.Errorf("%w: the case-depth threshold is in %s but the profile's values are in %s: state the threshold in %s, or give a hardness–concentration calibration (--hardness-calibration) to convert", ErrBadInput, th.Unit, vu, vu)
+	return unitConversion{}, "", fmt.Errorf("%w: the case-depth threshold is in %s but the profile's values are in %s: state the threshold in %s, or give a hardness–concentration calibration to convert", ErrBadInput, th.Unit, vu, vu)
 }

@@ -19,7 +19,15 @@ import (
 // Parameters: D (fitted as ln D), CL, CR, xm (m, free by default).
 type Couple struct{}
 
-func init() { register("couple", func() Model { return Couple{} }) }
+func init() {
+	Register(Info{Name: "couple", Title: "diffusion couple of two semi-infinite bodies", InAuto: true, Rank: 50, Couple: true,
+		Applies: func(d *Data) (bool, string) {
+			if interiorStep(d.X, d.Y) {
+				return true, "couple tried: the values step between two plateaus inside the measured range."
+			}
+			return false, ""
+		}}, func() Model { return Couple{} })
+}
 
 // Name implements Model.
 func (Couple) Name() string { return "couple" }

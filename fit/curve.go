@@ -3,7 +3,7 @@ package fit
 import (
 	"math"
 
-	"gonum.org/v1/gonum/stat/distuv"
+	"github.com/fickfit/fickfit/internal/stats"
 )
 
 // Curve evaluates the fitted model at depths x (m) and returns the
@@ -45,9 +45,11 @@ func (r *Result) Curve(x []float64) (y, lo, hi []float64, err error) {
 	return y, lo, hi, nil
 }
 
+// bandQuantile is the two-sided quantile of the fit's intervals: normal
+// when σ is taken as known, Student t on the residual dof otherwise.
 func (r *Result) bandQuantile() float64 {
-	if r.Covariance == "absolute" {
-		return distuv.UnitNormal.Quantile(0.5 + r.CILevel/2)
+	if r.Covariance == CovAbsolute {
+		return stats.Z(r.CILevel)
 	}
-	return tQuantile(r.Stats.DOF, r.CILevel)
+	return stats.T(r.CILevel, r.Stats.DOF)
 }

@@ -12,9 +12,6 @@ type Diagnoser interface {
 	Diagnose(r *Result)
 }
 
-// semiInfinite lists the models that assume a semi-infinite body.
-var semiInfinite = map[string]bool{"erf": true, "masstransfer": true, "thinfilm": true}
-
 // diagnose adds plain-language warnings where the data cannot support the
 // answer. Thresholds are common practice, no source.
 func (r *Result) diagnose() {
@@ -37,7 +34,7 @@ func (r *Result) diagnose() {
 	if r.Stats.Cond > 1e8 {
 		r.Warn("ill-conditioned", "The parameters are strongly entangled (condition number %.2g): their individual values are unreliable even if the curve fits.", r.Stats.Cond)
 	}
-	if semiInfinite[r.Model] {
+	if in, ok := Lookup(r.Model); ok && in.SemiInfinite {
 		r.penetrationChecks()
 	}
 	if d, ok := r.model.(Diagnoser); ok {

@@ -20,7 +20,10 @@ import (
 // Parameters: D (fitted as ln D), Cs, C0, x0.
 type Erf struct{}
 
-func init() { register("erf", func() Model { return Erf{} }) }
+func init() {
+	Register(Info{Name: "erf", Title: "constant surface concentration (erf solution)", SemiInfinite: true, InAuto: true, Rank: 10},
+		func() Model { return Erf{} })
+}
 
 // Name implements Model.
 func (Erf) Name() string { return "erf" }

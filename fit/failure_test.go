@@ -95,7 +95,7 @@ func failureCases() []struct {
 // Jacobian or unidentifiable parameters give ErrNoAnswer (exit status 1),
 // no result, and a message naming the profile and its file, the reason and
 // a remedy (common practice, no source: the encoding/csv.ParseError style
-// of DESIGN §6).
+// of docs/output.md, "Exit status").
 func TestFailuresExplained(t *testing.T) {
 	for _, tc := range failureCases() {
 		t.Run(tc.name, func(t *testing.T) {

@@ -7,7 +7,6 @@ import (
 	"sort"
 	"strings"
 
-	"github.com/fickfit/fickfit/internal/parallel"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -47,16 +46,6 @@ func FitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 		return nil, errAt(p, err)
 	}
 	return r, nil
-}
-
-// FitAll fits every profile, in parallel over the available cores, and
-// returns results in input order. errs[i] is the error of profile i (nil
-// when it was fitted); results[i] is nil where errs[i] is not.
-func FitAll(ps []profile.Profile, o Options) (results []*Result, errs []error) {
-	results = make([]*Result, len(ps))
-	errs = make([]error, len(ps))
-	parallel.For(len(ps), func(i int) { results[i], errs[i] = Fit(&ps[i], o) }, nil)
-	return results, errs
 }
 
 // errAt prefixes an error with the profile's id and source.

@@ -353,7 +353,7 @@ func TestBootstrapDeterminism(t *testing.T) {
 			a, calls := run(42, 1, mode.cases, mode.pct)
 			b, _ := run(42, 2, mode.cases, mode.pct)
 			c, _ := run(43, 2, mode.cases, mode.pct)
-			if a.CIMethod != mode.method {
+			if string(a.CIMethod) != mode.method {
 				t.Errorf("ci_method %q, want %q", a.CIMethod, mode.method)
 			}
 			if calls != 300 {

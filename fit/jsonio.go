@@ -20,7 +20,7 @@ func ReadResults(r io.Reader, name string) ([]*Result, error) {
 	var doc Results
 	dec := json.NewDecoder(r)
 	if err := dec.Decode(&doc); err != nil {
-		return nil, fmt.Errorf("%w: %s: not a fickfit results file (%v); write one with 'fickfit fit --format json -o FILE'", ErrBadInput, name, err)
+		return nil, fmt.Errorf("%w: %s: not a fickfit results file (%v); it must be the JSON of fitted profiles that fickfit writes", ErrBadInput, name, err)
 	}
 	if len(doc.Fits) == 0 {
 		return nil, fmt.Errorf("%w: %s: the results file holds no fits", ErrBadInput, name)

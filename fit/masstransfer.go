@@ -25,7 +25,10 @@ import (
 // Parameters: D (fitted as ln D), beta (ln β, m/s), Cp, C0.
 type MassTransfer struct{}
 
-func init() { register("masstransfer", func() Model { return MassTransfer{} }) }
+func init() {
+	Register(Info{Name: "masstransfer", Title: "surface mass transfer (erfc with surface coefficient)", SemiInfinite: true, InAuto: true, Rank: 20},
+		func() Model { return MassTransfer{} })
+}
 
 // Name implements Model.
 func (MassTransfer) Name() string { return "masstransfer" }
@@ -203,5 +206,5 @@ func linearLevels(g, y, w []float64) (a, b, rss float64, ok bool) {
 // errNoStart is returned by Start when no node of the start grid gives a
 // usable shape for the data.
 func errNoStart(model string) error {
-	return fmt.Errorf("%w: the %s model finds no usable starting values in these data (the profile does not have the shape this model describes); try --model auto or another model", ErrNoAnswer, model)
+	return fmt.Errorf("%w: the %s model finds no usable starting values in these data (the profile does not have the shape this model describes); try automatic model selection or another model", ErrNoAnswer, model)
 }

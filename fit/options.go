@@ -19,8 +19,9 @@ type Options struct {
 	Free []string
 	// Level is the confidence level of the intervals; 0 means 0.95.
 	Level float64
-	// CI is the interval method: "profile" (default when ""), "wald" or "bootstrap".
-	CI string
+	// CI is the interval method: CIProfile (the default when ""), CIWald
+	// or CIBootstrap.
+	CI CIMethod
 	// Bootstrap settings, used when CI is "bootstrap".
 	Bootstrap BootstrapOptions
 	// AbsoluteSigma takes the σ column as known standard uncertainties: the
@@ -58,6 +59,7 @@ type BootstrapOptions struct {
 	Percentile bool
 	// Workers is the number of goroutines; 0 means runtime.GOMAXPROCS(0).
 	Workers int
-	// Progress, when not nil, is called after each finished replicate.
+	// Progress, when not nil, is called after each finished replicate, from
+	// one goroutine at a time.
 	Progress func(done, total int)
 }

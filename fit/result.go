@@ -4,6 +4,8 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+
+	"github.com/fickfit/fickfit/internal/jsonx"
 )
 
 // Interval is a confidence interval. An open end is NaN (or ±Inf) and is
@@ -15,7 +17,7 @@ func (iv Interval) Open() bool { return !finite(iv.Lo) || !finite(iv.Hi) }
 
 // MarshalJSON writes [lo, hi] with null for an open end.
 func (iv Interval) MarshalJSON() ([]byte, error) {
-	return json.Marshal([2]*float64{num(iv.Lo), num(iv.Hi)})
+	return jsonx.Marshal([2]*float64{num(iv.Lo), num(iv.Hi)})
 }
 
 // UnmarshalJSON reads [lo, hi] with null for an open end.
@@ -68,7 +70,7 @@ type Stats struct {
 
 // MarshalJSON writes non-finite numbers as null.
 func (s Stats) MarshalJSON() ([]byte, error) {
-	return json.Marshal(struct {
+	return jsonx.Marshal(struct {
 		N          int      `json:"n"`
 		DOF        int      `json:"dof"`
 		RSS        *float64 `json:"rss"`
@@ -142,11 +144,13 @@ type Result struct {
 	TemperatureSigma float64 `json:"temperature_sigma_K,omitempty"`
 	Thickness        float64 `json:"thickness_m,omitempty"`
 
-	CILevel  float64 `json:"ci_level"`
-	CIMethod string  `json:"ci_method"` // "wald", "profile", "bootstrap-percentile", "bootstrap-bca"
-	// Covariance tells how the covariance was scaled: "scaled" (by the
-	// reduced χ², the default) or "absolute" (σ taken as known).
-	Covariance string `json:"covariance"`
+	CILevel float64 `json:"ci_level"`
+	// CIMethod is how the intervals were obtained: CIWald, CIProfile,
+	// CIBootstrapBCa or CIBootstrapPercentile.
+	CIMethod CIMethod `json:"ci_method"`
+	// Covariance tells how the covariance was scaled: CovScaled (by the
+	// reduced χ², the default) or CovAbsolute (σ taken as known).
+	Covariance Covariance `json:"covariance"`
 
 	Params []Estimate `json:"params"`
 	// Correlation is the correlation matrix of the free parameters, in the
@@ -194,19 +198,9 @@ func (r *Result) Warn(code, format string, args ...any) {
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
-func num(v float64) *float64 {
-	if !finite(v) {
-		return nil
-	}
-	return &v
-}
+func num(v float64) *float64 { return jsonx.Num(v) }
 
-func val(p *float64) float64 {
-	if p == nil {
-		return math.NaN()
-	}
-	return *p
-}
+func val(p *float64) float64 { return jsonx.Val(p) }
 
 func sprintf(format string, args ...any) string {
 	if len(args) == 0 {

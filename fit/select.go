@@ -1,7 +1,6 @@
 package fit
 
 import (
-	"encoding/json"
 	"fmt"
 	"math"
 	"sort"
@@ -9,6 +8,7 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"github.com/fickfit/fickfit/internal/jsonx"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -32,7 +32,7 @@ type Candidate struct {
 
 // MarshalJSON writes non-finite numbers as null.
 func (c Candidate) MarshalJSON() ([]byte, error) {
-	return json.Marshal(struct {
+	return jsonx.Marshal(struct {
 		Model     string   `json:"model"`
 		Fitted    bool     `json:"fitted"`
 		K         int      `json:"k"`
@@ -58,7 +58,7 @@ type NestedTest struct {
 
 // MarshalJSON writes non-finite numbers as null.
 func (t NestedTest) MarshalJSON() ([]byte, error) {
-	return json.Marshal(struct {
+	return jsonx.Marshal(struct {
 		Reduced string   `json:"reduced"`
 		Full    string   `json:"full"`
 		F       *float64 `json:"F"`
@@ -90,9 +90,6 @@ type SelectOptions struct {
 	// automatic choice (each must be registered).
 	Candidates []string
 }
-
-// autoModels are the closed-form models SelectModel may try, in report order.
-var autoModels = []string{"erf", "masstransfer", "thinfilm", "slab", "couple"}
 
 // SelectModel fits every applicable closed-form model to the profile and
 // picks the one with the smallest AICc (Burnham & Anderson, Model Selection
@@ -136,7 +133,7 @@ func SelectModel(p *profile.Profile, o Options, so SelectOptions) (*Selection, e
 			return nil, errAt(p, err)
 		}
 		oc := forModel(o, m)
-		oc.CI = "wald"
+		oc.CI = CIWald
 		r, err := FitModel(p, m, oc)
 		if err != nil {
 			c.Note = trimProfilePrefix(err.Error())
@@ -190,7 +187,9 @@ func SelectModel(p *profile.Profile, o Options, so SelectOptions) (*Selection, e
 	return sel, nil
 }
 
-// applicable decides the candidates from the data and notes why.
+// applicable decides the candidates from the data and notes why: the
+// registered models marked InAuto, in Rank order; only the Couple ones
+// when the positions cross zero; each one's Applies rule otherwise.
 func (sel *Selection) applicable(p *profile.Profile, o Options) []string {
 	var neg, pos int
 	for _, x := range p.Depth {
@@ -201,29 +200,36 @@ func (sel *Selection) applicable(p *profile.Profile, o Options) []string {
 			pos++
 		}
 	}
-	if neg >= 2 && pos >= 2 {
-		sel.Notes = append(sel.Notes, fmt.Sprintf("The positions cross zero (%d points below, %d above): the profile is treated as a diffusion couple; the surface models need depths ≥ 0.", neg, pos))
-		return []string{"couple"}
-	}
-	var names []string
+	crossing := neg >= 2 && pos >= 2
 	thick := p.Thickness
 	if o.Thickness > 0 {
 		thick = o.Thickness
 	}
-	for _, name := range autoModels {
-		switch name {
-		case "slab":
-			if !(thick > 0) {
-				sel.Notes = append(sel.Notes, "slab not tried: the specimen thickness is not known (add `# thickness: 12 mm` or --thickness).")
-				continue
-			}
-		case "couple":
-			if !interiorStep(p.Depth, p.Value) {
-				continue
-			}
-			sel.Notes = append(sel.Notes, "couple tried: the values step between two plateaus inside the measured range.")
+	var names, couples []string
+	for _, in := range Models() {
+		if !in.InAuto {
+			continue
 		}
-		names = append(names, name)
+		if in.Couple {
+			couples = append(couples, in.Name)
+		}
+		if crossing {
+			continue
+		}
+		if in.Applies != nil {
+			ok, note := in.Applies(&Data{X: p.Depth, Y: p.Value, Thickness: thick})
+			if note != "" {
+				sel.Notes = append(sel.Notes, note)
+			}
+			if !ok {
+				continue
+			}
+		}
+		names = append(names, in.Name)
+	}
+	if crossing {
+		sel.Notes = append(sel.Notes, fmt.Sprintf("The positions cross zero (%d points below, %d above): the profile is treated as a diffusion couple; the surface models need depths ≥ 0.", neg, pos))
+		return couples
 	}
 	return names
 }

@@ -31,7 +31,15 @@ import (
 // Parameters: D (fitted as ln D), Cs, C0.
 type Slab struct{}
 
-func init() { register("slab", func() Model { return Slab{} }) }
+func init() {
+	Register(Info{Name: "slab", Title: "finite slab (Fourier series)", InAuto: true, Rank: 40,
+		Applies: func(d *Data) (bool, string) {
+			if d.Thickness > 0 {
+				return true, ""
+			}
+			return false, "slab not tried: the specimen thickness is not known (add `# thickness: 12 mm` or --thickness)."
+		}}, func() Model { return Slab{} })
+}
 
 // Name implements Model.
 func (Slab) Name() string { return "slab" }

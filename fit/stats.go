@@ -4,9 +4,10 @@ import (
 	"fmt"
 	"math"
 	"sort"
-	"sync"
 
 	"gonum.org/v1/gonum/stat/distuv"
+
+	"github.com/fickfit/fickfit/internal/stats"
 )
 
 // finish fills statistics, covariance, intervals, residuals and warnings
@@ -49,15 +50,15 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	r.CILevel = level
 	cov, ok := invertSPD(sol.JTJ, k)
 	if !ok {
-		return fmt.Errorf("%w: the parameters %v cannot be separated by these data (singular Jacobian); fix one of them with --fix or add points where the profile changes", ErrNoAnswer, r.FreeNames)
+		return fmt.Errorf("%w: the parameters %v cannot be separated by these data (singular Jacobian); hold one of them fixed at a known value or add points where the profile changes", ErrNoAnswer, r.FreeNames)
 	}
-	r.Covariance = "scaled"
+	r.Covariance = CovScaled
 	scale := r.Stats.Chi2Red
 	if o.AbsoluteSigma {
 		if d.W == nil {
-			return fmt.Errorf("%w: --absolute-sigma needs a sigma column with the standard uncertainty of each value", ErrBadInput)
+			return fmt.Errorf("%w: σ taken as known (absolute) needs a sigma column with the standard uncertainty of each value", ErrBadInput)
 		}
-		r.Covariance, scale = "absolute", 1
+		r.Covariance, scale = CovAbsolute, 1
 	}
 	for i := range cov {
 		for j := range cov[i] {
@@ -75,9 +76,9 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	}
 
 	// Known σ: the normal quantile; σ estimated from the residuals: Student t.
-	tq := tQuantile(dof, level)
-	if r.Covariance == "absolute" {
-		tq = distuv.UnitNormal.Quantile(0.5 + level/2)
+	tq := stats.T(level, dof)
+	if r.Covariance == CovAbsolute {
+		tq = stats.Z(level)
 	}
 	r.Params = make([]Estimate, len(params))
 	fi := 0
@@ -109,7 +110,7 @@ func (r *Result) finish(sol *Solution, o Options) error {
 		}
 		r.Params[j] = e
 	}
-	r.CIMethod = "wald"
+	r.CIMethod = CIWald
 
 	r.Residuals = make([]Residual, n)
 	for i := range d.X {
@@ -118,12 +119,12 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	r.Stats.RunsP = runsOf(n, func(i int) (float64, float64) { return r.Residuals[i].Depth, r.Residuals[i].Residual })
 
 	switch o.CI {
-	case "", "profile":
+	case "", CIProfile:
 		if err := r.profileIntervals(o); err != nil {
 			return err
 		}
-	case "wald":
-	case "bootstrap":
+	case CIWald:
+	case CIBootstrap:
 		if err := r.bootstrapIntervals(o); err != nil {
 			return err
 		}
@@ -317,16 +318,5 @@ func lchoose(n, k int) float64 {
 	return a - b - c
 }
 
-// tQuantile returns the two-sided Student-t quantile t_{dof, (1+level)/2},
-// cached: a batch of fits asks for the same few values again and again.
-func tQuantile(dof int, level float64) float64 {
-	key := [2]float64{float64(dof), level}
-	if v, ok := tCache.Load(key); ok {
-		return v.(float64)
-	}
-	q := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(dof)}.Quantile(0.5 + level/2)
-	tCache.Store(key, q)
-	return q
-}
-
-var tCache sync.Map
+// tQuantile is stats.T with the arguments of profilelik.go, which calls it.
+func tQuantile(dof int, level float64) float64 { return stats.T(level, dof) }

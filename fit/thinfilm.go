@@ -17,7 +17,10 @@ import "math"
 // Parameters: D (fitted as ln D), M (fitted as ln M, "value*m"), C0.
 type ThinFilm struct{}
 
-func init() { register("thinfilm", func() Model { return ThinFilm{} }) }
+func init() {
+	Register(Info{Name: "thinfilm", Title: "thin-film source (Gaussian)", SemiInfinite: true, InAuto: true, Rank: 30},
+		func() Model { return ThinFilm{} })
+}
 
 // Name implements Model.
 func (ThinFilm) Name() string { return "thinfilm" }

@@ -6,6 +6,7 @@ import (
 	"testing"
 	"time"
 
+	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/fit"
 )
 
@@ -18,10 +19,11 @@ import (
 func BenchmarkCampaign(b *testing.B) {
 	for _, c := range []struct {
 		name string
-		opts CampaignOptions
+		opts campaign.Options
+		out  CampaignOptions
 	}{
-		{"full", CampaignOptions{}},
-		{"wald-noPNG", CampaignOptions{Fit: fit.Options{CI: "wald"}, NoPNG: true}},
+		{"full", campaign.Options{}, CampaignOptions{}},
+		{"wald-noPNG", campaign.Options{Fit: fit.Options{CI: "wald"}}, CampaignOptions{NoPNG: true}},
 	} {
 		b.Run(c.name, func(b *testing.B) {
 			dir := b.TempDir()
@@ -31,11 +33,11 @@ func BenchmarkCampaign(b *testing.B) {
 			b.ResetTimer()
 			cpu0, t0 := cpuTime(), time.Now()
 			for i := 0; i < b.N; i++ {
-				res, err := Campaign(paths, c.opts)
+				res, err := campaign.Run(paths, c.opts)
 				if err != nil {
 					b.Fatal(err)
 				}
-				o := c.opts
+				o := c.out
 				o.Force = true
 				if _, err := WriteCampaign(filepath.Join(out, fmt.Sprint(i)), res, o); err != nil {
 					b.Fatal(err)
@@ -52,7 +54,7 @@ func BenchmarkCampaign(b *testing.B) {
 // BenchmarkFigures draws one profile figure as SVG and as PNG.
 func BenchmarkFigures(b *testing.B) {
 	res, _ := runCampaign(b, 1)
-	f, err := ProfileFigure(res.Fits.Results[0], FigureOptions{})
+	f, err := ProfileFigure(res.Results[0], FigureOptions{})
 	if err != nil {
 		b.Fatal(err)
 	}

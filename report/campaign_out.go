@@ -2,13 +2,12 @@ package report
 
 import (
 	"bufio"
-	"encoding/csv"
 	"fmt"
 	"io"
-	"strconv"
 	"strings"
 
 	"github.com/fickfit/fickfit/arrhenius"
+	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/fit"
 )
 
@@ -17,33 +16,33 @@ import (
 // the same inputs writes the same bytes.
 type campaignDoc struct {
 	Version         string                `json:"fickfit_version"`
-	Inputs          []InputFile           `json:"inputs"`
-	Options         AuditOptions          `json:"options"`
+	Inputs          []campaign.InputFile  `json:"inputs"`
+	Options         campaign.AuditOptions `json:"options"`
 	Fits            []*fit.Result         `json:"fits"`
-	Failed          []Failure             `json:"failed"`
+	Failed          []fit.Failure         `json:"failed"`
 	Arrhenius       arrheniusDoc          `json:"arrhenius"`
 	Comparison      *arrhenius.Comparison `json:"lot_comparison"`
 	ComparisonError string                `json:"lot_comparison_error,omitempty"`
-	Backcalc        []Part                `json:"backcalc"`
+	Backcalc        []campaign.Part       `json:"backcalc"`
 	Notes           []string              `json:"notes"`
 	Cautions        []string              `json:"cautions"`
 }
 
 type arrheniusDoc struct {
-	Method string           `json:"method"`
-	By     string           `json:"by"`
-	Groups []arrhenius.Line `json:"groups"`
-	Failed []GroupFailure   `json:"failed"`
+	Method string                  `json:"method"`
+	By     string                  `json:"by"`
+	Groups []arrhenius.Line        `json:"groups"`
+	Failed []campaign.GroupFailure `json:"failed"`
 }
 
 // WriteJSON writes the whole campaign as one JSON document: inputs with
 // SHA-256, options, every fit (as the fit command writes them), the
 // Arrhenius lines per group, the lot comparison, the back-calculated parts,
 // notes and cautions.
-func (res *CampaignResult) WriteJSON(w io.Writer) error {
+func (res *CampaignReport) WriteJSON(w io.Writer) error {
 	doc := campaignDoc{
-		Version: res.Version, Inputs: nonNil(res.Inputs), Options: res.Options,
-		Fits: jsonResults(res.Fits.Results), Failed: nonNil(res.Fits.Failed),
+		Version: res.Version, Inputs: nonNil(res.Inputs), Options: res.audit(),
+		Fits: jsonResults(res.Results), Failed: nonNil(res.Failed),
 		Arrhenius:  arrheniusDoc{Method: res.Method, By: res.By, Groups: []arrhenius.Line{}, Failed: nonNil(res.LineErrors)},
 		Comparison: res.Comparison, ComparisonError: res.ComparisonError,
 		Backcalc: nonNil(res.Parts), Notes: nonNil(res.Notes), Cautions: nonNil(res.Cautions),
@@ -54,48 +53,28 @@ func (res *CampaignResult) WriteJSON(w io.Writer) error {
 	return encodeJSON(w, doc)
 }
 
-// WriteArrheniusCSV writes one row per Arrhenius line: group, method,
-// n_points, n_temperatures, D0_m2_s, D0_ci_lo, D0_ci_hi, Q_J_mol, Q_ci_lo,
-// Q_ci_hi, corr_lnD0_Q, dof, birge_ratio, scaled, ci_level.
-func (res *CampaignResult) WriteArrheniusCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
-	cw.Write([]string{"group", "method", "n_points", "n_temperatures", "D0_m2_s", "D0_ci_lo", "D0_ci_hi",
-		"Q_J_mol", "Q_ci_lo", "Q_ci_hi", "corr_lnD0_Q", "dof", "birge_ratio", "scaled", "ci_level"})
-	if res.Lines != nil {
-		for _, l := range res.Lines.Lines {
-			d0, q := l.D0CI(), l.QCI()
-			cw.Write([]string{l.Group, l.Method, strconv.Itoa(len(l.Points)), strconv.Itoa(l.NTemperatures),
-				csvNumber(l.D0()), csvNumber(d0.Lo), csvNumber(d0.Hi), csvNumber(l.Q), csvNumber(q.Lo), csvNumber(q.Hi),
-				csvNumber(l.Corr()), strconv.Itoa(l.DOF), csvNumber(l.BirgeRatio), strconv.FormatBool(l.Scaled), csvNumber(l.Level)})
-		}
+// Arrhenius is the Document of the campaign's Arrhenius lines, as
+// fickfit arrhenius writes them (arrhenius.csv).
+func (res *CampaignReport) Arrhenius() Arrhenius {
+	if res.Lines == nil {
+		return Arrhenius{Report: &arrhenius.Report{By: res.By}}
 	}
-	cw.Flush()
-	return cw.Error()
+	return Arrhenius{Report: res.Lines}
 }
 
-// WriteBackcalcCSV writes one row per part marked unknown: id, lot,
-// solve_for, temperature_K, temperature_ci_lo, temperature_ci_hi, time_s,
-// time_ci_lo, time_ci_hi, ci_method, ci_level, calibration_group, error.
-func (res *CampaignResult) WriteBackcalcCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
-	cw.Write([]string{"id", "lot", "solve_for", "temperature_K", "temperature_ci_lo", "temperature_ci_hi",
-		"time_s", "time_ci_lo", "time_ci_hi", "ci_method", "ci_level", "calibration_group", "error"})
+// Backcalc is the Document of the parts marked unknown, as fickfit
+// backcalc writes them (backcalc.csv), with the parts that could not be
+// back-calculated as failures.
+func (res *CampaignReport) Backcalc() Backcalc {
+	var b Backcalc
 	for _, p := range res.Parts {
-		row := []string{p.ID, p.Lot, p.SolveFor, "", "", "", "", "", "", "", "", p.Group, p.Error}
-		if s := p.Solution; s != nil {
-			row[3], row[6] = csvNumber(s.Temperature.Value), csvNumber(s.Time.Value)
-			if !s.Temperature.Given {
-				row[4], row[5], row[9] = csvNumber(s.Temperature.CI.Lo), csvNumber(s.Temperature.CI.Hi), s.Temperature.Method
-			}
-			if !s.Time.Given {
-				row[7], row[8], row[9] = csvNumber(s.Time.CI.Lo), csvNumber(s.Time.CI.Hi), s.Time.Method
-			}
-			row[10] = csvNumber(s.Level)
+		if p.Solution != nil {
+			b.Solutions = append(b.Solutions, p.Solution)
+			continue
 		}
-		cw.Write(row)
+		b.Failed = append(b.Failed, fit.Failure{ID: p.ID, Lot: p.Lot, Kind: p.Kind, Error: p.Error})
 	}
-	cw.Flush()
-	return cw.Error()
+	return b
 }
 
 // D0Text writes a pre-exponential factor with its interval, in m²/s with cm²/s beside.
@@ -109,7 +88,7 @@ func D0Text(l *arrhenius.Line) string {
 }
 
 // PartText writes a back-calculated result in one line.
-func PartText(p Part, u TempUnit) string {
+func PartText(p campaign.Part, u TempUnit) string {
 	if p.Solution == nil {
 		return "not back-calculated: " + p.Error
 	}
@@ -123,16 +102,16 @@ func PartText(p Part, u TempUnit) string {
 // WriteSummary writes the short text summary for the terminal: a table of
 // the profiles, the Arrhenius lines, the lot comparison, the back-calculated
 // parts, notes and cautions.
-func (res *CampaignResult) WriteSummary(w io.Writer, o TextOptions) error {
+func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 	bw := bufio.NewWriter(w)
 	u := o.TempUnit
 	nfiles := len(res.Inputs)
 	fmt.Fprintf(bw, "fickfit %s — %d profiles from %d files: %d fitted, %d not fitted\n\n",
-		res.Version, len(res.Profiles), nfiles, len(res.Fits.Results), len(res.Fits.Failed))
+		res.Version, len(res.Profiles), nfiles, len(res.Results), len(res.Failed))
 	level := res.Options.Level
 	tb := Table{Header: []string{"id", "lot", "T", "t", "model", "D (m²/s)", Level(level) + " CI", "R²", "warnings"},
 		Align: []Align{Left, Left, Right, Right, Left, Right, Left, Right, Left}, Indent: "  "}
-	for _, r := range res.Fits.Results {
+	for _, r := range res.Results {
 		d := r.Param("D")
 		dv, ci := "", ""
 		if d != nil {
@@ -150,7 +129,7 @@ func (res *CampaignResult) WriteSummary(w io.Writer, o TextOptions) error {
 	}
 	bw.WriteString("Profiles\n")
 	tb.WriteTo(bw)
-	for _, f := range res.Fits.Failed {
+	for _, f := range res.Failed {
 		writeWrapped(bw, "  not fitted: "+f.ID+": ", f.Error, o.width())
 	}
 	if res.Lines != nil && len(res.Lines.Lines) > 0 {
@@ -204,3 +183,9 @@ func (res *CampaignResult) WriteSummary(w io.Writer, o TextOptions) error {
 	}
 	return bw.Flush()
 }
+
+// WriteCSV writes results.csv: one row per profile, as fickfit fit writes it.
+func (res *CampaignReport) WriteCSV(w io.Writer) error { return res.fits().WriteCSV(w) }
+
+// WriteText writes the summary (WriteSummary).
+func (res *CampaignReport) WriteText(w io.Writer, o TextOptions) error { return res.WriteSummary(w, o) }

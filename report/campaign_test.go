@@ -6,7 +6,6 @@ import (
 	"encoding/hex"
 	"encoding/json"
 	"errors"
-	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -14,24 +13,26 @@ import (
 	"testing"
 	"testing/fstest"
 
+	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/fit"
 	"github.com/fickfit/fickfit/profile"
 )
 
 // campaignOpts are fast options for tests: Wald intervals.
-func campaignOpts() CampaignOptions {
-	return CampaignOptions{Fit: fit.Options{CI: "wald"}, References: []string{"C-in-gamma-Fe"}, Version: "test"}
+func campaignOpts() campaign.Options {
+	return campaign.Options{Fit: fit.Options{CI: "wald"}, References: []string{"C-in-gamma-Fe"}, Version: "test"}
 }
 
-func runCampaign(t testing.TB, reps int) (*CampaignResult, []string) {
+// runCampaign runs a campaign on invented files and returns its report.
+func runCampaign(t testing.TB, reps int) (*CampaignReport, []string) {
 	t.Helper()
 	dir := t.TempDir()
 	paths := writeCampaignFiles(t, dir, 11, reps)
-	res, err := Campaign(paths, campaignOpts())
+	res, err := campaign.Run(paths, campaignOpts())
 	if err != nil {
 		t.Fatal(err)
 	}
-	return res, paths
+	return &CampaignReport{Result: res}, paths
 }
 
 func TestCampaign(t *testing.T) {
@@ -39,8 +40,8 @@ func TestCampaign(t *testing.T) {
 	if got, want := len(res.Profiles), 2*4*2+1; got != want {
 		t.Fatalf("%d profiles, want %d", got, want)
 	}
-	if len(res.Fits.Failed) != 0 {
-		t.Fatalf("failed fits: %+v", res.Fits.Failed)
+	if len(res.Failed) != 0 {
+		t.Fatalf("failed fits: %+v", res.Failed)
 	}
 	if len(res.Inputs) != len(paths) {
 		t.Errorf("%d inputs recorded, want %d", len(res.Inputs), len(paths))
@@ -95,7 +96,7 @@ func TestCampaignDeterministic(t *testing.T) {
 	paths := writeCampaignFiles(t, dir, 12, 1)
 	outs := [2]string{filepath.Join(t.TempDir(), "a"), filepath.Join(t.TempDir(), "b")}
 	for _, out := range outs {
-		res, err := Campaign(paths, campaignOpts())
+		res, err := campaign.Run(paths, campaignOpts())
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -137,7 +138,7 @@ func TestWriteCampaignFiles(t *testing.T) {
 			stages = append(stages, stage)
 		}
 	}}
-	files, err := WriteCampaign(out, res, opts)
+	files, err := WriteCampaign(out, res.Result, opts)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -161,7 +162,7 @@ func TestWriteCampaignFiles(t *testing.T) {
 			t.Errorf("%s not written", w)
 		}
 	}
-	if n := len(res.Fits.Results); len(files) != 8+2*(n+2) {
+	if n := len(res.Results); len(files) != 8+2*(n+2) {
 		t.Errorf("%d files written, want %d", len(files), 8+2*(n+2))
 	}
 	// No temporary files left behind.
@@ -173,22 +174,22 @@ func TestWriteCampaignFiles(t *testing.T) {
 	})
 	// A second run without Force refuses and changes nothing.
 	before, _ := os.ReadFile(filepath.Join(out, FileJSON))
-	if _, err := WriteCampaign(out, res, CampaignOptions{}); !errors.Is(err, ErrExists) {
+	if _, err := WriteCampaign(out, res.Result, CampaignOptions{}); !errors.Is(err, ErrExists) {
 		t.Errorf("rewrite without Force: %v, want ErrExists", err)
 	}
 	after, _ := os.ReadFile(filepath.Join(out, FileJSON))
 	if !bytes.Equal(before, after) {
 		t.Error("refused run changed results.json")
 	}
-	if _, err := WriteCampaign(out, res, CampaignOptions{Force: true}); err != nil {
+	if _, err := WriteCampaign(out, res.Result, CampaignOptions{Force: true}); err != nil {
 		t.Errorf("rewrite with Force: %v", err)
 	}
 	// An input inside the output folder with an output's name is never replaced.
 	inDir := filepath.Dir(paths[0])
 	input := filepath.Join(inDir, FileCSV)
 	os.WriteFile(input, []byte("depth_mm,C_wt%\n0.1,0.5\n"), 0o644)
-	res.Inputs = append(res.Inputs, InputFile{Name: input})
-	if _, err := WriteCampaign(inDir, res, CampaignOptions{Force: true}); !errors.Is(err, ErrWouldOverwriteInput) {
+	res.Inputs = append(res.Inputs, campaign.InputFile{Name: input})
+	if _, err := WriteCampaign(inDir, res.Result, CampaignOptions{Force: true}); !errors.Is(err, ErrWouldOverwriteInput) {
 		t.Errorf("writing over an input: %v, want ErrWouldOverwriteInput", err)
 	}
 	if b, _ := os.ReadFile(input); string(b) != "depth_mm,C_wt%\n0.1,0.5\n" {
@@ -206,15 +207,15 @@ func TestCampaignFS(t *testing.T) {
 			stages = append(stages, stage)
 		}
 	}
-	res, err := CampaignFS(os.DirFS(dir), o)
+	res, err := campaign.RunFS(os.DirFS(dir), o)
 	if err != nil {
 		t.Fatal(err)
 	}
 	if got := strings.Join(stages, ","); got != "read,fit,arrhenius" {
 		t.Errorf("progress stages %s", got)
 	}
-	if len(res.Fits.Results) != 9 || len(res.Parts) != 1 {
-		t.Errorf("%d fits, %d parts", len(res.Fits.Results), len(res.Parts))
+	if len(res.Results) != 9 || len(res.Parts) != 1 {
+		t.Errorf("%d fits, %d parts", len(res.Results), len(res.Parts))
 	}
 	for _, in := range res.Inputs {
 		if filepath.IsAbs(in.Name) || len(in.SHA256) != 64 {
@@ -224,13 +225,13 @@ func TestCampaignFS(t *testing.T) {
 	// The same id in two files is an error naming both.
 	b, _ := os.ReadFile(filepath.Join(dir, "L1-880-1.csv"))
 	fsys := fstest.MapFS{"a/one.csv": {Data: b}, "b/two.csv": {Data: b}}
-	if _, err := CampaignFS(fsys, campaignOpts()); !errors.Is(err, profile.ErrDuplicate) || !strings.Contains(err.Error(), "a/one.csv") {
+	if _, err := campaign.RunFS(fsys, campaignOpts()); !errors.Is(err, profile.ErrDuplicate) || !strings.Contains(err.Error(), "a/one.csv") {
 		t.Errorf("duplicate ids: %v", err)
 	}
-	if _, err := CampaignFS(fstest.MapFS{"book.xlsx": {Data: []byte("PK")}}, campaignOpts()); !errors.Is(err, fit.ErrBadInput) {
+	if _, err := campaign.RunFS(fstest.MapFS{"book.xlsx": {Data: []byte("PK")}}, campaignOpts()); !errors.Is(err, fit.ErrBadInput) {
 		t.Errorf("workbook in FS: %v", err)
 	}
-	if _, err := CampaignFS(fstest.MapFS{"notes.md": {Data: []byte("x")}}, campaignOpts()); err == nil {
+	if _, err := campaign.RunFS(fstest.MapFS{"notes.md": {Data: []byte("x")}}, campaignOpts()); err == nil {
 		t.Error("no profile files: no error")
 	}
 }
@@ -240,15 +241,15 @@ func TestCampaignBadInput(t *testing.T) {
 	paths := writeCampaignFiles(t, dir, 14, 1)
 	o := campaignOpts()
 	o.References = []string{"unobtainium-in-Fe"}
-	if _, err := Campaign(paths, o); !errors.Is(err, fit.ErrBadInput) {
+	if _, err := campaign.Run(paths, o); !errors.Is(err, fit.ErrBadInput) {
 		t.Errorf("unknown reference: %v", err)
 	}
-	if _, err := Campaign(nil, campaignOpts()); !errors.Is(err, fit.ErrBadInput) {
+	if _, err := campaign.Run(nil, campaignOpts()); !errors.Is(err, fit.ErrBadInput) {
 		t.Errorf("no inputs: %v", err)
 	}
 	bad := filepath.Join(dir, "bad.csv")
 	os.WriteFile(bad, []byte("depth_mm,C_wt%\n0.1,abc\n"), 0o644)
-	_, err := Campaign([]string{bad}, campaignOpts())
+	_, err := campaign.Run([]string{bad}, campaignOpts())
 	var pe *profile.Error
 	if !errors.As(err, &pe) || pe.Line != 2 {
 		t.Errorf("bad cell: %v (want a profile.Error at line 2)", err)
@@ -263,7 +264,7 @@ func TestCampaignPartWithoutCalibration(t *testing.T) {
 	other := strings.Replace(strings.Replace(string(b), "# lot: L1", "# lot: L9", 1), "# id: part-1", "# id: part-9", 1)
 	p9 := filepath.Join(dir, "part-9.csv")
 	os.WriteFile(p9, []byte(other), 0o644)
-	res, err := Campaign(append(paths, p9), campaignOpts())
+	res, err := campaign.Run(append(paths, p9), campaignOpts())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -278,31 +279,6 @@ func TestCampaignPartWithoutCalibration(t *testing.T) {
 	}
 	if !found {
 		t.Error("part-9 not reported")
-	}
-}
-
-func TestUnknownOf(t *testing.T) {
-	for _, c := range []struct {
-		meta    string
-		T, time float64
-		want    string
-		err     bool
-	}{
-		{"", 1200, 3600, "", false},
-		{"no", 1200, 3600, "", false},
-		{"temperature", 0, 3600, "temperature", false},
-		{"Time", 1200, 0, "time", false},
-		{"yes", 0, 3600, "temperature", false},
-		{"1", 1200, 0, "time", false},
-		{"true", 1200, 3600, "temperature", false},
-		{"yes", 0, 0, "", true},
-		{"maybe", 1200, 3600, "", true},
-	} {
-		p := profile.Profile{Temperature: c.T, Time: c.time, Meta: map[string]string{"unknown": c.meta}}
-		got, err := unknownOf(&p)
-		if got != c.want || (err != nil) != c.err {
-			t.Errorf("unknown=%q T=%g t=%g: %q, %v", c.meta, c.T, c.time, got, err)
-		}
 	}
 }
 
@@ -321,23 +297,6 @@ func TestCampaignSummary(t *testing.T) {
 	}
 }
 
-func ExampleCampaignFS() {
-	// The CLI's demo runs this on its embedded files; here a folder of the
-	// module's demo campaign stands in.
-	res, err := CampaignFS(os.DirFS("../testdata/demo"), CampaignOptions{Fit: fit.Options{CI: "wald"}})
-	if err != nil {
-		fmt.Println(err)
-		return
-	}
-	fmt.Println(len(res.Fits.Results), "profiles fitted,", len(res.Lines.Lines), "Arrhenius lines")
-	for _, p := range res.Parts {
-		fmt.Println("back-calculated:", p.ID, p.SolveFor, p.Solution != nil)
-	}
-	// Output:
-	// 25 profiles fitted, 2 Arrhenius lines
-	// back-calculated: pinion-7731 temperature true
-}
-
 func TestCampaignFolder(t *testing.T) {
 	// A folder stands for its profile files; hidden files, spreadsheet lock
 	// files and other extensions are skipped, as profile.ReadAll does.
@@ -347,7 +306,7 @@ func TestCampaignFolder(t *testing.T) {
 	os.WriteFile(filepath.Join(dir, "~$lock.xlsx"), []byte("junk"), 0o644)
 	os.WriteFile(filepath.Join(dir, "notes.md"), []byte("junk"), 0o644)
 	os.Mkdir(filepath.Join(dir, "sub"), 0o755)
-	res, err := Campaign([]string{dir}, campaignOpts())
+	res, err := campaign.Run([]string{dir}, campaignOpts())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -359,24 +318,8 @@ func TestCampaignFolder(t *testing.T) {
 			t.Errorf("%s should have been skipped", in.Name)
 		}
 	}
-	if _, err := Campaign([]string{filepath.Join(dir, "missing.csv")}, campaignOpts()); err == nil {
+	if _, err := campaign.Run([]string{filepath.Join(dir, "missing.csv")}, campaignOpts()); err == nil {
 		t.Error("missing file: no error")
-	}
-}
-
-func TestQuantityOf(t *testing.T) {
-	for _, c := range []struct {
-		p    profile.Profile
-		want string
-	}{
-		{profile.Profile{Quantity: "N"}, "N"},
-		{profile.Profile{ValueName: "C_wt%"}, "C"},
-		{profile.Profile{ValueName: "carbon (wt%)"}, "carbon"},
-		{profile.Profile{ValueName: "HV0.5"}, "HV0.5"},
-	} {
-		if got := quantityOf(&c.p); got != c.want {
-			t.Errorf("quantityOf(%+v) = %q, want %q", c.p, got, c.want)
-		}
 	}
 }
 
@@ -388,12 +331,12 @@ func TestCampaignOneLineAndFailures(t *testing.T) {
 	os.WriteFile(short, []byte("# id: S1\n# lot: L1\n# temperature: 900 C\n# time: 4 h\ndepth_mm,C_wt%\n0.1,0.8\n0.3,0.5\n0.6,0.3\n"), 0o644)
 	o := campaignOpts()
 	o.By = "none"
-	res, err := Campaign(append(paths, short), o)
+	res, err := campaign.Run(append(paths, short), o)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(res.Fits.Failed) != 1 || res.Fits.Failed[0].ID != "S1" || res.Fits.Failed[0].Kind != "bad input" {
-		t.Errorf("failed: %+v", res.Fits.Failed)
+	if len(res.Failed) != 1 || res.Failed[0].ID != "S1" || res.Failed[0].Kind != "bad input" {
+		t.Errorf("failed: %+v", res.Failed)
 	}
 	if res.Lines == nil || len(res.Lines.Lines) != 1 || res.Lines.Lines[0].Group != "" {
 		t.Fatalf("one line through all profiles expected: %+v", res.Lines)
@@ -419,7 +362,7 @@ func TestCampaignOneLineAndFailures(t *testing.T) {
 		t.Error("HTML: failed profile missing or an empty lots section")
 	}
 	var sum bytes.Buffer
-	res.WriteSummary(&sum, TextOptions{NoCautions: true})
+	(&CampaignReport{Result: res}).WriteSummary(&sum, TextOptions{NoCautions: true})
 	if !strings.Contains(sum.String(), "not fitted: S1") || strings.Contains(sum.String(), "Cautions") {
 		t.Errorf("summary:\n%s", sum.String())
 	}

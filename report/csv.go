@@ -90,7 +90,7 @@ func (f Fits) WriteCSV(w io.Writer) error {
 		}
 		row = append(row, r.ValueUnit, strconv.Itoa(s.N), strconv.Itoa(s.DOF), csvNumber(s.RSS), csvNumber(s.RMSE),
 			csvNumber(s.R2), csvNumber(s.AICc), csvNumber(s.Chi2Red), csvNumber(s.Chi2P), csvNumber(s.RunsP), csvNumber(s.Cond),
-			csvNumber(r.CILevel), r.CIMethod, r.Covariance, strconv.FormatBool(r.Converged), r.Source, r.Material,
+			csvNumber(r.CILevel), r.CIMethod.String(), r.Covariance.String(), strconv.FormatBool(r.Converged), r.Source, r.Material,
 			strings.Join(codes, ";"), "")
 		if err := cw.Write(row); err != nil {
 			return err

@@ -1,15 +1,17 @@
 package report
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"strings"
 
-	"github.com/fickfit/fickfit/arrhenius"
-	"github.com/fickfit/fickfit/fit"
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"github.com/fickfit/fickfit/arrhenius"
+	"github.com/fickfit/fickfit/fit"
 )
 
 // PartPoint is a back-calculated part drawn on the Arrhenius plot: its
@@ -34,15 +36,13 @@ type ArrheniusPlot struct {
 // invT is the abscissa of the Arrhenius plot: 10⁴/T in K⁻¹.
 func invT(T float64) float64 { return 1e4 / T }
 
-// pointCI returns a point's interval of D: the profile fit's own when
-// given, else the Wald interval exp(ln D ± 1.96·se).
-func pointCI(p arrhenius.Point) (lo, hi float64) {
-	if p.CI.Lo > 0 && p.CI.Hi > 0 && finite(p.CI.Lo) && finite(p.CI.Hi) {
-		return p.CI.Lo, p.CI.Hi
-	}
-	if p.VarLnD > 0 {
-		h := 1.959964 * math.Sqrt(p.VarLnD) // normal 97.5 % quantile
-		return math.Exp(p.LnD - h), math.Exp(p.LnD + h)
+// pointCI returns the ends of a point's error bar at the line's level
+// (arrhenius.Point.Interval), or NaN for both when the interval is open
+// on either side: a bar needs both ends, and an open end is not invented.
+func pointCI(p arrhenius.Point, level float64) (lo, hi float64) {
+	ci := p.Interval(level)
+	if ci.Lo > 0 && ci.Hi > 0 && finite(ci.Lo) && finite(ci.Hi) {
+		return ci.Lo, ci.Hi
 	}
 	return math.NaN(), math.NaN()
 }
@@ -81,7 +81,7 @@ func ArrheniusFigure(a ArrheniusPlot, o FigureOptions) (*Figure, error) {
 		for _, p := range l.Points {
 			Ts = append(Ts, p.T)
 			Ds = append(Ds, math.Exp(p.LnD))
-			if lo, hi := pointCI(p.Point); finite(lo) {
+			if lo, hi := pointCI(p.Point, l.Level); finite(lo) {
 				Ds = append(Ds, lo, hi)
 			}
 		}
@@ -96,7 +96,7 @@ func ArrheniusFigure(a ArrheniusPlot, o FigureOptions) (*Figure, error) {
 		}
 	}
 	if len(Ts) == 0 {
-		return nil, fmt.Errorf("Arrhenius figure: no points to draw")
+		return nil, errors.New("no points to draw in the Arrhenius figure")
 	}
 	xmin, xmax := math.Inf(1), math.Inf(-1)
 	for _, T := range Ts {
@@ -199,7 +199,7 @@ func ArrheniusFigure(a ArrheniusPlot, o FigureOptions) (*Figure, error) {
 		px, py, plo, phi := make([]float64, len(l.Points)), make([]float64, len(l.Points)), make([]float64, len(l.Points)), make([]float64, len(l.Points))
 		for k, pt := range l.Points {
 			px[k], py[k] = invT(pt.T), math.Exp(pt.LnD)
-			plo[k], phi[k] = pointCI(pt.Point)
+			plo[k], phi[k] = pointCI(pt.Point, l.Level)
 		}
 		solid := draw.LineStyle{Color: col, Width: 1.3}
 		dashed := draw.LineStyle{Color: col, Width: 0.8, Dashes: []vg.Length{2, 2}}
@@ -339,7 +339,7 @@ func LotsFigure(cmp *arrhenius.Comparison, lines []arrhenius.Line, o FigureOptio
 		s := series{name: groupLabel(l)}
 		for _, pt := range l.Points {
 			dref, _ := ref.DAt(pt.T)
-			lo, hi := pointCI(pt.Point)
+			lo, hi := pointCI(pt.Point, l.Level)
 			s.t = append(s.t, u.FromKelvin(pt.T))
 			s.r = append(s.r, math.Exp(pt.LnD)/dref)
 			s.lo, s.hi = append(s.lo, lo/dref), append(s.hi, hi/dref)

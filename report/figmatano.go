@@ -1,16 +1,19 @@
 package report
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"sort"
 	"strings"
 
-	"github.com/fickfit/fickfit/fit/matano"
-	"github.com/fickfit/fickfit/profile"
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"github.com/fickfit/fickfit/campaign"
+	"github.com/fickfit/fickfit/fit/matano"
+	"github.com/fickfit/fickfit/profile"
 )
 
 // matanoNearEnd is the fraction of the way between the end compositions
@@ -48,10 +51,10 @@ func matanoMethodName(m string) string {
 // finite positive D, or a profile that is not the one analysed.
 func MatanoFigure(r *matano.Result, p *profile.Profile, o FigureOptions) (*Figure, error) {
 	if r == nil {
-		return nil, fmt.Errorf("Matano figure: no result to draw")
+		return nil, errors.New("no Matano result to draw")
 	}
 	if p != nil && p.ID != "" && r.ID != "" && p.ID != r.ID {
-		return nil, fmt.Errorf("Matano figure of %s: the profile given is %s, not the one analysed; pass the profile the result came from", r.ID, p.ID)
+		return nil, fmt.Errorf("figure of couple %s: the profile given is %s, not the one analysed; pass the profile the result came from", r.ID, p.ID)
 	}
 	s := r.Smooth
 	if !usableSmooth(s) {
@@ -68,7 +71,7 @@ func MatanoFigure(r *matano.Result, p *profile.Profile, o FigureOptions) (*Figur
 		}
 	}
 	if len(px) == 0 && s == nil {
-		return nil, fmt.Errorf("Matano figure of %s: neither measured points nor a smoothing curve to draw; pass the couple's profile", r.ID)
+		return nil, fmt.Errorf("figure of couple %s: neither measured points nor a smoothing curve to draw; pass the couple's profile", r.ID)
 	}
 
 	// D(C) points sorted by C; the drawable ones have a finite positive D.
@@ -115,7 +118,7 @@ func MatanoFigure(r *matano.Result, p *profile.Profile, o FigureOptions) (*Figur
 		if nNonPositive > 0 {
 			why = "no point has a positive D (a logarithmic axis cannot show D ≤ 0)"
 		}
-		return nil, fmt.Errorf("Matano figure of %s: %s; check the profile and the requested concentrations", r.ID, why)
+		return nil, fmt.Errorf("figure of couple %s: %s; check the profile and the requested concentrations", r.ID, why)
 	}
 	haveBand := false
 	for i := range dlo {
@@ -361,7 +364,7 @@ func usableSmooth(s *matano.Smooth) bool {
 func matanoValueLabel(p *profile.Profile) string {
 	q, unit := "", ""
 	if p != nil {
-		q, unit = quantityOf(p), strings.TrimSpace(p.ValueUnit)
+		q, unit = campaign.QuantityOf(p), strings.TrimSpace(p.ValueUnit)
 	}
 	if q == "" {
 		q = "C"

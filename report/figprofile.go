@@ -6,10 +6,11 @@ import (
 	"sort"
 	"strings"
 
-	"github.com/fickfit/fickfit/fit"
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"github.com/fickfit/fickfit/fit"
 )
 
 // FigureOptions control the figures. The zero value writes temperatures in

@@ -12,9 +12,10 @@ import (
 	"strings"
 	"testing"
 
+	"gonum.org/v1/plot"
+
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/fit"
-	"gonum.org/v1/plot"
 )
 
 // wellFormed fails the test unless b is well-formed XML.
@@ -262,17 +263,21 @@ func TestFileSafe(t *testing.T) {
 func TestPointCIAndLabels(t *testing.T) {
 	// With the fit's own interval it is used; without, a Wald interval on ln D.
 	p := arrhenius.Point{LnD: math.Log(2e-11), VarLnD: 0.01, CI: fit.Interval{Lo: 1.8e-11, Hi: 2.3e-11}}
-	if lo, hi := pointCI(p); lo != 1.8e-11 || hi != 2.3e-11 {
+	if lo, hi := pointCI(p, 0.95); lo != 1.8e-11 || hi != 2.3e-11 {
 		t.Errorf("own interval: %g %g", lo, hi)
 	}
 	p.CI = fit.Interval{}
-	lo, hi := pointCI(p)
-	// exp(±1.959964·0.1), normal 97.5 % quantile (common practice, no source).
-	if math.Abs(lo/2e-11-math.Exp(-0.1959964)) > 1e-12 || math.Abs(hi/2e-11-math.Exp(0.1959964)) > 1e-12 {
+	lo, hi := pointCI(p, 0.95)
+	// exp(±1.959963984540054·0.1), normal 97.5 % quantile (common practice, no source).
+	// The level is the line's: at 90 % the bar is exp(±1.644854·0.1).
+	if lo, _ := pointCI(p, 0.90); math.Abs(lo/2e-11-math.Exp(-0.1644854)) > 1e-7 {
+		t.Errorf("Wald interval at 90 %%: %g", lo)
+	}
+	if math.Abs(lo/2e-11-math.Exp(-0.1959963984540054)) > 1e-12 || math.Abs(hi/2e-11-math.Exp(0.1959963984540054)) > 1e-12 {
 		t.Errorf("Wald interval: %g %g", lo, hi)
 	}
 	p.VarLnD = math.NaN()
-	if lo, _ := pointCI(p); !math.IsNaN(lo) {
+	if lo, _ := pointCI(p, 0.95); !math.IsNaN(lo) {
 		t.Error("no variance: interval should be undetermined")
 	}
 	for _, c := range []struct {

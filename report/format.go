@@ -332,6 +332,27 @@ func ParseTempUnit(s string) (TempUnit, error) {
 	return "", fmt.Errorf("unknown temperature unit %q: use C, K or F", s)
 }
 
+// String is the unit's flag form: "C", "K" or "F" ("" is "C").
+func (u TempUnit) String() string {
+	if u == "" {
+		return string(Celsius)
+	}
+	return string(u)
+}
+
+// MarshalText writes the unit's flag form.
+func (u TempUnit) MarshalText() ([]byte, error) { return []byte(u.String()), nil }
+
+// UnmarshalText reads a unit as ParseTempUnit does.
+func (u *TempUnit) UnmarshalText(b []byte) error {
+	v, err := ParseTempUnit(string(b))
+	if err != nil {
+		return err
+	}
+	*u = v
+	return nil
+}
+
 // Symbol is the unit's symbol: "°C", "K", "°F".
 func (u TempUnit) Symbol() string {
 	switch u {

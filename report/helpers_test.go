@@ -9,7 +9,6 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/fickfit/fickfit/fit"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -107,18 +106,6 @@ func campaignProfiles(seed uint64, reps int) []profile.Profile {
 	u := synth{id: "part-1", lot: "L1", tempC: 926, hours: 6, cs: 0.95, c0: 0.2, unknown: "temperature", hideTemp: true}
 	ps = append(ps, u.profile(rng))
 	return ps
-}
-
-// fitted fits profiles with the given options and fails the test on any error.
-func fitted(t testing.TB, ps []profile.Profile, o fit.Options) []*fit.Result {
-	t.Helper()
-	rs, errs := fit.FitAll(ps, o)
-	for i, err := range errs {
-		if err != nil {
-			t.Fatalf("fit %s: %v", ps[i].ID, err)
-		}
-	}
-	return rs
 }
 
 // writeCampaignFiles writes an invented campaign as input files in dir:

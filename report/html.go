@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"github.com/fickfit/fickfit/arrhenius"
+	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/fit"
 )
 
@@ -40,10 +41,10 @@ type htmlView struct {
 	Version               string
 	Facts                 [][2]string
 	Profiles              []htmlProfile
-	Failed                []Failure
+	Failed                []fit.Failure
 	ArrheniusSVG, LotsSVG template.HTML
 	Lines                 []htmlLine
-	LineErrors            []GroupFailure
+	LineErrors            []campaign.GroupFailure
 	Verdict               string
 	Tests                 [][4]string
 	Ratios                []htmlRatio
@@ -53,7 +54,7 @@ type htmlView struct {
 	Notes                 []string
 	Methods               []MethodNote
 	Cautions              []string
-	Inputs                []InputFile
+	Inputs                []campaign.InputFile
 	Options               [][2]string
 	Level                 string
 	TempUnit              string
@@ -69,12 +70,12 @@ type figureSet struct {
 }
 
 // makeFigures builds every figure of the campaign.
-func (res *CampaignResult) makeFigures(o CampaignOptions) (*figureSet, []string) {
+func (res *CampaignReport) makeFigures(o CampaignOptions) (*figureSet, []string) {
 	fs := &figureSet{profiles: map[string]*Figure{}, svg: map[string]string{}}
 	var problems []string
 	fo := FigureOptions{TempUnit: o.TempUnit}
 	used := map[string]bool{"arrhenius": true, "lots": true}
-	for _, r := range res.Fits.Results {
+	for _, r := range res.Results {
 		f, err := ProfileFigure(r, fo)
 		if err != nil {
 			problems = append(problems, r.ID+": "+err.Error())
@@ -107,9 +108,9 @@ func (res *CampaignResult) makeFigures(o CampaignOptions) (*figureSet, []string)
 }
 
 // all lists the figures in report order.
-func (fs *figureSet) all(res *CampaignResult) []*Figure {
+func (fs *figureSet) all(res *CampaignReport) []*Figure {
 	var out []*Figure
-	for _, r := range res.Fits.Results {
+	for _, r := range res.Results {
 		if f := fs.profiles[r.ID]; f != nil {
 			out = append(out, f)
 		}
@@ -126,7 +127,7 @@ func (fs *figureSet) all(res *CampaignResult) []*Figure {
 // WriteHTML writes the campaign as one self-contained HTML file: inline
 // CSS and SVG, no scripts, no fonts or anything else fetched from a
 // network; readable on screen and when printed.
-func (res *CampaignResult) WriteHTML(w io.Writer, o CampaignOptions) error {
+func (res *CampaignReport) WriteHTML(w io.Writer, o CampaignOptions) error {
 	fs, _ := res.makeFigures(o)
 	for _, f := range fs.all(res) {
 		s, err := f.inlineSVG()
@@ -138,7 +139,7 @@ func (res *CampaignResult) WriteHTML(w io.Writer, o CampaignOptions) error {
 	return res.writeHTML(w, o, fs)
 }
 
-func (res *CampaignResult) writeHTML(w io.Writer, o CampaignOptions, fs *figureSet) error {
+func (res *CampaignReport) writeHTML(w io.Writer, o CampaignOptions, fs *figureSet) error {
 	v := res.htmlView(o, fs)
 	bw := bufio.NewWriter(w)
 	if err := htmlTemplate.Execute(bw, v); err != nil {
@@ -147,20 +148,20 @@ func (res *CampaignResult) writeHTML(w io.Writer, o CampaignOptions, fs *figureS
 	return bw.Flush()
 }
 
-func (res *CampaignResult) htmlView(o CampaignOptions, fs *figureSet) htmlView {
+func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 	u := o.TempUnit
 	level := res.Options.Level
 	v := htmlView{Title: "Diffusion campaign report", Version: res.Version, Level: Level(level), TempUnit: u.Symbol(),
-		Failed: res.Fits.Failed, LineErrors: res.LineErrors, ComparisonError: res.ComparisonError,
-		Notes: res.Notes, Methods: MethodNotes, Cautions: res.Cautions, Inputs: res.Inputs, Options: res.Options.pairs(),
+		Failed: res.Failed, LineErrors: res.LineErrors, ComparisonError: res.ComparisonError,
+		Notes: res.Notes, Methods: MethodNotes(), Cautions: res.Cautions, Inputs: res.Inputs, Options: auditPairs(res.audit()),
 		PartCautions: arrhenius.Cautions}
 	v.Lead = fmt.Sprintf("%d profiles from %d input files; %d fitted with the %s model, %s intervals by %s.",
-		len(res.Profiles), len(res.Inputs), len(res.Fits.Results), res.Options.Model, Level(level), CIMethodDescription(res.Options.CIMethod))
+		len(res.Profiles), len(res.Inputs), len(res.Results), res.Options.Model, Level(level), CIMethodDescription(fit.CIMethod(res.Options.CIMethod)))
 	unknown := map[string]bool{}
 	for _, p := range res.Parts {
 		unknown[p.ID] = true
 	}
-	for _, r := range res.Fits.Results {
+	for _, r := range res.Results {
 		hp := htmlProfile{ID: r.ID, Anchor: "p-" + fileSafe(r.ID), Lot: r.Lot, Source: r.Source,
 			Conditions: conditionsText(r, u), Short: shortConditions(r, u), Model: ModelDescription(r.Model), ModelName: r.Model,
 			Interval: Level(r.CILevel) + " CI by " + CIMethodDescription(r.CIMethod), R2: r2Text(r.Stats.R2),

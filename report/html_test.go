@@ -42,7 +42,7 @@ func TestHTMLSelfContained(t *testing.T) {
 		}
 	}
 	// Every figure is inline: profiles, Arrhenius, lots.
-	if n, want := strings.Count(s, "<svg "), len(res.Fits.Results)+2; n != want {
+	if n, want := strings.Count(s, "<svg "), len(res.Results)+2; n != want {
 		t.Errorf("%d inline SVG figures, want %d", n, want)
 	}
 	if strings.Contains(s, "<?xml") {
@@ -146,8 +146,8 @@ func TestHTMLInChromium(t *testing.T) {
 			t.Errorf("rendered DOM lacks %q", want)
 		}
 	}
-	if n := strings.Count(br.dom, "<svg "); n != len(res.Fits.Results)+2 {
-		t.Errorf("rendered DOM has %d SVG figures, want %d", n, len(res.Fits.Results)+2)
+	if n := strings.Count(br.dom, "<svg "); n != len(res.Results)+2 {
+		t.Errorf("rendered DOM has %d SVG figures, want %d", n, len(res.Results)+2)
 	}
 	fh, err := os.Open(br.shot)
 	if err != nil {

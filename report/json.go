@@ -8,14 +8,14 @@ import (
 	"github.com/fickfit/fickfit/fit"
 )
 
-// fitsDoc is the JSON document of the fit command (DESIGN §5, contract):
+// fitsDoc is the JSON document of the fit command (docs/output.md, contract):
 // {"fickfit_version", "fits":[…], "failed":[…], "cautions":[…]}. Keys are
 // stable; numbers are SI with the unit in the key or a "unit" field; an
 // open interval end is null.
 type fitsDoc struct {
 	Version  string        `json:"fickfit_version"`
 	Fits     []*fit.Result `json:"fits"`
-	Failed   []Failure     `json:"failed"`
+	Failed   []fit.Failure `json:"failed"`
 	Cautions []string      `json:"cautions"`
 }
 
@@ -26,7 +26,7 @@ func (f Fits) WriteJSON(w io.Writer) error {
 		Version:  versionOr(f.Version),
 		Fits:     jsonResults(f.Results),
 		Failed:   nonNil(f.Failed),
-		Cautions: FitCautions,
+		Cautions: fit.Cautions,
 	})
 }
 

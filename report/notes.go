@@ -1,5 +1,7 @@
 package report
 
+import "github.com/fickfit/fickfit/fit"
+
 // MethodNote is one paragraph of the method notes, with its published source.
 type MethodNote struct {
 	Topic  string
@@ -9,11 +11,23 @@ type MethodNote struct {
 
 // MethodNotes say how the numbers were obtained, each with the published
 // source of the method. Section numbers marked "from memory" were not
-// checked against a copy.
-var MethodNotes = []MethodNote{
-	{"Diffusion models",
-		"Each profile is fitted with a closed-form solution of Fick's second law for a semi-infinite or finite body: constant surface concentration (erf), surface mass transfer, thin-film source, diffusion couple or finite slab, with D independent of concentration and depth.",
-		"J. Crank, The Mathematics of Diffusion, 2nd ed., Oxford University Press, 1975, chapters 2–4 (chapter numbers from memory)"},
+// checked against a copy. The first note lists the closed-form models of
+// the fit registry.
+func MethodNotes() []MethodNote {
+	var titles []string
+	for _, in := range fit.Models() {
+		if in.InAuto {
+			titles = append(titles, in.Title)
+		}
+	}
+	models := MethodNote{"Diffusion models",
+		"Each profile is fitted with a closed-form solution of Fick's second law for a semi-infinite or finite body: " + orList(titles) +
+			", with D independent of concentration and depth.",
+		"J. Crank, The Mathematics of Diffusion, 2nd ed., Oxford University Press, 1975, chapters 2–4 (chapter numbers from memory)"}
+	return append([]MethodNote{models}, methodNotes...)
+}
+
+var methodNotes = []MethodNote{
 	{"Least squares",
 		"Parameters are estimated by weighted nonlinear least squares (Levenberg–Marquardt with Moré's scaling), D on the logarithmic scale so that it stays positive; the solver is checked against the NIST Statistical Reference Datasets for nonlinear regression.",
 		"J. J. Moré, The Levenberg–Marquardt algorithm: implementation and theory, in Numerical Analysis (ed. G. A. Watson), Springer LNM 630, 1978; NIST StRD, Nonlinear Regression"},

@@ -1,9 +1,9 @@
 // Package report writes fickfit's results for people and for programs:
 // aligned text for the terminal, JSON and CSV for scripts and lab
 // databases, SVG/PNG figures, an XLSX workbook with native charts and a
-// self-contained HTML report. Campaign runs the whole job — read, fit,
-// Arrhenius per lot, lot comparison, back-calculation of unknown parts —
-// and WriteCampaign writes the report folder.
+// self-contained HTML report. Every result kind is a Document (WriteText,
+// WriteJSON, WriteCSV; see document.go and docs/output.md); WriteCampaign
+// writes the report folder of a campaign computed by package campaign.
 //
 // Internal units are SI; report converts only on the way out (see
 // format.go). Machine outputs (JSON, CSV) carry SI numbers in full
@@ -15,11 +15,11 @@
 package report
 
 import (
-	"errors"
 	"fmt"
-	"github.com/fickfit/fickfit"
 	"sort"
 	"strings"
+
+	"github.com/fickfit/fickfit"
 
 	"github.com/fickfit/fickfit/fit"
 	"github.com/fickfit/fickfit/profile"
@@ -28,38 +28,11 @@ import (
 // DefaultVersion is written as the software version when the caller gives none.
 const DefaultVersion = fickfit.Version
 
-// FitCautions accompany every set of fitted diffusion coefficients.
-var FitCautions = []string{
-	"Each D is the estimate of a model: the stated solution of Fick's second law (constant D, the stated boundary condition and geometry) is assumed to describe the profile. The warnings say where these data do not support that.",
-	"Intervals cover the statistical scatter of the measured points only, not bias of the measurement method, surface preparation or the depth scale.",
-	"Verify by metallography (microstructure, microhardness traverse or chemical profile) before acting on a number.",
-	"The applicable specifications decide acceptance; defer to local codes and to licensed engineering judgement.",
-}
-
-// Failure is a profile that gave no fit.
-type Failure struct {
-	ID     string `json:"id"`
-	Source string `json:"source,omitempty"`
-	Lot    string `json:"lot,omitempty"`
-	// Kind is "bad input" (exit status 2) or "no answer" (exit status 1).
-	Kind  string `json:"kind"`
-	Error string `json:"error"`
-}
-
-// NewFailure describes the error of fitting profile p.
-func NewFailure(p *profile.Profile, err error) Failure {
-	kind := "no answer"
-	if errors.Is(err, fit.ErrBadInput) {
-		kind = "bad input"
-	}
-	return Failure{ID: p.ID, Source: p.Source, Lot: p.Lot, Kind: kind, Error: err.Error()}
-}
-
 // Fits is what the fit writers take: the fitted profiles and the ones that
 // gave no answer, each in input order.
 type Fits struct {
 	Results []*fit.Result
-	Failed  []Failure
+	Failed  []fit.Failure
 	// Version is the software version written into JSON; "" means DefaultVersion.
 	Version string
 }
@@ -71,7 +44,7 @@ func NewFits(ps []profile.Profile, results []*fit.Result, errs []error) Fits {
 	for i := range ps {
 		switch {
 		case i < len(errs) && errs[i] != nil:
-			f.Failed = append(f.Failed, NewFailure(&ps[i], errs[i]))
+			f.Failed = append(f.Failed, fit.NewFailure(&ps[i], errs[i]))
 		case i < len(results) && results[i] != nil:
 			f.Results = append(f.Results, results[i])
 		}
@@ -86,46 +59,35 @@ func versionOr(v string) string {
 	return v
 }
 
-// modelNames describes the models in words for people.
-var modelNames = map[string]string{
-	"erf":          "constant surface concentration (erf solution)",
-	"masstransfer": "surface mass transfer (erfc with surface coefficient)",
-	"thinfilm":     "thin-film source (Gaussian)",
-	"couple":       "diffusion couple of two semi-infinite bodies",
-	"slab":         "finite slab (Fourier series)",
-	"numeric":      "numerical solution with concentration-dependent D",
-}
-
-// ModelDescription is the model's name in words ("constant surface
-// concentration (erf solution)"), or the flag name when not known.
+// ModelDescription is the model's title in words from the fit registry
+// ("constant surface concentration (erf solution)"), or the flag name when
+// the model is not registered.
 func ModelDescription(name string) string {
-	if d, ok := modelNames[name]; ok {
-		return d
+	if in, ok := fit.Lookup(name); ok && in.Title != "" {
+		return in.Title
 	}
 	return name
 }
 
 // ciMethodNames describes the interval methods.
-var ciMethodNames = map[string]string{
-	"wald":                 "Wald (Student t)",
-	"profile":              "profile likelihood",
-	"bootstrap-percentile": "bootstrap percentile",
-	"bootstrap-bca":        "bootstrap BCa",
+var ciMethodNames = map[fit.CIMethod]string{
+	fit.CIWald:                "Wald (Student t)",
+	fit.CIProfile:             "profile likelihood",
+	fit.CIBootstrapPercentile: "bootstrap percentile",
+	fit.CIBootstrapBCa:        "bootstrap BCa",
 }
 
 // CIMethodDescription is the interval method in words.
-func CIMethodDescription(m string) string {
+func CIMethodDescription(m fit.CIMethod) string {
 	if d, ok := ciMethodNames[m]; ok {
 		return d
 	}
-	return m
+	return string(m)
 }
 
-// paramOrder is the canonical order of parameter columns.
-var paramOrder = []string{"D", "Cs", "Cp", "C0", "CL", "CR", "M", "beta", "x0", "xm"}
-
-// paramNames returns the names of every parameter in rs, canonical ones
-// first, then others sorted.
+// paramNames returns the names of every parameter in rs in the order of
+// the fit registry (models by rank, each model's parameters in its own
+// order), then the parameters of unregistered models sorted by name.
 func paramNames(rs []*fit.Result) []string {
 	seen := map[string]bool{}
 	for _, r := range rs {
@@ -134,10 +96,12 @@ func paramNames(rs []*fit.Result) []string {
 		}
 	}
 	var out []string
-	for _, n := range paramOrder {
-		if seen[n] {
-			out = append(out, n)
-			delete(seen, n)
+	for _, in := range fit.Models() {
+		for _, pa := range in.Params {
+			if seen[pa.Name] {
+				out = append(out, pa.Name)
+				delete(seen, pa.Name)
+			}
 		}
 	}
 	var rest []string

@@ -112,8 +112,8 @@ func statsParts(r *fit.Result) []string {
 func r2Text(v float64) string { return Number(v, -4) }
 
 // covarianceText says how the covariance was scaled.
-func covarianceText(c string) string {
-	if c == "absolute" {
+func covarianceText(c fit.Covariance) string {
+	if c == fit.CovAbsolute {
 		return "covariance absolute (σ taken as known)"
 	}
 	return "covariance scaled by χ²red"
@@ -163,7 +163,7 @@ func (f Fits) WriteText(w io.Writer, o TextOptions) error {
 	}
 	if !o.NoCautions {
 		bw.WriteString("\n")
-		writeCautions(bw, FitCautions, o.width())
+		writeCautions(bw, fit.Cautions, o.width())
 	}
 	return bw.Flush()
 }

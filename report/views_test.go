@@ -6,7 +6,7 @@ import (
 	"encoding/json"
 	"errors"
 	"flag"
-	"io"
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -145,14 +145,6 @@ func viewFixMatano(t *testing.T) []*matano.Result {
 	return []*matano.Result{r}
 }
 
-func viewFixFits() []*fit.Result {
-	return []*fit.Result{{
-		ID: "A1", Model: "erf", Converged: true, Temperature: 1198.15, Time: 4 * 3600, CILevel: 0.95, CIMethod: "wald",
-		ValueUnit: "wt%",
-		Params:    []fit.Estimate{{Name: "D", Value: 2.9e-11, Unit: "m2/s", StdErr: 1e-12, CI: fit.Interval{Lo: 2.7e-11, Hi: 3.1e-11}}},
-	}}
-}
-
 // viewAll returns every supported value with a name.
 func viewAll(t *testing.T) []struct {
 	name string
@@ -178,7 +170,7 @@ func viewFlat(s string) string { return strings.Join(strings.Fields(s), " ") }
 func viewTextOf(t *testing.T, v any, o TextOptions) string {
 	t.Helper()
 	var b bytes.Buffer
-	if err := Text(&b, v, o); err != nil {
+	if err := docOf(v).WriteText(&b, o); err != nil {
 		t.Fatal(err)
 	}
 	return b.String()
@@ -365,10 +357,10 @@ func TestViewJSONStable(t *testing.T) {
 	for _, tc := range viewAll(t) {
 		t.Run(tc.name, func(t *testing.T) {
 			var a, b bytes.Buffer
-			if err := JSON(&a, tc.v); err != nil {
+			if err := docOf(tc.v).WriteJSON(&a); err != nil {
 				t.Fatal(err)
 			}
-			if err := JSON(&b, tc.v); err != nil {
+			if err := docOf(tc.v).WriteJSON(&b); err != nil {
 				t.Fatal(err)
 			}
 			if !bytes.Equal(a.Bytes(), b.Bytes()) {
@@ -392,7 +384,7 @@ func TestViewJSONRoundTrip(t *testing.T) {
 	// Arrhenius: the file a later backcalc reads as its calibration.
 	r := viewFixReport(t)
 	var b bytes.Buffer
-	if err := JSON(&b, r); err != nil {
+	if err := docOf(r).WriteJSON(&b); err != nil {
 		t.Fatal(err)
 	}
 	back, err := arrhenius.ReadReport(&b, "line.json")
@@ -412,7 +404,7 @@ func TestViewJSONRoundTrip(t *testing.T) {
 	// Back-calculation.
 	ss := viewFixSolutions(t)
 	b.Reset()
-	if err := JSON(&b, ss); err != nil {
+	if err := docOf(ss).WriteJSON(&b); err != nil {
 		t.Fatal(err)
 	}
 	var doc struct {
@@ -446,7 +438,7 @@ func TestViewJSONRoundTrip(t *testing.T) {
 	// Wrappers of the other slices, and the comparison as it marshals.
 	keys := func(v any) map[string]json.RawMessage {
 		b.Reset()
-		if err := JSON(&b, v); err != nil {
+		if err := docOf(v).WriteJSON(&b); err != nil {
 			t.Fatal(err)
 		}
 		var m map[string]json.RawMessage
@@ -477,7 +469,7 @@ func TestViewJSONRoundTrip(t *testing.T) {
 	}
 	var empty map[string]json.RawMessage
 	b.Reset()
-	if err := JSON(&b, []*arrhenius.Prediction{}); err != nil {
+	if err := docOf([]*arrhenius.Prediction{}).WriteJSON(&b); err != nil {
 		t.Fatal(err)
 	}
 	if err := json.Unmarshal(b.Bytes(), &empty); err != nil || string(empty["predictions"]) != "[]" {
@@ -549,7 +541,7 @@ func viewExact(t *testing.T, what, s string, want float64) {
 func TestViewCSV(t *testing.T) {
 	csvOf := func(v any) map[string][][]string {
 		var b bytes.Buffer
-		if err := CSV(&b, v); err != nil {
+		if err := docOf(v).WriteCSV(&b); err != nil {
 			t.Fatal(err)
 		}
 		return viewTables(t, b.Bytes())
@@ -617,46 +609,6 @@ func TestViewCSV(t *testing.T) {
 	}
 }
 
-func TestViewFitsDelegate(t *testing.T) {
-	rs := viewFixFits()
-	f := Fits{Results: rs}
-	for _, tc := range []struct {
-		name string
-		view func(io.Writer) error
-		fits func(io.Writer) error
-	}{
-		{"json", func(w io.Writer) error { return JSON(w, rs) }, f.WriteJSON},
-		{"csv", func(w io.Writer) error { return CSV(w, f) }, f.WriteCSV},
-		{"text", func(w io.Writer) error { return Text(w, &f, TextOptions{}) }, func(w io.Writer) error { return f.WriteText(w, TextOptions{}) }},
-	} {
-		var a, b bytes.Buffer
-		if err := tc.view(&a); err != nil {
-			t.Fatal(err)
-		}
-		if err := tc.fits(&b); err != nil {
-			t.Fatal(err)
-		}
-		if a.String() != b.String() || a.Len() == 0 {
-			t.Errorf("%s: views and Fits writers differ", tc.name)
-		}
-	}
-}
-
-func TestViewUnsupported(t *testing.T) {
-	var nilReport *arrhenius.Report
-	for _, v := range []any{42, "text", nil, nilReport, map[string]float64{"Q": 1}, []arrhenius.Line{}} {
-		if err := JSON(io.Discard, v); err == nil {
-			t.Errorf("JSON(%T) gave no error", v)
-		}
-		if err := CSV(io.Discard, v); err == nil {
-			t.Errorf("CSV(%T) gave no error", v)
-		}
-		if err := Text(io.Discard, v, TextOptions{}); err == nil {
-			t.Errorf("Text(%T) gave no error", v)
-		}
-	}
-}
-
 // errWriter fails on the first write.
 type errWriter struct{}
 
@@ -664,38 +616,14 @@ func (errWriter) Write([]byte) (int, error) { return 0, errors.New("disk full") 
 
 func TestViewWriteError(t *testing.T) {
 	ss := viewFixSolutions(t)
-	if err := JSON(errWriter{}, ss); err == nil {
+	if err := docOf(ss).WriteJSON(errWriter{}); err == nil {
 		t.Error("JSON: write error lost")
 	}
-	if err := CSV(errWriter{}, ss); err == nil {
+	if err := docOf(ss).WriteCSV(errWriter{}); err == nil {
 		t.Error("CSV: write error lost")
 	}
-	if err := Text(errWriter{}, ss, TextOptions{}); err == nil {
+	if err := docOf(ss).WriteText(errWriter{}, TextOptions{}); err == nil {
 		t.Error("Text: write error lost")
-	}
-}
-
-func TestViewUnescapeHTML(t *testing.T) {
-	tests := []struct{ in, want string }{
-		{`"p \u003c 0.001"`, `"p < 0.001"`},
-		{`"a \u0026 b \u003e c"`, `"a & b > c"`},
-		{`"\\u003c stays"`, `"\\u003c stays"`}, // an escaped backslash, then plain text
-		{`"\\\u003c"`, `"\\<"`},
-		{`"\u00e9 \n"`, `"\u00e9 \n"`},
-		{`"end\u003`, `"end\u003`},
-	}
-	for _, tc := range tests {
-		if got := string(viewUnescapeHTML([]byte(tc.in))); got != tc.want {
-			t.Errorf("viewUnescapeHTML(%s) = %s, want %s", tc.in, got, tc.want)
-		}
-	}
-	// Strings survive a round trip whatever they hold.
-	for _, s := range []string{"<>&", `\u003c`, "\\<", "x\u2028y", "\"&\""} {
-		b, _ := json.Marshal(s)
-		var back string
-		if err := json.Unmarshal(viewUnescapeHTML(b), &back); err != nil || back != s {
-			t.Errorf("%q: read back %q (%v)", s, back, err)
-		}
 	}
 }
 
@@ -720,7 +648,7 @@ func TestViewNoInterval(t *testing.T) {
 	out = viewTextOf(t, s, TextOptions{})
 	viewMustContain(t, "solution", out, ", no interval", "no interval (two temperatures)")
 	var b bytes.Buffer
-	if err := CSV(&b, s); err != nil {
+	if err := docOf(s).WriteCSV(&b); err != nil {
 		t.Fatal(err)
 	}
 	tb := viewTables(t, b.Bytes())
@@ -770,9 +698,9 @@ func TestViewZeroWidth(t *testing.T) {
 }
 
 // Write one row of the built-in reference table for people.
-func ExampleText() {
+func ExampleReferences_WriteText() {
 	ref, _ := arrhenius.LookupReference("Cu-in-Cu")
-	_ = Text(os.Stdout, ref, TextOptions{Width: 72})
+	_ = References{ref}.WriteText(os.Stdout, TextOptions{Width: 72})
 	// Output:
 	// Reference diffusion data (built-in table; D = D0·exp(−Q/(RT)))
 	//
@@ -810,7 +738,7 @@ func TestViewHistoryLevel(t *testing.T) {
 		t.Errorf("a positive shift is written without its sign: %s", out)
 	}
 	var b bytes.Buffer
-	if err := CSV(&b, s); err != nil {
+	if err := docOf(s).WriteCSV(&b); err != nil {
 		t.Fatal(err)
 	}
 	tb := viewTables(t, b.Bytes())
@@ -818,4 +746,37 @@ func TestViewHistoryLevel(t *testing.T) {
 	if g := viewCell(t, tb["backcalc"], 1, "log_adjustment_mode"); g != "shift" {
 		t.Errorf("mode %q", g)
 	}
+}
+
+// docOf gives the Document of a result value for the table-driven tests.
+func docOf(v any) Document {
+	switch x := v.(type) {
+	case Document:
+		return x
+	case *arrhenius.Report:
+		return Arrhenius{Report: x}
+	case *arrhenius.Line:
+		return Arrhenius{Report: &arrhenius.Report{Lines: []arrhenius.Line{*x}}}
+	case []*arrhenius.Solution:
+		return Backcalc{Solutions: x}
+	case *arrhenius.Solution:
+		return Backcalc{Solutions: []*arrhenius.Solution{x}}
+	case []*arrhenius.Prediction:
+		return Predictions(x)
+	case *arrhenius.Prediction:
+		return Predictions{x}
+	case *arrhenius.Comparison:
+		return Comparison{Comparison: x}
+	case []arrhenius.Reference:
+		return References(x)
+	case arrhenius.Reference:
+		return References{x}
+	case []*matano.Result:
+		return Matano(x)
+	case *matano.Result:
+		return Matano{x}
+	case []*fit.Result:
+		return Fits{Results: x}
+	}
+	panic(fmt.Sprintf("docOf: no Document for %T", v))
 }

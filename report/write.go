@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"strings"
 
+	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/internal/parallel"
 )
 
@@ -63,8 +64,8 @@ func renderAll(figs []*Figure, png bool, dpi int, progress func(done, total int)
 //	results.json    every number, for scripts (byte-identical on a rerun)
 //	results.csv     one row per profile
 //	residuals.csv   one row per measured point
-//	arrhenius.csv   one row per Arrhenius line
-//	backcalc.csv    one row per part marked unknown (when there are any)
+//	arrhenius.csv   the Arrhenius lines, as fickfit arrhenius --format csv writes them
+//	backcalc.csv    the parts marked unknown, as fickfit backcalc --format csv writes them
 //	summary.txt     the terminal summary and every profile's block
 //	results.xlsx    the workbook with native charts and the audit sheet
 //	report.html     the self-contained report
@@ -73,10 +74,11 @@ func renderAll(figs []*Figure, png bool, dpi int, progress func(done, total int)
 // Every file is written to a temporary file beside it and renamed when
 // complete. Existing report files are replaced only with opts.Force; an
 // input file is never replaced. It returns the paths written.
-func WriteCampaign(dir string, res *CampaignResult, opts CampaignOptions) ([]string, error) {
-	if res == nil {
+func WriteCampaign(dir string, result *campaign.Result, opts CampaignOptions) ([]string, error) {
+	if result == nil {
 		return nil, errors.New("no campaign result to write")
 	}
+	res := &CampaignReport{Result: result, TempUnit: opts.TempUnit}
 	if !opts.Force {
 		if foreign := ForeignEntries(dir); len(foreign) > 0 {
 			return nil, fmt.Errorf("%w: the report folder %s already holds %s, which an earlier report did not write; choose an empty folder or add --force", ErrExists, dir, strings.Join(foreign, ", "))
@@ -101,11 +103,11 @@ func WriteCampaign(dir string, res *CampaignResult, opts CampaignOptions) ([]str
 	var jobs []job
 	add := func(name string, f func(io.Writer) error) { jobs = append(jobs, job{filepath.Join(dir, name), f}) }
 	add(FileJSON, res.WriteJSON)
-	add(FileCSV, res.Fits.WriteCSV)
-	add(FileResiduals, res.Fits.WriteResidualsCSV)
-	add(FileArrhenius, res.WriteArrheniusCSV)
+	add(FileCSV, res.fits().WriteCSV)
+	add(FileResiduals, res.fits().WriteResidualsCSV)
+	add(FileArrhenius, res.Arrhenius().WriteCSV)
 	if len(res.Parts) > 0 {
-		add(FileBackcalc, res.WriteBackcalcCSV)
+		add(FileBackcalc, res.Backcalc().WriteCSV)
 	}
 	to := TextOptions{TempUnit: opts.TempUnit}
 	add(FileSummary, func(w io.Writer) error {
@@ -113,7 +115,7 @@ func WriteCampaign(dir string, res *CampaignResult, opts CampaignOptions) ([]str
 			return err
 		}
 		io.WriteString(w, "\n\nProfiles in detail\n\n")
-		return res.Fits.WriteText(w, to)
+		return res.fits().WriteText(w, to)
 	})
 	var rendered []renderedFigure
 	add(FileHTML, func(w io.Writer) error {

@@ -28,7 +28,7 @@ func threeFits(t *testing.T) (Fits, []profile.Profile) {
 		// No time: D stands for Dt.
 		synth{id: "A4", lot: "L2", tempC: 940, hours: 3, cs: 0.95, c0: 0.2, hideTime: true}.profile(rng),
 	}
-	rs, errs := fit.FitAll(ps, fit.Options{CI: "wald"})
+	rs, errs := fit.FitAll(ps, fit.Options{CI: "wald"}, nil)
 	f := NewFits(ps, rs, errs)
 	f.Version = "1.2.3-test"
 	if len(f.Results) != 3 || len(f.Failed) != 1 {
@@ -67,7 +67,7 @@ func TestFitsJSON(t *testing.T) {
 	if err := json.Unmarshal(doc["fits"], &fits); err != nil {
 		t.Fatal(err)
 	}
-	// DESIGN §5 keys of one fit.
+	// docs/output.md keys of one fit.
 	for _, k := range []string{"id", "model", "converged", "time_s", "temperature_K", "ci_level", "ci_method", "params", "stats", "residuals", "warnings", "covariance"} {
 		if _, ok := fits[0][k]; !ok {
 			t.Errorf("fit key %q missing", k)
@@ -84,7 +84,7 @@ func TestFitsJSON(t *testing.T) {
 			t.Errorf("%s: round trip changed numbers", r.ID)
 		}
 	}
-	var failed []Failure
+	var failed []fit.Failure
 	json.Unmarshal(doc["failed"], &failed)
 	if len(failed) != 1 || failed[0].ID != "A3" || failed[0].Kind != "bad input" || !strings.Contains(failed[0].Error, "A3") {
 		t.Errorf("failed = %+v", failed)

@@ -7,9 +7,11 @@ import (
 	"strings"
 	"unicode/utf8"
 
-	"github.com/fickfit/fickfit/arrhenius"
-	"github.com/fickfit/fickfit/fit"
 	"github.com/xuri/excelize/v2"
+
+	"github.com/fickfit/fickfit/arrhenius"
+	"github.com/fickfit/fickfit/campaign"
+	"github.com/fickfit/fickfit/fit"
 )
 
 // Sheet names of the workbook.
@@ -177,7 +179,7 @@ func xlHex(c interface{ RGBA() (r, g, b, a uint32) }) string {
 // back-calculation when there are any, and an Audit sheet (inputs with
 // SHA-256, options, version, method notes, cautions). Numbers are stored
 // as numbers with number formats; units are in the headers.
-func (res *CampaignResult) WriteWorkbook(w io.Writer, o CampaignOptions) error {
+func (res *CampaignReport) WriteWorkbook(w io.Writer, o CampaignOptions) error {
 	f := excelize.NewFile()
 	defer f.Close()
 	st, err := newXLStyles(f)
@@ -191,8 +193,8 @@ func (res *CampaignResult) WriteWorkbook(w io.Writer, o CampaignOptions) error {
 	}
 	u := o.TempUnit
 	x.summarySheet(res, u)
-	total := len(res.Fits.Results)
-	for i, r := range res.Fits.Results {
+	total := len(res.Results)
+	for i, r := range res.Results {
 		sheet := names.name(r.ID)
 		if _, err := f.NewSheet(sheet); err != nil {
 			return err
@@ -239,7 +241,7 @@ func (res *CampaignResult) WriteWorkbook(w io.Writer, o CampaignOptions) error {
 	return err
 }
 
-func (x *xlWriter) summarySheet(res *CampaignResult, u TempUnit) {
+func (x *xlWriter) summarySheet(res *CampaignReport, u TempUnit) {
 	s := SheetSummary
 	level := Level(res.Options.Level)
 	cols := []string{"id", "lot", "T (" + u.Symbol() + ")", "T (K)", "t (h)", "model", "D (m²/s)",
@@ -247,7 +249,7 @@ func (x *xlWriter) summarySheet(res *CampaignResult, u TempUnit) {
 		"R²", "RMSE", "n", "warnings", "source"}
 	x.header(s, 1, cols...)
 	row := 2
-	for _, r := range res.Fits.Results {
+	for _, r := range res.Results {
 		x.set(s, 1, row, r.ID, 0)
 		x.set(s, 2, row, r.Lot, 0)
 		if r.Temperature > 0 {
@@ -285,7 +287,7 @@ func (x *xlWriter) summarySheet(res *CampaignResult, u TempUnit) {
 		x.set(s, 18, row, r.Source, 0)
 		row++
 	}
-	for _, fl := range res.Fits.Failed {
+	for _, fl := range res.Failed {
 		x.set(s, 1, row, fl.ID, 0)
 		x.set(s, 2, row, fl.Lot, 0)
 		x.set(s, 17, row, "not fitted: "+fl.Error, x.st.text)
@@ -305,7 +307,7 @@ func (x *xlWriter) profileSheet(s string, r *fit.Result, u TempUnit) {
 		{"source", r.Source}, {"lot", r.Lot},
 		{"temperature (" + u.Symbol() + ")", nil}, {"temperature (K)", nil}, {"time (h)", nil},
 		{"model", ModelDescription(r.Model)},
-		{"interval", Level(r.CILevel) + " " + CIMethodDescription(r.CIMethod) + ", covariance " + r.Covariance},
+		{"interval", Level(r.CILevel) + " " + CIMethodDescription(r.CIMethod) + ", covariance " + r.Covariance.String()},
 	}
 	if r.Temperature > 0 {
 		meta[2][1], meta[3][1] = u.FromKelvin(r.Temperature), r.Temperature
@@ -441,7 +443,7 @@ func (x *xlWriter) profileSheet(s string, r *fit.Result, u TempUnit) {
 	})
 }
 
-func (x *xlWriter) arrheniusSheet(res *CampaignResult, u TempUnit) {
+func (x *xlWriter) arrheniusSheet(res *CampaignReport, u TempUnit) {
 	s := SheetArrhenius
 	lines := res.Lines.Lines
 	level := Level(lines[0].Level)
@@ -477,7 +479,7 @@ func (x *xlWriter) arrheniusSheet(res *CampaignResult, u TempUnit) {
 		x.set(s, 12, row, groupLabel(l), 0)
 		x.set(s, 12, row+1, groupLabel(l)+" line", 0)
 		for _, p := range l.Points {
-			lo, hi := pointCI(p.Point)
+			lo, hi := pointCI(p.Point, l.Level)
 			x.set(s, 1, row, groupLabel(l), 0)
 			x.set(s, 2, row, p.ID, 0)
 			x.set(s, 3, row, u.FromKelvin(p.T), x.st.temp)
@@ -521,7 +523,7 @@ func (x *xlWriter) arrheniusSheet(res *CampaignResult, u TempUnit) {
 	})
 }
 
-func (x *xlWriter) lotsSheet(res *CampaignResult, u TempUnit) {
+func (x *xlWriter) lotsSheet(res *CampaignReport, u TempUnit) {
 	s := SheetLots
 	c := res.Comparison
 	x.set(s, 1, 1, "Lot comparison by "+c.By+": "+c.Verdict, x.st.title)
@@ -553,7 +555,7 @@ func (x *xlWriter) lotsSheet(res *CampaignResult, u TempUnit) {
 	x.widths(s, 24, 60, 10, 8, 10, 14, 14, 10, 16)
 }
 
-func (x *xlWriter) partsSheet(res *CampaignResult, u TempUnit) {
+func (x *xlWriter) partsSheet(res *CampaignReport, u TempUnit) {
 	s := SheetParts
 	x.set(s, 1, 1, "Back-calculated exposures of the parts marked unknown", x.st.title)
 	level := Level(res.Options.Level)
@@ -603,7 +605,7 @@ func (x *xlWriter) partsSheet(res *CampaignResult, u TempUnit) {
 	x.widths(s, 16, 10, 12, 10, 12, 12, 10, 8, 12, 12, 14, 40, 50)
 }
 
-func (x *xlWriter) auditSheet(res *CampaignResult) {
+func (x *xlWriter) auditSheet(res *CampaignReport) {
 	s := SheetAudit
 	x.set(s, 1, 1, "Audit trail", x.st.title)
 	x.set(s, 1, 2, "software", x.st.bold)
@@ -617,20 +619,20 @@ func (x *xlWriter) auditSheet(res *CampaignResult) {
 	}
 	row += len(res.Inputs) + 2
 	x.header(s, row, "option", "value")
-	for i, kv := range res.Options.pairs() {
+	for i, kv := range auditPairs(res.audit()) {
 		x.set(s, 1, row+1+i, kv[0], 0)
 		x.set(s, 2, row+1+i, kv[1], 0)
 	}
-	row += len(res.Options.pairs()) + 2
+	row += len(auditPairs(res.audit())) + 2
 	x.set(s, 1, row, "method notes", x.st.bold)
-	for i, n := range MethodNotes {
+	for i, n := range MethodNotes() {
 		x.set(s, 1, row+1+i, n.Topic, 0)
 		x.set(s, 2, row+1+i, n.Text+" Source: "+n.Source+".", x.st.note)
 		if x.err == nil {
 			x.err = x.f.SetRowHeight(s, row+1+i, 42)
 		}
 	}
-	row += len(MethodNotes) + 2
+	row += len(MethodNotes()) + 2
 	x.set(s, 1, row, "cautions", x.st.bold)
 	for i, c := range res.Cautions {
 		x.set(s, 2, row+1+i, c, x.st.note)
@@ -641,8 +643,8 @@ func (x *xlWriter) auditSheet(res *CampaignResult) {
 	x.widths(s, 34, 100, 10)
 }
 
-// pairs lists the options as (name, value) for the audit trail.
-func (a AuditOptions) pairs() [][2]string {
+// auditPairs lists the options as (name, value) for the audit trail.
+func auditPairs(a campaign.AuditOptions) [][2]string {
 	f := func(v float64, zero string) string {
 		if v == 0 {
 			return zero

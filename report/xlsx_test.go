@@ -56,7 +56,7 @@ func TestWorkbook(t *testing.T) {
 	defer f.Close()
 	sheets := f.GetSheetList()
 	want := []string{SheetSummary}
-	for _, r := range res.Fits.Results {
+	for _, r := range res.Results {
 		want = append(want, r.ID)
 	}
 	want = append(want, SheetArrhenius, SheetLots, SheetParts, SheetAudit)
@@ -79,7 +79,7 @@ func TestWorkbook(t *testing.T) {
 	if h, _ := f.GetCellValue(SheetSummary, "G1"); h != "D (m²/s)" {
 		t.Errorf("G1 header %q", h)
 	}
-	r0 := res.Fits.Results[0]
+	r0 := res.Results[0]
 	// Spreadsheets hold 15 significant digits.
 	close := func(a, b float64) bool { return a == b || (a-b)/b < 1e-14 && (b-a)/b < 1e-14 }
 	if got, want := num(SheetSummary, "G2"), r0.Param("D").Value; !close(got, want) {
@@ -157,7 +157,7 @@ func TestWorkbook(t *testing.T) {
 			}
 		}
 	}
-	if want := len(res.Fits.Results) + 1; charts != want {
+	if want := len(res.Results) + 1; charts != want {
 		t.Errorf("%d charts, want %d", charts, want)
 	}
 }

@@ -5,7 +5,10 @@ import (
 
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/profile"
+	"github.com/fickfit/fickfit/report"
 )
+
+func init() { addCommands(newArrheniusCmd) }
 
 func newArrheniusCmd() *cobra.Command {
 	var ff fitFlags
@@ -66,11 +69,11 @@ profiles (lot by default when the files give one) and gives one line per group.`
 					return err
 				}
 			}
-			return out.write(c, func(w writer) error { return writeValue(w, out.format, rep) })
+			return out.emit(c, report.Arrhenius{Report: rep})
 		},
 	}
 	ff.register(c)
-	out.register(c)
+	out.register(c, true)
 	c.Flags().StringVar(&by, "by", "", "group the profiles by this column or metadata key (e.g. lot) and fit one line per group")
 	c.Flags().BoolVar(&global, "global", false, "one-stage global fit of all profiles (shared ln D0 and Q)")
 	c.Flags().StringVar(&tsigma, "temperature-uncertainty", "", "standard uncertainty of every furnace temperature not given in the files (e.g. 3K)")

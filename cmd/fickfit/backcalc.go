@@ -5,7 +5,10 @@ import (
 
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/profile"
+	"github.com/fickfit/fickfit/report"
 )
+
+func init() { addCommands(newBackcalcCmd) }
 
 func newBackcalcCmd() *cobra.Command {
 	var ff fitFlags
@@ -44,6 +47,10 @@ codes and licensed engineering judgement before deciding on parts.`,
 			if solve != "temperature" && solve != "time" {
 				return usagef("--solve must be temperature or time")
 			}
+			sm, err := arrhenius.ParseSolveMethod(method)
+			if err != nil {
+				return usagef("--method: %v", err)
+			}
 			calib, err := cal.calibration()
 			if err != nil {
 				return err
@@ -55,7 +62,7 @@ codes and licensed engineering judgement before deciding on parts.`,
 			if h != nil && solve != "temperature" {
 				return usagef("--history solves for the hold temperature of the log: use --solve temperature")
 			}
-			so := &arrhenius.SolveOptions{Level: ff.level, Method: method, Draws: draws, Seed: ff.seed}
+			so := &arrhenius.SolveOptions{Level: ff.level, Method: sm, Draws: draws, Seed: ff.seed}
 			// The known exposure is given to the solver, not to the fit:
 			// the fit only needs Dt.
 			known := ff.temperature
@@ -101,15 +108,17 @@ codes and licensed engineering judgement before deciding on parts.`,
 				}
 				sols = append(sols, s)
 			}
-			return out.write(c, func(w writer) error { return writeValue(w, out.format, sols) })
+			return out.emit(c, report.Backcalc{Solutions: sols})
 		},
 	}
 	ff.register(c)
-	out.register(c)
+	out.register(c, true)
 	cal.register(c)
 	c.Flags().StringVar(&solve, "solve", "temperature", "what to solve for: temperature or time")
 	c.Flags().StringVar(&history, "history", "", "furnace or service log (CSV of time and temperature) of known shape but unknown level")
 	c.Flags().StringVar(&method, "method", "analytic", "interval: analytic (Fieller), monte-carlo, or both")
 	c.Flags().IntVar(&draws, "draws", 10000, "Monte Carlo draws")
+	_ = c.RegisterFlagCompletionFunc("solve", fixed("temperature", "time"))
+	_ = c.RegisterFlagCompletionFunc("method", fixed(arrhenius.SolveMethods()...))
 	return c
 }

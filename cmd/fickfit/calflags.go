@@ -1,7 +1,6 @@
 package main
 
 import (
-	"fmt"
 	"strconv"
 	"strings"
 
@@ -30,6 +29,12 @@ func (c *calFlags) register(cmd *cobra.Command) {
 	fl.StringVar(&c.qu, "Q-stderr", "", "standard uncertainty of Q (optional, same units as --Q)")
 	fl.Float64Var(&c.corr, "corr", 0, "correlation of ln D0 and Q (optional, with both uncertainties)")
 	fl.StringVar(&c.reference, "reference", "", "a row of the built-in table (see 'fickfit reference')")
+	// Exactly one source of D0 and Q: the file, the explicit values or a row.
+	cmd.MarkFlagsOneRequired("calibration", "D0", "reference")
+	cmd.MarkFlagsMutuallyExclusive("calibration", "D0", "reference")
+	cmd.MarkFlagsMutuallyExclusive("calibration", "Q", "reference")
+	cmd.MarkFlagsRequiredTogether("D0", "Q")
+	_ = cmd.RegisterFlagCompletionFunc("reference", fixed(arrhenius.ReferenceNames()...))
 }
 
 // calibration returns the chosen calibration; exactly one source must be given.
@@ -64,7 +69,7 @@ func (c *calFlags) calibration() (arrhenius.Calibration, error) {
 	if err != nil {
 		return arrhenius.Calibration{}, usagef("--D0 %q is not a number (m²/s)", c.d0)
 	}
-	q, err := parseEnergy(c.q)
+	q, err := arrhenius.ParseEnergy(c.q)
 	if err != nil {
 		return arrhenius.Calibration{}, usagef("--Q: %v", err)
 	}
@@ -75,34 +80,11 @@ func (c *calFlags) calibration() (arrhenius.Calibration, error) {
 		}
 	}
 	if c.qu != "" {
-		if qu, err = parseEnergy(c.qu); err != nil {
+		if qu, err = arrhenius.ParseEnergy(c.qu); err != nil {
 			return arrhenius.Calibration{}, usagef("--Q-stderr: %v", err)
 		}
 	}
 	return arrhenius.Explicit(d0, d0u, q, qu, c.corr)
-}
-
-// parseEnergy reads an activation energy in J/mol, kJ/mol or eV (per
-// particle, converted with the Faraday constant: 1 eV = 96 485.332 J/mol,
-// CODATA 2018 exact via e·N_A).
-func parseEnergy(s string) (float64, error) {
-	t := strings.ReplaceAll(strings.TrimSpace(s), " ", "")
-	units := []struct {
-		suffix string
-		factor float64
-	}{{"kJ/mol", 1e3}, {"J/mol", 1}, {"eV", 96485.33212331001}, {"kcal/mol", 4184}}
-	factor := 1.0
-	for _, u := range units {
-		if strings.HasSuffix(strings.ToLower(t), strings.ToLower(u.suffix)) {
-			t, factor = t[:len(t)-len(u.suffix)], u.factor
-			break
-		}
-	}
-	v, err := strconv.ParseFloat(strings.Replace(t, ",", ".", 1), 64)
-	if err != nil || !(v > 0) {
-		return 0, fmt.Errorf("%q is not a positive energy (write e.g. 148kJ/mol, 148000, 1.53eV)", s)
-	}
-	return v * factor, nil
 }
 
 // readHistory reads --history when given.

@@ -11,6 +11,7 @@ import (
 	"golang.org/x/term"
 
 	"github.com/fickfit/fickfit"
+	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/profile"
 	"github.com/fickfit/fickfit/report"
 )
@@ -24,8 +25,8 @@ type campaignFlags struct {
 	tref       string
 	tsigma     string
 	refs       []string
-	tempUnit   string
 	noPNG      bool
+	output     outFlags
 }
 
 func (cf *campaignFlags) register(c *cobra.Command, defaultOut string) {
@@ -38,26 +39,30 @@ func (cf *campaignFlags) register(c *cobra.Command, defaultOut string) {
 	fl.StringVar(&cf.tref, "tref", "", "temperature of the lot comparison's D ratio (default: the centre of the data)")
 	fl.StringVar(&cf.tsigma, "temperature-uncertainty", "", "standard uncertainty of every furnace temperature not given in the files (e.g. 3K)")
 	fl.StringSliceVar(&cf.refs, "reference-lines", nil, "draw these rows of the reference table on the Arrhenius plot")
-	fl.StringVar(&cf.tempUnit, "temperature-unit", "C", "temperature unit of the text and reports: C, K or F")
 	fl.BoolVar(&cf.noPNG, "no-png", false, "write SVG figures only")
+	_ = c.RegisterFlagCompletionFunc("arrhenius", fixed("two-stage", "global"))
+	cf.output.register(c, false)
 }
 
-// options turns the flags into campaign options.
-func (cf *campaignFlags) options(c *cobra.Command) (report.CampaignOptions, error) {
+// options turns the flags into the campaign's options (what to compute)
+// and the report's (how to write it).
+func (cf *campaignFlags) options(c *cobra.Command) (campaign.Options, report.CampaignOptions, error) {
+	var o campaign.Options
+	var ro report.CampaignOptions
 	fo, err := cf.ff.options()
 	if err != nil {
-		return report.CampaignOptions{}, err
+		return o, ro, err
 	}
-	if cf.ff.ci == "bootstrap" {
+	if cf.ff.bootstrap() {
 		fo.Bootstrap.Progress = nil
 	}
-	u, err := report.ParseTempUnit(cf.tempUnit)
-	if err != nil {
-		return report.CampaignOptions{}, usagef("--temperature-unit: %v", err)
+	if err := cf.output.check(nil); err != nil {
+		return o, ro, err
 	}
-	o := report.CampaignOptions{
-		Fit: fo, By: cf.by, Method: cf.method, References: cf.refs, TempUnit: u,
-		Force: cf.force, NoPNG: cf.noPNG, Version: fickfit.Version,
+	progress := stageProgress()
+	ro = report.CampaignOptions{TempUnit: cf.output.unit, Force: cf.force, NoPNG: cf.noPNG, Progress: progress}
+	o = campaign.Options{
+		Fit: fo, By: cf.by, Method: cf.method, References: cf.refs, Version: fickfit.Version, Progress: progress,
 		Adjust: func(p *profile.Profile) error {
 			ps := []profile.Profile{*p}
 			if err := cf.ff.override(ps); err != nil {
@@ -70,16 +75,15 @@ func (cf *campaignFlags) options(c *cobra.Command) (report.CampaignOptions, erro
 	o.Solve.Seed = cf.ff.seed
 	if cf.tref != "" {
 		if o.TRef, err = profile.ParseTemperature(cf.tref); err != nil {
-			return o, usagef("--tref: %v", err)
+			return o, ro, usagef("--tref: %v", err)
 		}
 	}
 	if cf.tsigma != "" {
 		if o.Arrhenius.TemperatureSigma, err = profile.ParseTemperatureDelta(cf.tsigma); err != nil {
-			return o, usagef("--temperature-uncertainty: %v", err)
+			return o, ro, usagef("--temperature-uncertainty: %v", err)
 		}
 	}
-	o.Progress = stageProgress()
-	return o, nil
+	return o, ro, nil
 }
 
 // stageProgress draws one bar per stage on a terminal; nil otherwise.
@@ -105,6 +109,8 @@ func stageProgress() func(stage string, done, total int) {
 	}
 }
 
+func init() { addCommands(newCampaignCmd, newDemoCmd) }
+
 func newCampaignCmd() *cobra.Command {
 	var cf campaignFlags
 	c := &cobra.Command{
@@ -123,15 +129,15 @@ A rerun with the same inputs gives byte-identical JSON and CSV.`,
   fickfit campaign campaign.xlsx --out report --ci bootstrap --seed 7 --force`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
-			o, err := cf.options(c)
+			o, ro, err := cf.options(c)
 			if err != nil {
 				return err
 			}
-			res, err := report.Campaign(args, o)
+			res, err := campaign.Run(args, o)
 			if err != nil {
 				return err
 			}
-			return finishCampaign(c.OutOrStdout(), cf.out, res, o)
+			return finishCampaign(c.OutOrStdout(), cf.out, res, ro)
 		},
 	}
 	cf.register(c, "fickfit-report")
@@ -150,19 +156,19 @@ lot and temperature) and asks what temperature a pinion saw during a
 controller fault. All numbers are made up for the demonstration.`,
 		Args: cobra.NoArgs,
 		RunE: func(c *cobra.Command, args []string) error {
-			o, err := cf.options(c)
+			o, ro, err := cf.options(c)
 			if err != nil {
 				return err
 			}
 			// The demo may rewrite its own earlier report, never other files.
-			if !o.Force && len(report.ForeignEntries(cf.out)) == 0 {
-				o.Force = true
+			if !ro.Force && len(report.ForeignEntries(cf.out)) == 0 {
+				ro.Force = true
 			}
-			res, err := report.CampaignFS(fickfit.Demo(), o)
+			res, err := campaign.RunFS(fickfit.Demo(), o)
 			if err != nil {
 				return err
 			}
-			return finishCampaign(c.OutOrStdout(), cf.out, res, o)
+			return finishCampaign(c.OutOrStdout(), cf.out, res, ro)
 		},
 	}
 	cf.register(c, "fickfit-demo")
@@ -170,12 +176,13 @@ controller fault. All numbers are made up for the demonstration.`,
 }
 
 // finishCampaign writes the report folder and prints where it went and a summary.
-func finishCampaign(w io.Writer, dir string, res *report.CampaignResult, o report.CampaignOptions) error {
+func finishCampaign(w io.Writer, dir string, res *campaign.Result, o report.CampaignOptions) error {
 	files, err := report.WriteCampaign(dir, res, o)
 	if err != nil {
 		return err
 	}
-	if err := res.WriteSummary(w, report.TextOptions{TempUnit: o.TempUnit}); err != nil {
+	summary := &report.CampaignReport{Result: res, TempUnit: o.TempUnit}
+	if err := summary.WriteText(w, report.TextOptions{TempUnit: o.TempUnit}); err != nil {
 		return err
 	}
 	fmt.Fprintf(w, "\nReport written to %s/ (%d files); open %s/%s in a browser.\n", dir, len(files), dir, report.FileHTML)

@@ -5,7 +5,10 @@ import (
 
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/profile"
+	"github.com/fickfit/fickfit/report"
 )
+
+func init() { addCommands(newCompareCmd, newReferenceCmd) }
 
 func newCompareCmd() *cobra.Command {
 	var ff fitFlags
@@ -53,11 +56,11 @@ temperature with its confidence interval and a plain verdict with the p-value.`,
 			if err != nil {
 				return err
 			}
-			return out.write(c, func(w writer) error { return writeValue(w, out.format, cmp) })
+			return out.emit(c, report.Comparison{Comparison: cmp})
 		},
 	}
 	ff.register(c)
-	out.register(c)
+	out.register(c, true)
 	c.Flags().StringVar(&by, "by", "lot", "the column or metadata key that names the groups")
 	c.Flags().StringVar(&ref, "reference-group", "", "the group the others are compared with (default: the first met)")
 	c.Flags().StringVar(&tref, "tref", "", "temperature of the D ratio (default: the centre of the data in 1/T)")
@@ -81,9 +84,9 @@ backcalc and predict.`,
 				return err
 			}
 			refs := arrhenius.References()
-			return out.write(c, func(w writer) error { return writeValue(w, out.format, refs) })
+			return out.emit(c, report.References(refs))
 		},
 	}
-	out.register(c)
+	out.register(c, true)
 	return c
 }

@@ -36,7 +36,7 @@ func evenMM(n int, xmax float64) []float64 {
 }
 
 // TestFailuresExplained runs inputs for which no trustworthy answer exists
-// through the command line (common practice, no source; DESIGN §6): each
+// through the command line (common practice, no source; docs/output.md, "Exit status"): each
 // must exit 1, write no output file, leave the input unchanged and say in
 // one message which file, why (naming the parameter by the name --fix
 // takes, or the feature of the data at fault) and what to do (fix a

@@ -8,7 +8,10 @@ import (
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/fit"
 	"github.com/fickfit/fickfit/profile"
+	"github.com/fickfit/fickfit/report"
 )
+
+func init() { addCommands(newFitCmd) }
 
 func newFitCmd() *cobra.Command {
 	var ff fitFlags
@@ -51,14 +54,15 @@ highest temperature), exact when D does not depend on concentration.`,
 			if err := applyHistory(ps, history, qText, tref); err != nil {
 				return err
 			}
-			if ff.ci == "bootstrap" {
-				o.Bootstrap.Progress = progress(c, "bootstrap", len(ps))
+			batch := &fit.BatchOptions{Progress: progress(c, "fit", 1)}
+			if ff.bootstrap() {
+				o.Bootstrap.Progress, batch.Progress = progress(c, "bootstrap", len(ps)), nil
 			}
-			results, errs := fit.FitAll(ps, o)
+			results, errs := fit.FitAll(ps, o, batch)
 			worst := firstError(errs)
-			f := fitsOf(ps, results, errs)
+			f := report.NewFits(ps, results, errs)
 			if len(f.Results) > 0 {
-				if err := out.write(c, func(w writer) error { return writeFits(w, out.format, f) }); err != nil {
+				if err := out.emit(c, f); err != nil {
 					return err
 				}
 			}
@@ -71,7 +75,7 @@ highest temperature), exact when D does not depend on concentration.`,
 		},
 	}
 	ff.register(c)
-	out.register(c)
+	out.register(c, true)
 	c.Flags().StringVar(&history, "history", "", "furnace or service log (CSV of time and temperature) the part saw; needs --Q")
 	c.Flags().StringVar(&qText, "Q", "", "activation energy for --history (e.g. 142kJ/mol)")
 	c.Flags().StringVar(&tref, "tref", "", "temperature at which D is reported with --history (default: the log's highest)")
@@ -90,7 +94,7 @@ func applyHistory(ps []profile.Profile, history, qText, tref string) error {
 	if qText == "" {
 		return usagef("--history needs the activation energy --Q to weigh the log's temperatures")
 	}
-	q, err := parseEnergy(qText)
+	q, err := arrhenius.ParseEnergy(qText)
 	if err != nil {
 		return usagef("--Q: %v", err)
 	}

@@ -54,12 +54,27 @@ func (f *fitFlags) register(c *cobra.Command) {
 	fl.StringVar(&f.dcTable, "dc-table", "", "numeric model with --dc table: CSV of D against concentration (e.g. C_wt%,D_m2/s); its shape is kept and its scale fitted")
 	fl.StringVar(&f.surface, "surface", "fixed", "numeric model: surface condition: fixed (Cs) or masstransfer (beta, Cp)")
 	fl.StringVar(&f.hardnessCal, "hardness-calibration", "", "CSV of hardness–concentration pairs for this material: hardness profiles are converted to concentration before fitting")
+	_ = c.RegisterFlagCompletionFunc("model", fixed(append(fit.ModelNames(), "numeric", "auto")...))
+	_ = c.RegisterFlagCompletionFunc("ci", fixed(fit.CIMethods()...))
+	_ = c.RegisterFlagCompletionFunc("dc", fixed(numeric.Laws()...))
+	_ = c.RegisterFlagCompletionFunc("surface", fixed("fixed", "masstransfer"))
+	_ = c.RegisterFlagCompletionFunc("faces", fixed("1", "2"))
+}
+
+// bootstrap tells whether the intervals are bootstrapped.
+func (f *fitFlags) bootstrap() bool {
+	m, err := fit.ParseCIMethod(f.ci)
+	return err == nil && m == fit.CIBootstrap
 }
 
 // options turns the flags into fit.Options.
 func (f *fitFlags) options() (fit.Options, error) {
+	ci, err := fit.ParseCIMethod(f.ci)
+	if err != nil {
+		return fit.Options{}, usagef("--ci: %v", plain(err))
+	}
 	o := fit.Options{
-		Model: f.model, Level: f.level, CI: f.ci, AbsoluteSigma: f.absoluteSigma, Faces: f.faces,
+		Model: f.model, Level: f.level, CI: ci, AbsoluteSigma: f.absoluteSigma, Faces: f.faces,
 		Free: f.free,
 		Bootstrap: fit.BootstrapOptions{
 			Resamples: f.resamples, Seed: f.seed, Cases: f.cases, Percentile: f.percentile,
@@ -79,8 +94,12 @@ func (f *fitFlags) options() (fit.Options, error) {
 		o.Thickness = v
 	}
 	if strings.EqualFold(f.model, "numeric") {
-		cfg := numeric.Config{DC: f.dc}
-		if f.dc == "table" {
+		law, err := numeric.ParseLaw(f.dc)
+		if err != nil {
+			return o, usagef("--dc: %v", plain(err))
+		}
+		cfg := numeric.Config{DC: law}
+		if law == numeric.LawTable {
 			if f.dcTable == "" {
 				return o, usagef("--dc table needs --dc-table FILE")
 			}

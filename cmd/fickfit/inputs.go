@@ -39,7 +39,7 @@ func fittedInputs(args []string, ff *fitFlags) ([]*fit.Result, []profile.Profile
 		if err := ff.override(ps); err != nil {
 			return nil, nil, err
 		}
-		rs, errs := fit.FitAll(ps, o)
+		rs, errs := fit.FitAll(ps, o, nil)
 		if err := firstError(errs); err != nil {
 			return nil, nil, err
 		}

@@ -11,12 +11,13 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"strings"
 
 	"github.com/fickfit/fickfit/fit"
 	"github.com/fickfit/fickfit/profile"
 )
 
-// Exit statuses (DESIGN §6).
+// Exit statuses (docs/output.md, "Exit status").
 const (
 	exitOK       = 0
 	exitNoAnswer = 1 // the computation could not give an answer
@@ -64,15 +65,11 @@ func exitCode(err error) int {
 	if errors.As(err, &ue) {
 		return exitBadInput
 	}
-	var ne noAnswerError
-	if errors.As(err, &ne) {
-		return exitNoAnswer
-	}
 	return exitBadInput
 }
 
-// noAnswerError marks a computation that ran but gives no trustworthy answer.
-type noAnswerError struct{ err error }
-
-func (e noAnswerError) Error() string { return e.err.Error() }
-func (e noAnswerError) Unwrap() error { return e.err }
+// plain drops the "bad input: " kind that a library puts before its
+// message, for a message that already names the flag.
+func plain(err error) string {
+	return strings.TrimPrefix(err.Error(), fit.ErrBadInput.Error()+": ")
+}

@@ -149,7 +149,12 @@ func TestUsageErrors(t *testing.T) {
 		{[]string{"fit", good, "--bogus"}, "unknown flag"},
 		{[]string{"backcalc", good, "--solve", "pressure", "--reference", "C-in-gamma-Fe"}, "--solve"},
 		{[]string{"backcalc", good, "--reference", "unobtainium"}, "C-in-gamma-Fe"},
-		{[]string{"predict", "--Cs", "1", "--C0", "0.2"}, "exactly one source"},
+		{[]string{"predict", "--Cs", "1", "--C0", "0.2"}, "at least one of the flags in the group [calibration D0 reference] is required"},
+		{[]string{"predict", "--Cs", "1", "--C0", "0.2", "--reference", "C-in-gamma-Fe", "--D0", "1e-5", "--Q", "140kJ/mol"}, "none of the others can be"},
+		{[]string{"backcalc", good, "--D0", "1e-5"}, "[D0 Q] are set they must all be set"},
+		{[]string{"fit", good, "--ci", "jackknife"}, "--ci: unknown interval method"},
+		{[]string{"fit", good, "--temperature-unit", "R"}, "--temperature-unit"},
+		{[]string{"reference", "--format", "xml"}, "use text, json or csv"},
 	} {
 		code, _, stderr := runCLI(t, tc.args...)
 		if code != 2 || !strings.Contains(stderr, tc.frag) {
@@ -179,6 +184,35 @@ func TestCampaignFolderSafety(t *testing.T) {
 	for run := 0; run < 2; run++ {
 		if code, _, stderr := runCLI(t, "demo", "--out", out, "--no-png", "--ci", "wald"); code != 0 {
 			t.Fatalf("demo run %d: exit %d: %s", run+1, code, stderr)
+		}
+	}
+}
+
+// TestFlagCompletion: the enumerated flags complete to their values
+// (cobra's hidden __complete command, as the shell scripts call it).
+func TestFlagCompletion(t *testing.T) {
+	for _, tc := range []struct {
+		args []string
+		want []string
+	}{
+		{[]string{"fit", "x.csv", "--ci", ""}, []string{"profile", "wald", "bootstrap"}},
+		{[]string{"fit", "x.csv", "--format", ""}, []string{"text", "json", "csv"}},
+		{[]string{"fit", "x.csv", "--model", ""}, []string{"erf", "masstransfer", "auto", "numeric"}},
+		{[]string{"fit", "x.csv", "--dc", ""}, []string{"const", "exp", "table"}},
+		{[]string{"backcalc", "x.csv", "--method", ""}, []string{"analytic", "monte-carlo", "both"}},
+		{[]string{"predict", "--reference", ""}, []string{"C-in-gamma-Fe"}},
+		{[]string{"campaign", "d", "--temperature-unit", ""}, []string{"C", "K", "F"}},
+	} {
+		_, out, _ := runCLI(t, append([]string{"__complete"}, tc.args...)...)
+		lines := strings.Split(out, "\n")
+		for _, w := range tc.want {
+			found := false
+			for _, l := range lines {
+				found = found || l == w
+			}
+			if !found {
+				t.Errorf("%v: %q not offered in\n%s", tc.args, w, out)
+			}
 		}
 	}
 }

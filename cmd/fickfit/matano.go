@@ -12,6 +12,8 @@ import (
 	"github.com/fickfit/fickfit/report"
 )
 
+func init() { addCommands(newMatanoCmd) }
+
 func newMatanoCmd() *cobra.Command {
 	var out outFlags
 	var method, tm, figure string
@@ -68,10 +70,10 @@ Near the end compositions the method is ill-conditioned and says so.`,
 					return err
 				}
 			}
-			return out.write(c, func(w writer) error { return writeValue(w, out.format, results) })
+			return out.emit(c, report.Matano(results))
 		},
 	}
-	out.register(c)
+	out.register(c, true)
 	fl := c.Flags()
 	fl.StringVar(&method, "method", "boltzmann-matano", "boltzmann-matano or sauer-freise")
 	fl.StringVar(&tm, "time", "", "annealing time of the couple (overrides the file)")

@@ -6,7 +6,10 @@ import (
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/fit"
 	"github.com/fickfit/fickfit/profile"
+	"github.com/fickfit/fickfit/report"
 )
+
+func init() { addCommands(newPredictCmd) }
 
 func newPredictCmd() *cobra.Command {
 	var out outFlags
@@ -107,10 +110,10 @@ and licensed engineering judgement.`,
 				}
 				preds = append(preds, p)
 			}
-			return out.write(c, func(w writer) error { return writeValue(w, out.format, preds) })
+			return out.emit(c, report.Predictions(preds))
 		},
 	}
-	out.register(c)
+	out.register(c, true)
 	cal.register(c)
 	fl := c.Flags()
 	fl.StringVar(&temperature, "temperature", "", "hold temperature (e.g. 925C)")

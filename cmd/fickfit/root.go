@@ -31,7 +31,16 @@ unidentifiable parameters), 2 bad input or usage.`,
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return usagef("%v (see 'fickfit %s --help')", err, c.Name())
 	})
-	root.AddCommand(newFitCmd(), newArrheniusCmd(), newBackcalcCmd(), newPredictCmd(),
-		newCompareCmd(), newReferenceCmd(), newMatanoCmd(), newCampaignCmd(), newDemoCmd())
+	for _, mk := range commands {
+		root.AddCommand(mk())
+	}
 	return root
 }
+
+// commands are the constructors of the subcommands; each command's file
+// adds its own in an init function, so a new command is one new file here
+// (and its Document in report). Help lists them sorted by name.
+var commands []func() *cobra.Command
+
+// addCommands registers subcommand constructors.
+func addCommands(mk ...func() *cobra.Command) { commands = append(commands, mk...) }

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"sort"
-	"strings"
 	"sync"
 
 	"github.com/fickfit/fickfit/fit"
@@ -14,7 +13,7 @@ import (
 // with a fixed surface concentration on a semi-infinite or finite body
 // (from the data's thickness), isothermal, default grid.
 type Config struct {
-	// DC is the concentration law: "const" (or ""), "exp" or "table".
+	// DC is the concentration law: LawConst (or ""), LawExp or LawTable.
 	//   const: D(C) = D; parameters D, Cs, C0.
 	//   exp:   D(C) = D·exp(k·(C − C0)), D the diffusivity at the far-field
 	//          level C0; parameters D, k, Cs, C0.
@@ -22,8 +21,8 @@ type Config struct {
 	//          (lowest) concentration: the table's shape is kept and the
 	//          whole table is scaled, the fitted D being its value at c₁;
 	//          parameters D, Cs, C0.
-	DC string
-	// Table is the D(C) table for DC "table".
+	DC Law
+	// Table is the D(C) table for DC LawTable.
 	Table *Table
 	// Surface is SurfaceFixed (the zero value; parameter Cs) or
 	// SurfaceMassTransfer (parameters beta in m/s and Cp instead of Cs).
@@ -60,6 +59,12 @@ type Model struct {
 	fixLength                    float64 // tests: freeze the truncation depth
 }
 
+// The numerical model is described in the fit registry (its title in
+// reports) but not built by name: it needs a Config (NewModel).
+func init() {
+	fit.Register(fit.Info{Name: "numeric", Title: "numerical solution with concentration-dependent D", Rank: 100}, nil)
+}
+
 // NewModel checks the configuration and returns the model.
 func NewModel(c Config) (*Model, error) {
 	opt, err := c.Options.resolve()
@@ -68,21 +73,18 @@ func NewModel(c Config) (*Model, error) {
 	}
 	m := &Model{cfg: c, opt: opt, iD: 0, iK: -1, iCs: -1, iBeta: -1, iCp: -1}
 	m.params = []fit.Param{{Name: "D", Log: true, Unit: "m2/s", Free: true}}
-	switch strings.ToLower(strings.TrimSpace(c.DC)) {
-	case "", "const", "constant":
-		m.cfg.DC = "const"
-	case "exp", "exponential":
-		m.cfg.DC = "exp"
+	if m.cfg.DC, err = ParseLaw(string(c.DC)); err != nil {
+		return nil, err
+	}
+	switch m.cfg.DC {
+	case LawExp:
 		m.iK = len(m.params)
 		m.params = append(m.params, fit.Param{Name: "k", Unit: "1/value", Free: true})
-	case "table":
-		m.cfg.DC = "table"
+	case LawTable:
 		if c.Table == nil {
 			return nil, fmt.Errorf("%w: numeric model: D(C) form \"table\" needs a table of (C, D) rows", fit.ErrBadInput)
 		}
 		m.tabC1, m.tabD1 = c.Table.First()
-	default:
-		return nil, fmt.Errorf("%w: numeric model: unknown D(C) form %q (valid: const, exp, table)", fit.ErrBadInput, c.DC)
 	}
 	switch c.Surface {
 	case SurfaceFixed:
@@ -106,8 +108,8 @@ func NewModel(c Config) (*Model, error) {
 // Name implements fit.Model.
 func (m *Model) Name() string { return "numeric" }
 
-// DC returns the resolved concentration law name: "const", "exp" or "table".
-func (m *Model) DC() string { return m.cfg.DC }
+// DC returns the resolved concentration law.
+func (m *Model) DC() Law { return m.cfg.DC }
 
 // Params implements fit.Model.
 func (m *Model) Params() []fit.Param { return append([]fit.Param(nil), m.params...) }
@@ -196,7 +198,7 @@ func (m *Model) Start(d *fit.Data, p []float64) error {
 	sdt := xh / (2 * 0.4769362762044699)
 	D := sdt * sdt / d.Time
 	p[m.iD] = math.Log(D)
-	if m.cfg.DC == "table" {
+	if m.cfg.DC == LawTable {
 		// The law's shape at C0 is T(C0)/T(c₁): start so that D(C0) matches.
 		t, _ := m.cfg.Table.At(c0)
 		p[m.iD] = math.Log(D * m.tabD1 / t)
@@ -224,11 +226,11 @@ func (m *Model) problem(p []float64, d *fit.Data, sp []sensSpec) Problem {
 	pr := Problem{Schedule: m.cfg.Schedule, Time: d.Time, C0: c0, Surface: m.cfg.Surface}
 	pr.Thickness, pr.Far = m.body(d)
 	switch m.cfg.DC {
-	case "const":
+	case LawConst:
 		pr.DC = Const{D}
-	case "exp":
+	case LawExp:
 		pr.DC = Exp{D: D, K: p[m.iK], Cref: c0}
-	case "table":
+	case LawTable:
 		pr.DC = scaled{t: m.cfg.Table, f: D / m.tabD1}
 	}
 	if m.iCs >= 0 {

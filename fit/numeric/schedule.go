@@ -6,11 +6,12 @@ import (
 	"sort"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/phys"
 	"github.com/fickfit/fickfit/profile"
 )
 
 // R is the molar gas constant in J/(mol·K) (CODATA 2018, exact).
-const R = 8.314462618
+const R = phys.R
 
 // Schedule is the time-dependent multiplier of the diffusivity:
 // D(C, t) = D_C(C)·Factor(t), with D_C the law at the reference temperature.

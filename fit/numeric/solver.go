@@ -23,6 +23,7 @@ const (
 	SurfaceSealed
 )
 
+// String is the surface condition's name: "fixed", "mass-transfer" or "sealed".
 func (s Surface) String() string {
 	switch s {
 	case SurfaceFixed:

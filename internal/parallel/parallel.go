@@ -1,4 +1,6 @@
-// Package parallel runs independent jobs over the available cores.
+// Package parallel runs independent jobs over the available cores: the one
+// worker pool of fickfit (batch fits, campaign fits, figure rendering,
+// bootstrap replicates).
 package parallel
 
 import (
@@ -12,7 +14,18 @@ import (
 // not nil it is called from the calling goroutine after each finished job,
 // with the count done so far.
 func For(n int, fn func(i int), progress func(done, total int)) {
-	workers := runtime.GOMAXPROCS(0)
+	Scratch(n, 0, func() struct{} { return struct{}{} }, func(i int, _ struct{}) { fn(i) }, progress)
+}
+
+// Scratch is For with a scratch value per worker: newScratch is called
+// once for each goroutine (at most workers of them; workers ≤ 0 means
+// runtime.GOMAXPROCS(0)) and its value is handed to every job that
+// goroutine runs, so that jobs reuse buffers without sharing them. A job
+// must not keep its scratch after it returns.
+func Scratch[S any](n, workers int, newScratch func() S, fn func(i int, s S), progress func(done, total int)) {
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
 	if workers > n {
 		workers = n
 	}
@@ -23,8 +36,9 @@ func For(n int, fn func(i int), progress func(done, total int)) {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
+			s := newScratch()
 			for i := range jobs {
-				fn(i)
+				fn(i, s)
 				done <- struct{}{}
 			}
 		}()

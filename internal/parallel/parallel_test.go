@@ -27,3 +27,26 @@ func TestFor(t *testing.T) {
 		}
 	}
 }
+
+// TestScratch: each worker gets its own scratch, created once, and no two
+// jobs use one scratch at the same time.
+func TestScratch(t *testing.T) {
+	type buf struct{ busy atomic.Bool }
+	var made atomic.Int64
+	out := make([]int, 500)
+	Scratch(len(out), 3, func() *buf { made.Add(1); return &buf{} }, func(i int, b *buf) {
+		if !b.busy.CompareAndSwap(false, true) {
+			t.Error("a scratch value is shared by two running jobs")
+		}
+		out[i] = i + 1
+		b.busy.Store(false)
+	}, nil)
+	if m := made.Load(); m < 1 || m > 3 {
+		t.Errorf("%d scratch values for 3 workers", m)
+	}
+	for i, v := range out {
+		if v != i+1 {
+			t.Fatalf("slot %d not written", i)
+		}
+	}
+}

@@ -1,0 +1,59 @@
+// Package jsonx is the one JSON path of fickfit's machine outputs: numbers
+// that are not determined (NaN, ±Inf) are written null and read back as
+// NaN, and text is written as it is ('<', '>' and '&' are not escaped as
+// they would be for embedding in HTML). Every MarshalJSON method and every
+// document writer goes through it, so that a value is written with the
+// same bytes wherever it appears.
+package jsonx
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/json"
+	"io"
+	"math"
+)
+
+// Num returns a pointer to v, or nil when v is NaN or ±Inf, so that a
+// *float64 field writes an undetermined number as null.
+func Num(v float64) *float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return &v
+}
+
+// Val is the inverse of Num: nil (null in JSON) reads as NaN.
+func Val(p *float64) float64 {
+	if p == nil {
+		return math.NaN()
+	}
+	return *p
+}
+
+// Marshal is json.Marshal without HTML escaping, for MarshalJSON methods:
+// their bytes are copied verbatim into the enclosing document, so an
+// escape made here would survive into every output.
+func Marshal(v any) ([]byte, error) {
+	var b bytes.Buffer
+	enc := json.NewEncoder(&b)
+	enc.SetEscapeHTML(false)
+	if err := enc.Encode(v); err != nil {
+		return nil, err
+	}
+	return bytes.TrimSuffix(b.Bytes(), []byte("\n")), nil
+}
+
+// Encode writes v as one JSON document: indented by two spaces, without
+// HTML escaping, ending in a newline. Identical values give identical
+// bytes (maps are written with sorted keys by encoding/json).
+func Encode(w io.Writer, v any) error {
+	bw := bufio.NewWriter(w)
+	enc := json.NewEncoder(bw)
+	enc.SetEscapeHTML(false)
+	enc.SetIndent("", "  ")
+	if err := enc.Encode(v); err != nil {
+		return err
+	}
+	return bw.Flush()
+}

@@ -1,0 +1,42 @@
+package jsonx
+
+import (
+	"bytes"
+	"math"
+	"testing"
+)
+
+// Common practice, no source: the contract of the machine outputs.
+func TestNumVal(t *testing.T) {
+	for _, v := range []float64{math.NaN(), math.Inf(1), math.Inf(-1)} {
+		if Num(v) != nil {
+			t.Errorf("Num(%v) is not nil", v)
+		}
+	}
+	if p := Num(2.5); p == nil || *p != 2.5 {
+		t.Errorf("Num(2.5) = %v", p)
+	}
+	if !math.IsNaN(Val(nil)) || Val(Num(-1)) != -1 {
+		t.Error("Val does not invert Num")
+	}
+}
+
+type inner struct{ P string }
+
+func (i inner) MarshalJSON() ([]byte, error) { return Marshal(map[string]string{"p": i.P}) }
+
+func TestNoHTMLEscape(t *testing.T) {
+	var b bytes.Buffer
+	v := struct {
+		A string `json:"a"`
+		B inner  `json:"b"`
+		C []int  `json:"c"`
+	}{"p < 0.001 & x > 1", inner{"<&>"}, []int{}}
+	if err := Encode(&b, v); err != nil {
+		t.Fatal(err)
+	}
+	want := "{\n  \"a\": \"p < 0.001 & x > 1\",\n  \"b\": {\n    \"p\": \"<&>\"\n  },\n  \"c\": []\n}\n"
+	if b.String() != want {
+		t.Errorf("got\n%s\nwant\n%s", b.String(), want)
+	}
+}
