@@ -1,7 +1,6 @@
 package fit
 
 import (
-	"bufio"
 	"bytes"
 	"encoding/json"
 	"fmt"
@@ -11,11 +10,11 @@ import (
 	"path/filepath"
 	"runtime"
 	"runtime/metrics"
-	"strconv"
 	"sync/atomic"
 	"testing"
 	"time"
 
+	"github.com/fickfit/fickfit/internal/longtable"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -105,34 +104,14 @@ func batchJSON(t *testing.T, r *Result) []byte {
 }
 
 // writeLongTable writes a long table of profiles × points rows to path
-// (seeded erf profiles as in batchProfiles, depths in µm), streaming, so the
-// writer itself holds next to nothing.
+// (internal/longtable: seeded erf profiles as in batchProfiles, depths in
+// µm), streaming, so the writer itself holds next to nothing.
 func writeLongTable(path string, profiles, points int) error {
 	f, err := os.Create(path)
 	if err != nil {
 		return err
 	}
-	w := bufio.NewWriterSize(f, 1<<16)
-	w.WriteString("specimen,temperature_C,time_h,depth_um,C_wt%\n")
-	row := make([]byte, 0, 64)
-	rng := rand.New(rand.NewPCG(5, 7))
-	for k := 0; k < profiles; k++ {
-		D := math.Pow(10, -12+2*rng.Float64())
-		cs, c0 := 0.8+0.2*rng.Float64(), 0.1+0.2*rng.Float64()
-		L := 2 * math.Sqrt(D*4*3600)
-		id := "S" + strconv.Itoa(k)
-		for i := 0; i < points; i++ {
-			x := 3 * L * float64(i) / float64(points-1)
-			row = append(row[:0], id...)
-			row = append(row, ",925,4,"...)
-			row = strconv.AppendFloat(row, x*1e6, 'f', 3, 64)
-			row = append(row, ',')
-			row = strconv.AppendFloat(row, cs+(c0-cs)*math.Erf(x/L)+0.005*rng.NormFloat64(), 'f', 4, 64)
-			row = append(row, '\n')
-			w.Write(row)
-		}
-	}
-	if err := w.Flush(); err != nil {
+	if err := longtable.Write(f, longtable.Options{Profiles: profiles, Points: points, Seed: 5}); err != nil {
 		f.Close()
 		return err
 	}
