@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"sync/atomic"
 
 	"gonum.org/v1/gonum/stat/distuv"
 
@@ -249,7 +250,7 @@ func runsOf(n int, at func(i int) (depth, resid float64)) float64 {
 	if n1 < 2 || n2 < 2 {
 		return math.NaN()
 	}
-	pmf := runsDist(n1, n2)
+	pmf := runsNull(n1, n2)
 	var lo, hi float64 // P(R ≤ runs), P(R ≥ runs)
 	for r, pr := range pmf {
 		if r <= runs {
@@ -296,6 +297,33 @@ func runsDist(n1, n2 int) []float64 {
 			pmf[r] = math.Exp(la[m]+lb[m-1]-den) + math.Exp(la[m-1]+lb[m]-den)
 		}
 	}
+	return pmf
+}
+
+// runsCacheSize bounds the counts (n1, n2) whose null distribution is
+// kept: profiles up to 2·runsCacheSize − 2 points (each count below it)
+// share one table per pair; longer ones compute theirs every time.
+const runsCacheSize = 128
+
+// runsCache holds runsDist(n1, n2) once computed: it depends only on the
+// pair, and a batch of fits meets few pairs (about n/2 each). The tables
+// are read-only once stored; the atomic pointers let every worker read
+// them without a lock (two workers computing one pair at once store equal
+// tables, and either is kept).
+var runsCache [runsCacheSize][runsCacheSize]atomic.Pointer[[]float64]
+
+// runsNull returns runsDist(n1, n2), from the cache when the pair is in
+// range. The caller must not modify it.
+func runsNull(n1, n2 int) []float64 {
+	if n1 >= runsCacheSize || n2 >= runsCacheSize {
+		return runsDist(n1, n2)
+	}
+	slot := &runsCache[n1][n2]
+	if p := slot.Load(); p != nil {
+		return *p
+	}
+	pmf := runsDist(n1, n2)
+	slot.Store(&pmf)
 	return pmf
 }
 
