@@ -1,0 +1,265 @@
+package profile
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math/rand/v2"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+// readTableReference reads a text table the way the reader did before its
+// fast path (self-check reference): every data row through encoding/csv
+// and table.add. The fast reader must give the same profiles and errors.
+func readTableReference(r io.Reader, name string) ([]Profile, error) {
+	tr, err := openText(r, name)
+	if err != nil {
+		return nil, err
+	}
+	t, err := newTable(tr.header, tableOptions{org: tr.org, meta: &tr.meta, headerLine: tr.headerLine,
+		defaultID: baseID(name), comma: tr.comma, sepComma: tr.sep == ',', marks: tr.marks,
+		kept: &textBudget{limit: maxKeptText}})
+	if err != nil {
+		return nil, err
+	}
+	if tr.cr == nil {
+		tr.csvFrom("", tr.headerLine+1)
+	}
+	for {
+		rec, line, err := tr.nextCSV()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, err
+		}
+		if err := t.add(rec, line); err != nil {
+			return nil, err
+		}
+	}
+	ps, err := t.finish()
+	if err != nil {
+		return nil, err
+	}
+	return ps, checkUnique(ps)
+}
+
+// sameRead asserts that the fast reader, the reference reader and Each
+// agree on data: the same profiles, or the same error.
+func sameRead(t *testing.T, data []byte) {
+	t.Helper()
+	want, werr := readTableReference(bytes.NewReader(data), "t.csv")
+	got, gerr := ReadCSV(bytes.NewReader(data), "t.csv")
+	if fmt.Sprint(werr) != fmt.Sprint(gerr) {
+		t.Fatalf("error\n got  %v\n want %v\ninput:\n%q", gerr, werr, data)
+	}
+	if !reflect.DeepEqual(normalise(got), normalise(want)) {
+		t.Fatalf("profiles differ\n got  %+v\n want %+v\ninput:\n%q", got, want, data)
+	}
+	var each []Profile
+	st := &stream{seen: map[string]string{}}
+	st.emit = func(p Profile) error { each = append(each, p); return nil }
+	_, eerr := scanTable(bytes.NewReader(data), "t.csv", "t", st)
+	if errors.Is(eerr, ErrUngrouped) {
+		return
+	}
+	if fmt.Sprint(werr) != fmt.Sprint(eerr) {
+		t.Fatalf("streamed: error\n got  %v\n want %v\ninput:\n%q", eerr, werr, data)
+	}
+	if werr == nil && !reflect.DeepEqual(normalise(each), normalise(want)) {
+		t.Fatalf("streamed profiles differ\n got  %+v\n want %+v\ninput:\n%q", each, want, data)
+	}
+}
+
+// normalise drops what may legitimately differ: slice capacities (not
+// seen by DeepEqual) and nil against empty slices.
+func normalise(ps []Profile) []Profile {
+	out := make([]Profile, len(ps))
+	for i, p := range ps {
+		if len(p.Depth) == 0 {
+			p.Depth, p.Value, p.Line = nil, nil, nil
+		}
+		if len(p.Sigma) == 0 {
+			p.Sigma = nil
+		}
+		out[i] = p
+	}
+	return out
+}
+
+// TestFastReaderMatchesReference reads generated long tables with the
+// ways exports vary (separators, line ends, comments and blank lines,
+// spaces, decimal commas and ambiguous marks, per-profile columns, quoted
+// cells, bad cells, ungrouped rows) and checks that the fast path gives
+// what the reference reader gives (self-check).
+func TestFastReaderMatchesReference(t *testing.T) {
+	rng := rand.New(rand.NewPCG(15, 1))
+	for k := 0; k < 400; k++ {
+		sameRead(t, randomTable(rng))
+	}
+}
+
+// randomTable writes a small long table with random variations.
+func randomTable(rng *rand.Rand) []byte {
+	seps := []string{",", ";", "\t"}
+	sep := seps[rng.IntN(3)]
+	comma := sep != "," && rng.IntN(2) == 0
+	eol := []string{"\n", "\r\n"}[rng.IntN(2)]
+	var b strings.Builder
+	if rng.IntN(4) == 0 {
+		b.WriteString("# lot: L9" + eol)
+	}
+	cols := []string{"specimen", "depth_um", "C_wt%"}
+	if rng.IntN(2) == 0 {
+		cols = append(cols, "temperature_C", "time_h")
+	}
+	if rng.IntN(3) == 0 {
+		cols = append(cols, "sigma")
+	}
+	if rng.IntN(4) == 0 {
+		cols = append(cols, "note")
+	}
+	rng.Shuffle(len(cols), func(i, j int) { cols[i], cols[j] = cols[j], cols[i] })
+	b.WriteString(strings.Join(cols, sep) + eol)
+	num := func(v float64, digits int) string {
+		s := fmt.Sprintf("%.*f", digits, v)
+		if comma {
+			s = strings.Replace(s, ".", ",", 1)
+		}
+		return s
+	}
+	dirty := rng.IntN(2) == 0 // bad or odd cells here and there
+	temps := []string{"925", "925", "925", "", "925.0"}
+	if dirty {
+		temps = append(temps, "930")
+	}
+	profiles := 1 + rng.IntN(5)
+	for p := 0; p < profiles; p++ {
+		points := 1 + rng.IntN(6)
+		for i := 0; i < points; i++ {
+			cells := make([]string, len(cols))
+			for c, name := range cols {
+				switch name {
+				case "specimen":
+					cells[c] = fmt.Sprintf("S%d", p)
+				case "depth_um":
+					cells[c] = num(float64(10*(i+1))+0.25*float64(rng.IntN(4)), rng.IntN(4))
+				case "C_wt%":
+					cells[c] = num(0.2+0.7/float64(1+i)+0.001*float64(rng.IntN(9)), 1+rng.IntN(4))
+				case "temperature_C":
+					cells[c] = temps[rng.IntN(len(temps))]
+				case "time_h":
+					cells[c] = []string{"4", "4", "", "4"}[rng.IntN(4)]
+				case "sigma":
+					cells[c] = num(0.01, 2)
+				case "note":
+					cells[c] = []string{"", "ok", "ok", "ok"}[rng.IntN(4)]
+				}
+				if !dirty {
+					continue
+				}
+				switch rng.IntN(60) {
+				case 0:
+					cells[c] = " " + cells[c]
+				case 1:
+					cells[c] += " "
+				case 2:
+					cells[c] = "x" + cells[c]
+				case 3:
+					cells[c] = `"` + cells[c] + `"`
+				case 4:
+					cells[c] = ""
+				case 5:
+					cells[c] = "\u00a0" + cells[c]
+				case 6:
+					cells[c] = "−" + cells[c]
+				}
+			}
+			b.WriteString(strings.Join(cells, sep))
+			switch rng.IntN(30) {
+			case 0:
+				b.WriteString(sep)
+			case 1:
+				b.WriteString(eol + "# a comment")
+			case 2:
+				b.WriteString(eol)
+			}
+			b.WriteString(eol)
+		}
+		if rng.IntN(25) == 0 {
+			p -= 2 // rows of an earlier profile again: not grouped
+			if p < -1 {
+				p = -1
+			}
+		}
+	}
+	return []byte(b.String())
+}
+
+// TestRowScannerMatchesCSV splits random lines without quotes, with every
+// separator, white space and line end, and compares each record with
+// what encoding/csv returns (self-check).
+func TestRowScannerMatchesCSV(t *testing.T) {
+	rng := rand.New(rand.NewPCG(15, 2))
+	atoms := []string{"a", "1", "0,5", ",", ";", "\t", " ", "  ", "\r", "\u00a0", "\u0085", "\u2003", "#", "é", "\xe9", "x y"}
+	for k := 0; k < 2000; k++ {
+		var b strings.Builder
+		lines := 1 + rng.IntN(6)
+		for l := 0; l < lines; l++ {
+			n := rng.IntN(8)
+			for i := 0; i < n; i++ {
+				b.WriteString(atoms[rng.IntN(len(atoms))])
+			}
+			if l < lines-1 || rng.IntN(2) == 0 {
+				b.WriteString([]string{"\n", "\r\n"}[rng.IntN(2)])
+			}
+		}
+		text := b.String()
+		for _, sep := range []rune{',', ';', '\t'} {
+			cr := csv.NewReader(strings.NewReader(text))
+			cr.Comma, cr.Comment, cr.FieldsPerRecord = sep, '#', -1
+			cr.TrimLeadingSpace = sep != '\t'
+			rs := &rowScanner{in: bufioReader(text), sep: byte(sep), trim: sep != '\t'}
+			for {
+				want, werr := cr.Read()
+				fields, raw, line, gerr := rs.next()
+				if werr == io.EOF || gerr == io.EOF {
+					if werr != gerr {
+						t.Fatalf("sep %q: end: csv %v, scanner %v\n%q", sep, werr, gerr, text)
+					}
+					break
+				}
+				if werr != nil || gerr != nil || raw != nil {
+					t.Fatalf("sep %q: csv %v, scanner %v %q\n%q", sep, werr, gerr, raw, text)
+				}
+				if got := rs.cells(fields, nil); !reflect.DeepEqual(got, want) {
+					t.Fatalf("sep %q: record %q, csv %q\n%q", sep, got, want, text)
+				}
+				if wl, _ := cr.FieldPos(0); wl != line {
+					t.Fatalf("sep %q: line %d, csv %d\n%q", sep, line, wl, text)
+				}
+			}
+		}
+	}
+}
+
+func FuzzFastReader(f *testing.F) {
+	rng := rand.New(rand.NewPCG(15, 3))
+	for k := 0; k < 20; k++ {
+		f.Add(randomTable(rng))
+	}
+	f.Fuzz(func(t *testing.T, data []byte) {
+		sameRead(t, data)
+	})
+}
+
+// bufioReader reads text through a small buffer, so that long lines are
+// assembled from several reads.
+func bufioReader(text string) *bufio.Reader {
+	return bufio.NewReaderSize(strings.NewReader(text), 16)
+}
