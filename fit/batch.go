@@ -2,6 +2,7 @@ package fit
 
 import (
 	"fmt"
+	"runtime"
 
 	"github.com/fickfit/fickfit/internal/parallel"
 	"github.com/fickfit/fickfit/profile"
@@ -31,6 +32,50 @@ func FitAll(ps []profile.Profile, o Options, b *BatchOptions) (results []*Result
 	}
 	parallel.For(len(ps), func(i int) { results[i], errs[i] = fitRecovered(&ps[i], o) }, progress)
 	return results, errs
+}
+
+// EachWindow is how many profiles FitEach holds at most (read but not yet
+// handed to done) per core.
+const EachWindow = 64
+
+// FitEach fits the profiles that read yields, in parallel over the
+// available cores while read is still reading, and calls done with each
+// profile, its result and its error in the order read yielded them, from
+// the calling goroutine, as soon as the profiles before it are done:
+// results can be written as they come, and only a window of profiles
+// (EachWindow per core) is held at any time. read has the shape of
+// profile.Each: FitEach(func(yield func(*profile.Profile) error) error {
+// return profile.Each(paths, yield) }, …). Each profile is fitted as by
+// FitAll, with the same result and error. b.Progress, when given, is
+// called after each done with the count so far and a total of −1 (not
+// known in advance).
+//
+// When done or read returns an error, the fits stop and that error is
+// returned (done's first).
+func FitEach(read func(yield func(*profile.Profile) error) error, o Options, b *BatchOptions, done func(p *profile.Profile, r *Result, err error) error) error {
+	var progress func(done, total int)
+	if b != nil {
+		progress = b.Progress
+	}
+	type fitted struct {
+		r   *Result
+		err error
+	}
+	n := 0
+	return parallel.Ordered(EachWindow*runtime.GOMAXPROCS(0), read,
+		func(p *profile.Profile) fitted {
+			r, err := fitRecovered(p, o)
+			return fitted{r, err}
+		},
+		func(p *profile.Profile, f fitted) error {
+			if err := done(p, f.r, f.err); err != nil {
+				return err
+			}
+			if n++; progress != nil {
+				progress(n, -1)
+			}
+			return nil
+		})
 }
 
 // fitRecovered is Fit with a panic inside a model turned into an error.

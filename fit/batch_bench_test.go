@@ -196,3 +196,38 @@ func BenchmarkReadFit1M(b *testing.B) {
 	b.ReportMetric(float64(peak)/(1<<20), "peak-heap-MB")
 	b.ReportMetric(float64(ms.Sys)/(1<<20), "sys-MB")
 }
+
+// TestFitEachMatchesFitAll: FitEach hands every profile on in input order
+// with the result (to the last bit, through JSON) and the error FitAll
+// gives it, including failures (self-check).
+func TestFitEachMatchesFitAll(t *testing.T) {
+	ps := batchProfiles(300, 50, 4)
+	ps[7].Value = make([]float64, 50) // all equal: bad input
+	ps[8].Depth, ps[8].Value = ps[8].Depth[:3], ps[8].Value[:3]
+	o := Options{CI: "wald"}
+	want, werrs := FitAll(ps, o, nil)
+	i, calls := 0, 0
+	err := FitEach(func(yield func(*profile.Profile) error) error {
+		for k := range ps {
+			if err := yield(&ps[k]); err != nil {
+				return err
+			}
+		}
+		return nil
+	}, o, &BatchOptions{Progress: func(done, total int) { calls++ }}, func(p *profile.Profile, r *Result, err error) error {
+		if p != &ps[i] {
+			t.Fatalf("profile %d handed on as %s", i, p.ID)
+		}
+		if fmt.Sprint(err) != fmt.Sprint(werrs[i]) {
+			t.Fatalf("profile %d: error %v, FitAll %v", i, err, werrs[i])
+		}
+		if err == nil && !bytes.Equal(batchJSON(t, r), batchJSON(t, want[i])) {
+			t.Fatalf("profile %d: result differs from FitAll's", i)
+		}
+		i++
+		return nil
+	})
+	if err != nil || i != len(ps) || calls != len(ps) {
+		t.Fatalf("%d of %d profiles done, %d progress calls, error %v", i, len(ps), calls, err)
+	}
+}

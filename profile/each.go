@@ -14,7 +14,7 @@ import (
 var ErrUngrouped = errors.New("rows of a profile not together")
 
 // Each reads the profiles that ReadAll(paths) returns, in the same order,
-// and calls fn with each as soon as its rows are read, so that a caller
+// and calls fn with each as soon as its rows are read (fn may keep p), so that a caller
 // can work on the first profiles of a long table while the rest is still
 // being read, and let go of them before the end: the memory Each holds is
 // a few profiles and the set of ids met (to refuse a duplicate), not the
@@ -34,20 +34,20 @@ var ErrUngrouped = errors.New("rows of a profile not together")
 // duplicate id after every file is read. Once such an error is known fn
 // is no longer called. An error returned by fn stops the reading and is
 // returned as it is.
-func Each(paths []string, fn func(p Profile) error) error {
+func Each(paths []string, fn func(p *Profile) error) error {
 	files, err := expand(paths)
 	if err != nil {
 		return err
 	}
 	st := &stream{seen: map[string]string{}}
-	st.emit = func(p Profile) error {
+	st.emit = func(p *Profile) error {
 		if st.dup != nil {
 			return nil
 		}
 		if src, ok := st.seen[p.ID]; !ok {
 			st.seen[p.ID] = p.Source
 		} else if src != p.Source {
-			st.dup = duplicateError(p, src)
+			st.dup = duplicateError(*p, src)
 			return nil
 		}
 		return fn(p)
@@ -62,7 +62,7 @@ func Each(paths []string, fn func(p Profile) error) error {
 
 // stream is the state of Each across files.
 type stream struct {
-	emit func(Profile) error
+	emit func(*Profile) error
 	// seen maps every id met to the source of its first profile.
 	seen map[string]string
 	dup  error // the first duplicate id
@@ -76,8 +76,8 @@ func (st *stream) file(path string) error {
 		if err != nil {
 			return err
 		}
-		for _, p := range ps {
-			if err := st.emit(p); err != nil {
+		for i := range ps {
+			if err := st.emit(&ps[i]); err != nil {
 				return err
 			}
 		}
@@ -124,12 +124,12 @@ func (t *table) streamProfileFor(id, raw string, line int) (*building, error) {
 // validation error for finish (an error in a later row comes first, as
 // when the file is read whole).
 func (t *table) complete(b *building) error {
-	p := t.profile(b)
-	if err := p.Validate(); err != nil {
+	b.p = t.profile(b)
+	if err := b.p.Validate(); err != nil {
 		t.deferred = err
 		return nil
 	}
-	return t.stream.emit(p)
+	return t.stream.emit(&b.p)
 }
 
 // duplicateError is checkUnique's error for p, whose id the profile from

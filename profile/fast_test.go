@@ -63,7 +63,7 @@ func sameRead(t *testing.T, data []byte) {
 	}
 	var each []Profile
 	st := &stream{seen: map[string]string{}}
-	st.emit = func(p Profile) error { each = append(each, p); return nil }
+	st.emit = func(p *Profile) error { each = append(each, *p); return nil }
 	_, eerr := scanTable(bytes.NewReader(data), "t.csv", "t", st)
 	if errors.Is(eerr, ErrUngrouped) {
 		return

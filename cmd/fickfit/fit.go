@@ -44,6 +44,11 @@ highest temperature), exact when D does not depend on concentration.`,
 			if err != nil {
 				return err
 			}
+			if streamable(&ff, history, qText, tref) {
+				if handled, err := fitStreamed(c, args, &ff, o, &out); handled {
+					return err
+				}
+			}
 			ps, err := profile.ReadAll(args)
 			if err != nil {
 				return err

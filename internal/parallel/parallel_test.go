@@ -1,8 +1,10 @@
 package parallel
 
 import (
+	"errors"
 	"sync/atomic"
 	"testing"
+	"time"
 )
 
 // TestFor: every job runs once, its slot is written, progress counts up to n.
@@ -48,5 +50,81 @@ func TestScratch(t *testing.T) {
 		if v != i+1 {
 			t.Fatalf("slot %d not written", i)
 		}
+	}
+}
+
+// TestOrdered: every item is done once, in the order yielded, with its own
+// result, and never more than window items are between yield and done.
+func TestOrdered(t *testing.T) {
+	for _, n := range []int{0, 1, 7, 1000} {
+		var inFlight, most atomic.Int64
+		next := 0
+		err := Ordered(8, func(yield func(int) error) error {
+			for i := 0; i < n; i++ {
+				if err := yield(i); err != nil {
+					return err
+				}
+				if f := inFlight.Add(1); f > most.Load() {
+					most.Store(f)
+				}
+			}
+			return nil
+		}, func(i int) int {
+			if i%5 == 0 {
+				time.Sleep(50 * time.Microsecond) // finish out of order
+			}
+			return i * i
+		}, func(i, sq int) error {
+			inFlight.Add(-1)
+			if i != next || sq != i*i {
+				t.Errorf("done(%d, %d) after %d items", i, sq, next)
+			}
+			next++
+			return nil
+		})
+		if err != nil || next != n {
+			t.Errorf("n=%d: %d done, error %v", n, next, err)
+		}
+		if m := most.Load(); m > 8+1 {
+			t.Errorf("n=%d: %d items in flight, window 8", n, m)
+		}
+	}
+}
+
+// TestOrderedErrors: an error from done or from source stops the pipeline
+// and is returned; yield fails from then on and done is not called again.
+func TestOrderedErrors(t *testing.T) {
+	bad := errors.New("bad")
+	calls := 0
+	yieldErr := error(nil)
+	err := Ordered(4, func(yield func(int) error) error {
+		for i := 0; i < 1000; i++ {
+			if err := yield(i); err != nil {
+				yieldErr = err
+				return err
+			}
+		}
+		return nil
+	}, func(i int) int { return i }, func(i, _ int) error {
+		calls++
+		if i == 10 {
+			return bad
+		}
+		return nil
+	})
+	if err != bad || calls != 11 || yieldErr == nil {
+		t.Errorf("done error: got %v after %d calls (yield %v)", err, calls, yieldErr)
+	}
+	calls = 0
+	err = Ordered(4, func(yield func(int) error) error {
+		for i := 0; i < 10; i++ {
+			if err := yield(i); err != nil {
+				return err
+			}
+		}
+		return bad
+	}, func(i int) int { return i }, func(i, _ int) error { calls++; return nil })
+	if err != bad || calls > 10 {
+		t.Errorf("source error: got %v after %d calls", err, calls)
 	}
 }
