@@ -3,17 +3,24 @@ package fit
 import (
 	"fmt"
 	"runtime"
+	"sync"
 
 	"github.com/fickfit/fickfit/internal/parallel"
 	"github.com/fickfit/fickfit/profile"
 )
 
-// BatchOptions control FitAll. The zero value (or nil) reports no progress.
+// BatchOptions control FitAll and FitEach. The zero value (or nil)
+// reports no progress.
 type BatchOptions struct {
 	// Progress, when not nil, is called after each finished profile with
 	// the count done so far and the total. It is called from one goroutine
 	// at a time.
 	Progress func(done, total int)
+	// Reuse, for FitEach, tells that done is through with a result when
+	// it returns (it writes a summary row, say): the storage of the result
+	// (its parameters, residuals, correlations) is then lent to a later
+	// fit. done must not keep r, or anything in it, after it returns.
+	Reuse bool
 }
 
 // FitAll fits every profile with the options o, in parallel over the
@@ -30,7 +37,7 @@ func FitAll(ps []profile.Profile, o Options, b *BatchOptions) (results []*Result
 	if b != nil {
 		progress = b.Progress
 	}
-	parallel.For(len(ps), func(i int) { results[i], errs[i] = fitRecovered(&ps[i], o) }, progress)
+	parallel.For(len(ps), func(i int) { results[i], errs[i] = fitRecovered(&ps[i], o, nil) }, progress)
 	return results, errs
 }
 
@@ -54,21 +61,34 @@ const EachWindow = 64
 // returned (done's first).
 func FitEach(read func(yield func(*profile.Profile) error) error, o Options, b *BatchOptions, done func(p *profile.Profile, r *Result, err error) error) error {
 	var progress func(done, total int)
+	reuse := false
 	if b != nil {
-		progress = b.Progress
+		progress, reuse = b.Progress, b.Reuse
 	}
 	type fitted struct {
 		r   *Result
 		err error
 	}
+	var spare sync.Pool // results done with, when reuse
 	n := 0
 	return parallel.Ordered(EachWindow*runtime.GOMAXPROCS(0), read,
 		func(p *profile.Profile) fitted {
-			r, err := fitRecovered(p, o)
+			var into *Result
+			if reuse {
+				into, _ = spare.Get().(*Result)
+			}
+			r, err := fitRecovered(p, o, into)
+			if r != into && into != nil {
+				spare.Put(into)
+			}
 			return fitted{r, err}
 		},
 		func(p *profile.Profile, f fitted) error {
-			if err := done(p, f.r, f.err); err != nil {
+			err := done(p, f.r, f.err)
+			if reuse && f.r != nil {
+				spare.Put(f.r)
+			}
+			if err != nil {
 				return err
 			}
 			if n++; progress != nil {
@@ -78,12 +98,13 @@ func FitEach(read func(yield func(*profile.Profile) error) error, o Options, b *
 		})
 }
 
-// fitRecovered is Fit with a panic inside a model turned into an error.
-func fitRecovered(p *profile.Profile, o Options) (r *Result, err error) {
+// fitRecovered is fitInto with a panic inside a model turned into an
+// error.
+func fitRecovered(p *profile.Profile, o Options, into *Result) (r *Result, err error) {
 	defer func() {
 		if e := recover(); e != nil {
 			r, err = nil, errAt(p, fmt.Errorf("%w: internal error while fitting: %v", ErrNoAnswer, e))
 		}
 	}()
-	return Fit(p, o)
+	return fitInto(p, o, into)
 }

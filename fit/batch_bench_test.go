@@ -67,6 +67,47 @@ func BenchmarkFitAll10k(b *testing.B) {
 	b.ReportMetric(perBatch/float64(len(ps))*1e6, "µs/fit")
 }
 
+// BenchmarkFitEach10k fits the profiles of BenchmarkFitAll10k through
+// FitEach, each result handed to a done that only reads it (a summary
+// row): with results kept, and with their storage lent to later fits
+// (Reuse). Reported: µs/fit, and allocations per fit.
+func BenchmarkFitEach10k(b *testing.B) {
+	ps := batchProfiles(10000, 50, 1)
+	o := Options{CI: "wald"}
+	for _, reuse := range []bool{false, true} {
+		b.Run(fmt.Sprintf("reuse=%v", reuse), func(b *testing.B) {
+			b.ReportAllocs()
+			failed := 0
+			sum := 0.0
+			for b.Loop() {
+				failed = 0
+				err := FitEach(func(yield func(*profile.Profile) error) error {
+					for k := range ps {
+						if err := yield(&ps[k]); err != nil {
+							return err
+						}
+					}
+					return nil
+				}, o, &BatchOptions{Reuse: reuse}, func(p *profile.Profile, r *Result, err error) error {
+					if err != nil {
+						failed++
+						return nil
+					}
+					sum += r.Params[0].Value + r.Stats.RunsP
+					return nil
+				})
+				if err != nil {
+					b.Fatal(err)
+				}
+			}
+			if failed > 0 {
+				b.Errorf("%d of %d fits failed", failed, len(ps))
+			}
+			b.ReportMetric(b.Elapsed().Seconds()/float64(b.N)/float64(len(ps))*1e6, "µs/fit")
+		})
+	}
+}
+
 // TestFitAllOrderAndDeterminism: FitAll returns the results in input order,
 // each identical (to the last bit, through the JSON the command line
 // writes) to a one-at-a-time Fit of the same profile, and identical between
@@ -199,35 +240,46 @@ func BenchmarkReadFit1M(b *testing.B) {
 
 // TestFitEachMatchesFitAll: FitEach hands every profile on in input order
 // with the result (to the last bit, through JSON) and the error FitAll
-// gives it, including failures (self-check).
+// gives it, including failures, also when results lend their storage to
+// later fits (Reuse) (self-check).
 func TestFitEachMatchesFitAll(t *testing.T) {
 	ps := batchProfiles(300, 50, 4)
 	ps[7].Value = make([]float64, 50) // all equal: bad input
 	ps[8].Depth, ps[8].Value = ps[8].Depth[:3], ps[8].Value[:3]
-	o := Options{CI: "wald"}
-	want, werrs := FitAll(ps, o, nil)
-	i, calls := 0, 0
-	err := FitEach(func(yield func(*profile.Profile) error) error {
-		for k := range ps {
-			if err := yield(&ps[k]); err != nil {
-				return err
+	for k := 20; k < 40; k++ { // other lengths and weights: storage of other sizes
+		ps[k].Depth, ps[k].Value = ps[k].Depth[:k], ps[k].Value[:k]
+		ps[k].Sigma = make([]float64, len(ps[k].Depth))
+		for i := range ps[k].Sigma {
+			ps[k].Sigma[i] = 0.004 + 0.0001*float64(i)
+		}
+	}
+	for _, o := range []Options{{CI: "wald"}, {CI: "wald", Free: []string{"x0"}}, {}} {
+		want, werrs := FitAll(ps, o, nil)
+		for _, reuse := range []bool{false, true} {
+			i, calls := 0, 0
+			err := FitEach(func(yield func(*profile.Profile) error) error {
+				for k := range ps {
+					if err := yield(&ps[k]); err != nil {
+						return err
+					}
+				}
+				return nil
+			}, o, &BatchOptions{Reuse: reuse, Progress: func(done, total int) { calls++ }}, func(p *profile.Profile, r *Result, err error) error {
+				if p != &ps[i] {
+					t.Fatalf("profile %d handed on as %s", i, p.ID)
+				}
+				if fmt.Sprint(err) != fmt.Sprint(werrs[i]) {
+					t.Fatalf("profile %d: error %v, FitAll %v", i, err, werrs[i])
+				}
+				if err == nil && !bytes.Equal(batchJSON(t, r), batchJSON(t, want[i])) {
+					t.Fatalf("reuse %v, profile %d: result differs from FitAll's", reuse, i)
+				}
+				i++
+				return nil
+			})
+			if err != nil || i != len(ps) || calls != len(ps) {
+				t.Fatalf("%d of %d profiles done, %d progress calls, error %v", i, len(ps), calls, err)
 			}
 		}
-		return nil
-	}, o, &BatchOptions{Progress: func(done, total int) { calls++ }}, func(p *profile.Profile, r *Result, err error) error {
-		if p != &ps[i] {
-			t.Fatalf("profile %d handed on as %s", i, p.ID)
-		}
-		if fmt.Sprint(err) != fmt.Sprint(werrs[i]) {
-			t.Fatalf("profile %d: error %v, FitAll %v", i, err, werrs[i])
-		}
-		if err == nil && !bytes.Equal(batchJSON(t, r), batchJSON(t, want[i])) {
-			t.Fatalf("profile %d: result differs from FitAll's", i)
-		}
-		i++
-		return nil
-	})
-	if err != nil || i != len(ps) || calls != len(ps) {
-		t.Fatalf("%d of %d profiles done, %d progress calls, error %v", i, len(ps), calls, err)
 	}
 }

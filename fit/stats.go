@@ -3,6 +3,7 @@ package fit
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"sync/atomic"
 
@@ -23,7 +24,7 @@ func (r *Result) finish(sol *Solution, o Options) error {
 			k++
 		}
 	}
-	r.FreeNames = make([]string, 0, k)
+	r.FreeNames = slices.Grow(r.FreeNames[:0], k)
 	for j, f := range r.free {
 		if f {
 			r.FreeNames = append(r.FreeNames, params[j].Name)
@@ -49,7 +50,7 @@ func (r *Result) finish(sol *Solution, o Options) error {
 		return fmt.Errorf("%w: confidence level %g must be between 0 and 1 (e.g. 0.95)", ErrBadInput, level)
 	}
 	r.CILevel = level
-	cov, ok := invertSPD(sol.JTJ, k)
+	cov, ok := invertSPDInto(sol.JTJ, k, r.cov)
 	if !ok {
 		return fmt.Errorf("%w: the parameters %v cannot be separated by these data (singular Jacobian); hold one of them fixed at a known value or add points where the profile changes", ErrNoAnswer, r.FreeNames)
 	}
@@ -67,8 +68,12 @@ func (r *Result) finish(sol *Solution, o Options) error {
 		}
 	}
 	r.cov = cov
-	r.Correlation = make([][]float64, k)
-	corr := make([]float64, k*k)
+	var corr []float64 // the rows' storage: Correlation[0] spans it
+	if len(r.Correlation[:cap(r.Correlation)]) > 0 {
+		corr = r.Correlation[:1][0]
+	}
+	r.Correlation = resize(r.Correlation, k)
+	corr = resize(corr[:cap(corr)], k*k)
 	for i := range cov {
 		r.Correlation[i] = corr[i*k : (i+1)*k]
 		for j := range cov[i] {
@@ -81,7 +86,7 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	if r.Covariance == CovAbsolute {
 		tq = stats.Z(level)
 	}
-	r.Params = make([]Estimate, len(params))
+	r.Params = resize(r.Params, len(params))
 	fi := 0
 	for j, pa := range params {
 		e := Estimate{Name: pa.Name, Unit: unitFor(pa, r), Value: external(pa, r.pint[j]), Fixed: !r.free[j]}
@@ -113,7 +118,7 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	}
 	r.CIMethod = CIWald
 
-	r.Residuals = make([]Residual, n)
+	r.Residuals = resize(r.Residuals, n)
 	for i := range d.X {
 		r.Residuals[i] = Residual{Depth: d.X[i], Observed: d.Y[i], Fitted: sol.F[i], Residual: d.Y[i] - sol.F[i]}
 	}

@@ -94,8 +94,10 @@ func (c *FitCSV) Close() error {
 type FitStream struct {
 	// Run runs the fits, calling each with every profile and its result
 	// or error, in input order, and returns each's error or its own (a
-	// reading error, say).
-	Run func(each func(p *profile.Profile, r *fit.Result, err error) error) error
+	// reading error, say). With keep false each is through with a result
+	// when it returns, and Run may lend its storage to a later fit
+	// (fit.BatchOptions.Reuse).
+	Run func(keep bool, each func(p *profile.Profile, r *fit.Result, err error) error) error
 	// Gather writes the CSV whole after every fit: its columns depend on
 	// every result when the profiles may be fitted with different models
 	// (--model auto).
@@ -110,10 +112,11 @@ type FitStream struct {
 	Errs   []error
 }
 
-// run runs the fits, handing each result to add and each failure to fail.
-func (s *FitStream) run(add func(*fit.Result) error, fail func(fit.Failure)) error {
+// run runs the fits, handing each result to add and each failure to fail;
+// keep tells whether add keeps the results.
+func (s *FitStream) run(keep bool, add func(*fit.Result) error, fail func(fit.Failure)) error {
 	var addErr error
-	err := s.Run(func(p *profile.Profile, r *fit.Result, err error) error {
+	err := s.Run(keep, func(p *profile.Profile, r *fit.Result, err error) error {
 		if err != nil {
 			s.Errs = append(s.Errs, err)
 			fail(fit.NewFailure(p, err))
@@ -135,7 +138,7 @@ func (s *FitStream) run(add func(*fit.Result) error, fail func(fit.Failure)) err
 // could be fitted.
 func (s *FitStream) gather() (Fits, error) {
 	f := Fits{Version: s.Version}
-	err := s.run(func(r *fit.Result) error { f.Results = append(f.Results, r); return nil },
+	err := s.run(true, func(r *fit.Result) error { f.Results = append(f.Results, r); return nil },
 		func(fl fit.Failure) { f.Failed = append(f.Failed, fl) })
 	if err == nil && len(f.Results) == 0 {
 		err = ErrNoFits
@@ -154,7 +157,7 @@ func (s *FitStream) WriteCSV(w io.Writer) error {
 		return f.WriteCSV(w)
 	}
 	c := NewFitCSV(w)
-	if err := s.run(c.Add, c.Fail); err != nil {
+	if err := s.run(false, c.Add, c.Fail); err != nil {
 		return err
 	}
 	return c.Close()

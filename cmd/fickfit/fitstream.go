@@ -48,7 +48,8 @@ func fitStreamed(c *cobra.Command, args []string, ff *fitFlags, o fit.Options, o
 	batch := &fit.BatchOptions{Progress: progress(c, "fit", 1)}
 	doc := &report.FitStream{
 		Gather: strings.EqualFold(strings.TrimSpace(o.Model), "auto") && o.Custom == nil,
-		Run: func(each func(*profile.Profile, *fit.Result, error) error) error {
+		Run: func(keep bool, each func(*profile.Profile, *fit.Result, error) error) error {
+			batch.Reuse = !keep
 			return fit.FitEach(read, o, batch, each)
 		},
 	}
