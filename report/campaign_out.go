@@ -42,7 +42,7 @@ type arrheniusDoc struct {
 func (res *CampaignReport) WriteJSON(w io.Writer) error {
 	doc := campaignDoc{
 		Version: res.Version, Inputs: nonNil(res.Inputs), Options: res.audit(),
-		Fits: jsonResults(res.Results), Failed: nonNil(res.Failed),
+		Fits: []*fit.Result{}, Failed: nonNil(res.Failed),
 		Arrhenius:  arrheniusDoc{Method: res.Method, By: res.By, Groups: []arrhenius.Line{}, Failed: nonNil(res.LineErrors)},
 		Comparison: res.Comparison, ComparisonError: res.ComparisonError,
 		Backcalc: nonNil(res.Parts), Notes: nonNil(res.Notes), Cautions: nonNil(res.Cautions),
@@ -50,7 +50,7 @@ func (res *CampaignReport) WriteJSON(w io.Writer) error {
 	if res.Lines != nil {
 		doc.Arrhenius.Groups = nonNil(res.Lines.Lines)
 	}
-	return encodeJSON(w, doc)
+	return encodeWithFits(w, doc, res.Results) // the fits one at a time
 }
 
 // Arrhenius is the Document of the campaign's Arrhenius lines, as

@@ -35,8 +35,9 @@ type renderedFigure struct {
 	err    error
 }
 
-// renderAll draws every figure, in parallel over the available cores.
-func renderAll(figs []*Figure, png bool, dpi int, progress func(done, total int)) ([]renderedFigure, error) {
+// renderAll draws every figure, in parallel over the available cores, as
+// PNG too when png says so.
+func renderAll(figs []*Figure, png func(*Figure) bool, dpi int, progress func(done, total int)) ([]renderedFigure, error) {
 	out := make([]renderedFigure, len(figs))
 	parallel.For(len(figs), func(i int) {
 		rf := renderedFigure{fig: figs[i]}
@@ -44,7 +45,7 @@ func renderAll(figs []*Figure, png bool, dpi int, progress func(done, total int)
 		if rf.err == nil {
 			rf.inline, rf.err = figs[i].inlineSVG()
 		}
-		if rf.err == nil && png {
+		if rf.err == nil && png(figs[i]) {
 			var b bytes.Buffer
 			rf.err = figs[i].WritePNG(&b, dpi)
 			rf.png = b.Bytes()
@@ -96,6 +97,9 @@ func WriteCampaign(dir string, result *campaign.Result, opts CampaignOptions) ([
 
 	fs, _ := res.makeFigures(opts)
 	figs := fs.all(res)
+	// PNG for the Arrhenius and lots figures; for the profiles' only when
+	// every profile is shown (details).
+	png := func(f *Figure) bool { return !opts.NoPNG && (fs.detail.pngFor() || f == fs.arrhenius || f == fs.lots) }
 	type job struct {
 		path  string
 		write func(io.Writer) error
@@ -130,7 +134,7 @@ func WriteCampaign(dir string, result *campaign.Result, opts CampaignOptions) ([
 	add(FileWorkbook, func(w io.Writer) error { _, err := w.Write(book.Bytes()); return err })
 	for _, f := range figs {
 		jobs = append(jobs, job{filepath.Join(figDir, f.Name+".svg"), nil})
-		if !opts.NoPNG {
+		if png(f) {
 			jobs = append(jobs, job{filepath.Join(figDir, f.Name+".png"), nil})
 		}
 	}
@@ -141,7 +145,7 @@ func WriteCampaign(dir string, result *campaign.Result, opts CampaignOptions) ([
 		}
 	}
 	var err error
-	rendered, err = renderAll(figs, !opts.NoPNG, opts.DPI, func(d, t int) { opts.progress("figures", d, t) })
+	rendered, err = renderAll(figs, png, opts.DPI, func(d, t int) { opts.progress("figures", d, t) })
 	if err != nil {
 		return nil, err
 	}
