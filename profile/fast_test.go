@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"math/rand/v2"
 	"reflect"
 	"strings"
@@ -262,4 +263,114 @@ func FuzzFastReader(f *testing.F) {
 // assembled from several reads.
 func bufioReader(text string) *bufio.Reader {
 	return bufio.NewReaderSize(strings.NewReader(text), 16)
+}
+
+// TestParseNumberBytes: the fast number parser accepts what parseNumber
+// accepts (ASCII text) and gives the same double, to the bit, on random
+// numbers of every shape and on text that is not a number (self-check
+// against strconv through parseNumber).
+func TestParseNumberBytes(t *testing.T) {
+	rng := rand.New(rand.NewPCG(15, 5))
+	digits := func(n int) string {
+		var b strings.Builder
+		for i := 0; i < n; i++ {
+			b.WriteByte(byte('0' + rng.IntN(10)))
+		}
+		return b.String()
+	}
+	fixed := []string{"0", "-0", "+0.0", ".5", "5.", "-.5e-3", "1e22", "1e23", "9007199254740993", "4503599627370497",
+		"1234567890123456789", "12345678901234567890", "0.1", "1e-22", "1e-23", "2.2250738585072011e-308", "1e-400",
+		"1e400", "1.7976931348623157e308", "1.7976931348623159e308", "e5", "1e", "1e+", "1.2.3", "1,5", "1,5,5", "1.5,5",
+		"--1", "+-1", "0x10", "1_000", "Inf", "NaN", ".", "-", "", " 1", "1 ", "1e0x", "00000000000000000000001.5"}
+	var cases []string
+	cases = append(cases, fixed...)
+	for k := 0; k < 20000; k++ {
+		s := ""
+		switch rng.IntN(3) {
+		case 1:
+			s = "-"
+		case 2:
+			s = "+"
+		}
+		s += digits(rng.IntN(22))
+		if rng.IntN(2) == 0 {
+			s += "." + digits(rng.IntN(22))
+		}
+		if rng.IntN(3) == 0 {
+			s += []string{"e", "E", "e-", "e+"}[rng.IntN(4)] + digits(rng.IntN(4))
+		}
+		if rng.IntN(10) == 0 {
+			s += string("x,.e"[rng.IntN(4)])
+		}
+		cases = append(cases, s)
+	}
+	for _, s := range cases {
+		for _, comma := range []bool{false, true} {
+			in := s
+			if comma {
+				in = strings.Replace(s, ".", ",", 1)
+			}
+			want, werr := parseNumber(in, comma)
+			got, ok := parseNumberBytes([]byte(strings.TrimSpace(in)), comma)
+			if ok != (werr == nil) && !(werr == nil && strings.TrimSpace(in) != in) {
+				t.Fatalf("%q (comma %v): fast accepts %v, parseNumber error %v", in, comma, ok, werr)
+			}
+			if ok && math.Float64bits(got) != math.Float64bits(want) {
+				t.Fatalf("%q (comma %v): %v, parseNumber %v", in, comma, got, want)
+			}
+		}
+	}
+}
+
+// TestLineLimiter: the limiter counts lines and stops at the byte that
+// makes a line longer than its limit, whatever the reads' sizes (self-check
+// against a byte-by-byte count).
+func TestLineLimiter(t *testing.T) {
+	rng := rand.New(rand.NewPCG(15, 6))
+	for k := 0; k < 500; k++ {
+		var b strings.Builder
+		for b.Len() < 300 {
+			if rng.IntN(8) == 0 {
+				b.WriteByte('\n')
+			} else {
+				b.WriteString(strings.Repeat("x", rng.IntN(12)))
+			}
+		}
+		text := b.String()
+		max := 1 + rng.IntN(40)
+		// Reference: the offset of the first byte beyond max in a line, and
+		// the line count up to it.
+		wantN, wantLine, run := len(text), 1, 0
+		for i := 0; i < len(text); i++ {
+			if text[i] == '\n' {
+				run = 0
+				wantLine++
+				continue
+			}
+			if run++; run > max {
+				wantN = i
+				break
+			}
+		}
+		l := &lineLimiter{r: &chunkReader{s: text, rng: rng}, max: max}
+		got, err := io.ReadAll(l)
+		if len(got) != wantN || (wantN < len(text)) != (err == errLineTooLong) || l.line != wantLine {
+			t.Fatalf("max %d: read %d bytes (want %d), line %d (want %d), error %v\n%q", max, len(got), wantN, l.line, wantLine, err, text)
+		}
+	}
+}
+
+// chunkReader reads s in chunks of random sizes.
+type chunkReader struct {
+	s   string
+	rng *rand.Rand
+}
+
+func (c *chunkReader) Read(p []byte) (int, error) {
+	if c.s == "" {
+		return 0, io.EOF
+	}
+	n := copy(p[:min(len(p), 1+c.rng.IntN(20))], c.s)
+	c.s = c.s[n:]
+	return n, nil
 }

@@ -83,6 +83,7 @@ type table struct {
 	lastLen    int   // points of the profile before cur: a capacity hint
 	perProfile []int // the per-profile columns, known with the value column
 	cellBuf    []string
+	trimmed    [][]byte // addFast's trimmed cells
 	// stream, when not nil, receives each profile as soon as its rows are
 	// read (see Each); the table then keeps no finished profile.
 	stream   *stream

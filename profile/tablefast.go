@@ -23,10 +23,10 @@ func (t *table) addFields(fields [][]byte, line int, rs *rowScanner) error {
 	return t.add(t.cellBuf, line)
 }
 
-// trimmedAt returns field i trimmed of white space ("" beyond the row).
-func trimmedAt(fields [][]byte, i int) []byte {
-	if i < len(fields) {
-		return bytes.TrimSpace(fields[i])
+// trimmedAt returns cell i of a row ("" beyond the row).
+func trimmedAt(cells [][]byte, i int) []byte {
+	if i < len(cells) {
+		return cells[i]
 	}
 	return nil
 }
@@ -38,9 +38,12 @@ func (t *table) addFast(fields [][]byte, line int) bool {
 	if t.valueCol < 0 || t.kinds != nil {
 		return false
 	}
+	cells := t.trimmed[:0] // the fields trimmed of white space, as cellAt trims
 	blank := true
 	for i, f := range fields {
-		if len(bytes.TrimSpace(f)) == 0 {
+		c := bytes.TrimSpace(f)
+		cells = append(cells, c)
+		if len(c) == 0 {
 			continue
 		}
 		if i >= len(t.cols) || t.cols[i].kind == colIgnore {
@@ -48,12 +51,13 @@ func (t *table) addFast(fields [][]byte, line int) bool {
 		}
 		blank = false
 	}
+	t.trimmed = cells
 	if blank {
 		return true // add skips blank rows
 	}
 	b := t.cur
 	if t.idCol >= 0 {
-		id := trimmedAt(fields, t.idCol)
+		id := trimmedAt(cells, t.idCol)
 		if b == nil || len(id) == 0 || string(id) != t.curRaw {
 			return false
 		}
@@ -62,7 +66,7 @@ func (t *table) addFast(fields [][]byte, line int) bool {
 		return false
 	}
 	dc := &t.cols[t.depthCol]
-	d, ok := t.fastNumber(trimmedAt(fields, t.depthCol))
+	d, ok := t.fastNumber(trimmedAt(cells, t.depthCol))
 	if !ok {
 		return false
 	}
@@ -70,18 +74,18 @@ func (t *table) addFast(fields [][]byte, line int) bool {
 	if math.Abs(depth) > maxMetres || math.IsNaN(depth) || (d < 0 && !dc.signed) {
 		return false
 	}
-	v, ok := t.fastNumber(trimmedAt(fields, t.valueCol))
+	v, ok := t.fastNumber(trimmedAt(cells, t.valueCol))
 	if !ok || math.Abs(v) > maxMeasured {
 		return false
 	}
 	var s float64
 	if t.sigmaCol >= 0 {
-		if s, ok = t.fastNumber(trimmedAt(fields, t.sigmaCol)); !ok || !(s > 0) || s > maxMeasured || s < minSigma {
+		if s, ok = t.fastNumber(trimmedAt(cells, t.sigmaCol)); !ok || !(s > 0) || s > maxMeasured || s < minSigma {
 			return false
 		}
 	}
 	for _, i := range t.perProfile {
-		c := trimmedAt(fields, i)
+		c := trimmedAt(cells, i)
 		if len(c) == 0 {
 			continue
 		}
@@ -124,16 +128,86 @@ func parseNumberBytes(c []byte, comma bool) (v float64, ok bool) {
 	var buf [48]byte
 	if comma {
 		if i := bytes.IndexByte(c, ','); i >= 0 {
-			if bytes.IndexByte(c[i+1:], ',') >= 0 || bytes.IndexByte(c, '.') >= 0 || len(c) > len(buf) {
+			if bytes.IndexByte(c[i+1:], ',') >= 0 || bytes.IndexByte(c, '.') >= 0 {
 				return 0, false
 			}
-			n := copy(buf[:], c)
-			buf[i] = '.'
-			c = buf[:n]
+			c = append(buf[:0], c...) // on the heap when longer than buf
+			c[i] = '.'
 		}
 	}
-	if numberPrefixBytes(c) != len(c) || bytes.IndexByte(c, ',') >= 0 {
+	return parseDecimal(c)
+}
+
+// parseDecimal reads [sign] digits [. digits] [e [sign] digits] with at
+// least one digit before the exponent (the numbers plainDecimal accepts)
+// as strconv.ParseFloat does, refusing an infinite result. A mantissa of
+// at most 19 significant digits below 2^52 with a power of ten within ±22
+// is converted by one multiplication or division of exact doubles, which
+// rounds correctly and so gives the double strconv gives (the exact case
+// strconv itself tries first; W. D. Clinger, PLDI 1990, from memory); any
+// other number is left to strconv.
+func parseDecimal(c []byte) (float64, bool) {
+	i, neg := 0, false
+	if len(c) > 0 && (c[0] == '+' || c[0] == '-') {
+		neg, i = c[0] == '-', 1
+	}
+	var mant uint64
+	digits, sig, exp := 0, 0, 0
+	for ; i < len(c) && c[i] >= '0' && c[i] <= '9'; i++ {
+		digits++
+		if sig > 0 || c[i] != '0' {
+			sig++
+			mant = mant*10 + uint64(c[i]-'0')
+		}
+	}
+	if i < len(c) && c[i] == '.' {
+		for i++; i < len(c) && c[i] >= '0' && c[i] <= '9'; i++ {
+			digits++
+			if sig > 0 || c[i] != '0' {
+				sig++
+				mant = mant*10 + uint64(c[i]-'0')
+			}
+			exp--
+		}
+	}
+	if digits == 0 {
 		return 0, false
+	}
+	if i < len(c) && (c[i] == 'e' || c[i] == 'E') {
+		i++
+		eneg := false
+		if i < len(c) && (c[i] == '+' || c[i] == '-') {
+			eneg, i = c[i] == '-', i+1
+		}
+		e, ed := 0, 0
+		for ; i < len(c) && c[i] >= '0' && c[i] <= '9'; i++ {
+			if e < 1e6 {
+				e = e*10 + int(c[i]-'0')
+			}
+			ed++
+		}
+		if ed == 0 {
+			return 0, false
+		}
+		if eneg {
+			e = -e
+		}
+		exp += e
+	}
+	if i != len(c) {
+		return 0, false
+	}
+	if sig <= 19 && mant>>52 == 0 && exp >= -22 && exp <= 22 {
+		f := float64(mant)
+		if exp >= 0 {
+			f *= pow10[exp]
+		} else {
+			f /= pow10[-exp]
+		}
+		if neg {
+			f = -f
+		}
+		return f, true
 	}
 	v, err := strconv.ParseFloat(string(c), 64)
 	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
@@ -142,40 +216,9 @@ func parseNumberBytes(c []byte, comma bool) (v float64, ok bool) {
 	return v, true
 }
 
-// numberPrefixBytes is numberPrefix for text starting with an ASCII
-// character.
-func numberPrefixBytes(s []byte) int {
-	i := 0
-	if len(s) > 0 && (s[0] == '+' || s[0] == '-') {
-		i = 1
-	}
-	digits := 0
-	for ; i < len(s) && s[i] >= '0' && s[i] <= '9'; i++ {
-		digits++
-	}
-	if i < len(s) && (s[i] == '.' || s[i] == ',') {
-		i++
-		for ; i < len(s) && s[i] >= '0' && s[i] <= '9'; i++ {
-			digits++
-		}
-	}
-	if digits == 0 {
-		return 0
-	}
-	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
-		j := i + 1
-		if j < len(s) && (s[j] == '+' || s[j] == '-') {
-			j++
-		}
-		k := j
-		for ; k < len(s) && s[k] >= '0' && s[k] <= '9'; k++ {
-		}
-		if k > j {
-			i = k
-		}
-	}
-	return i
-}
+// pow10 holds the powers of ten that are exact doubles.
+var pow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
+	1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22}
 
 // quiet reports whether noting the number c (as written, trimmed, accepted
 // by parseNumber) would change nothing and raise nothing: its mark is none,

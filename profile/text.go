@@ -274,15 +274,21 @@ func (l *lineLimiter) Read(p []byte) (int, error) {
 		l.line = 1
 	}
 	n, err := l.r.Read(p)
-	for i := range p[:n] {
-		if p[i] == '\n' {
+	for i := 0; i < n; {
+		j := bytes.IndexByte(p[i:n], '\n')
+		if j < 0 {
+			j = n - i // no line end in the rest
+		}
+		if l.run+j > l.max { // the byte that makes the line too long
+			l.err = errLineTooLong
+			return i + l.max - l.run, l.err
+		}
+		if i += j; i < n { // at a line end
 			l.run = 0
 			l.line++
-			continue
-		}
-		if l.run++; l.run > l.max {
-			l.err = errLineTooLong
-			return i, l.err
+			i++
+		} else {
+			l.run += j
 		}
 	}
 	return n, err
