@@ -15,6 +15,7 @@ import (
 	"time"
 
 	"github.com/fickfit/fickfit/internal/longtable"
+	"github.com/fickfit/fickfit/internal/measure"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -105,6 +106,52 @@ func BenchmarkFitEach10k(b *testing.B) {
 			}
 			b.ReportMetric(b.Elapsed().Seconds()/float64(b.N)/float64(len(ps))*1e6, "µs/fit")
 		})
+	}
+}
+
+// BenchmarkFitLongTable20k fits the profiles of the throughput
+// comparison's table (internal/longtable: 20,000 × 50 points, read once)
+// with Wald intervals as fickfit fit --format csv does: FitEach, results
+// reused, a done that only reads each result. Reported: µs per fit (wall,
+// all cores) and CPU µs per fit.
+func BenchmarkFitLongTable20k(b *testing.B) {
+	var buf bytes.Buffer
+	if err := longtable.Write(&buf, longtable.Options{Profiles: 20000, Points: 50, Seed: 5}); err != nil {
+		b.Fatal(err)
+	}
+	ps, err := profile.ReadCSV(&buf, "long.csv")
+	if err != nil {
+		b.Fatal(err)
+	}
+	o := Options{CI: CIWald}
+	b.ReportAllocs()
+	cpu0 := measure.CPU()
+	failed := 0
+	for b.Loop() {
+		failed = 0
+		err := FitEach(func(yield func(*profile.Profile) error) error {
+			for k := range ps {
+				if err := yield(&ps[k]); err != nil {
+					return err
+				}
+			}
+			return nil
+		}, o, &BatchOptions{Reuse: true}, func(p *profile.Profile, r *Result, err error) error {
+			if err != nil {
+				failed++
+			}
+			return nil
+		})
+		if err != nil {
+			b.Fatal(err)
+		}
+	}
+	if failed > 0 {
+		b.Errorf("%d of %d fits failed", failed, len(ps))
+	}
+	b.ReportMetric(b.Elapsed().Seconds()/float64(b.N)/float64(len(ps))*1e6, "µs/fit")
+	if cpu := measure.CPU(); cpu > 0 {
+		b.ReportMetric((cpu-cpu0).Seconds()/float64(b.N)/float64(len(ps))*1e6, "cpu-µs/fit")
 	}
 }
 

@@ -5,49 +5,13 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
-	"runtime/metrics"
-	"sync/atomic"
 	"testing"
 	"time"
 
 	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/internal/longtable"
+	"github.com/fickfit/fickfit/internal/measure"
 )
-
-// peakHeap samples the heap-object footprint every millisecond and keeps
-// the largest value.
-type peakHeap struct {
-	peak       atomic.Uint64
-	stop, done chan struct{}
-}
-
-func startPeakHeap() *peakHeap {
-	s := &peakHeap{stop: make(chan struct{}), done: make(chan struct{})}
-	sample := []metrics.Sample{{Name: "/memory/classes/heap/objects:bytes"}}
-	go func() {
-		defer close(s.done)
-		tick := time.NewTicker(time.Millisecond)
-		defer tick.Stop()
-		for {
-			metrics.Read(sample)
-			if v := sample[0].Value.Uint64(); v > s.peak.Load() {
-				s.peak.Store(v)
-			}
-			select {
-			case <-s.stop:
-				return
-			case <-tick.C:
-			}
-		}
-	}()
-	return s
-}
-
-func (s *peakHeap) finish() uint64 {
-	close(s.stop)
-	<-s.done
-	return s.peak.Load()
-}
 
 // BenchmarkCampaignScale runs the whole campaign (read, fit with the
 // default profile-likelihood intervals, Arrhenius lines per lot,
@@ -75,8 +39,8 @@ func BenchmarkCampaignScale(b *testing.B) {
 				b.Fatal(err)
 			}
 			runtime.GC()
-			sampler := startPeakHeap()
-			cpu0, t0 := cpuTime(), time.Now()
+			sampler := measure.StartPeakHeap()
+			cpu0, t0 := measure.CPU(), time.Now()
 			var html int64
 			for i := 0; i < b.N; i++ {
 				res, err := campaign.Run([]string{in}, campaign.Options{Version: "bench"})
@@ -93,9 +57,9 @@ func BenchmarkCampaignScale(b *testing.B) {
 				os.RemoveAll(out)
 			}
 			wall := time.Since(t0).Seconds() / float64(b.N)
-			peak := sampler.finish()
+			peak := sampler.Stop()
 			b.ReportMetric(wall, "s/campaign")
-			if cpu := cpuTime(); cpu > 0 {
+			if cpu := measure.CPU(); cpu > 0 {
 				b.ReportMetric((cpu-cpu0).Seconds()/float64(b.N), "cpu-s/campaign")
 			}
 			b.ReportMetric(wall/float64(n)*1e3, "ms/profile")

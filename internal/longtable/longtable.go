@@ -19,6 +19,9 @@ type Options struct {
 	Profiles, Points int
 	// Seed seeds the generator: the same options give the same bytes.
 	Seed uint64
+	// Prefix starts every id ("S" when empty), so that tables written with
+	// other prefixes can be read together.
+	Prefix string
 	// Campaign writes the table a campaign reads: a lot column (two lots),
 	// four hold temperatures (880–970 °C) with D from an Arrhenius law per
 	// lot, and one profile in 500 marked unknown (its temperature left
@@ -66,7 +69,11 @@ func Write(w io.Writer, o Options) error {
 		}
 		cs, c0 := 0.8+0.2*rng.Float64(), 0.1+0.2*rng.Float64()
 		L := 2 * math.Sqrt(D*hold)
-		id := "S" + strconv.Itoa(k)
+		prefix := o.Prefix
+		if prefix == "" {
+			prefix = "S"
+		}
+		id := prefix + strconv.Itoa(k)
 		for i := 0; i < o.Points; i++ {
 			x := 3 * L * float64(i) / float64(o.Points-1)
 			row = append(row[:0], id...)

@@ -1,14 +1,14 @@
 //go:build unix
 
-package main
+package measure
 
 import (
 	"syscall"
 	"time"
 )
 
-// cpuTime is the user and system CPU time of the process so far.
-func cpuTime() time.Duration {
+// CPU is the user and system CPU time of the process so far (every core).
+func CPU() time.Duration {
 	var ru syscall.Rusage
 	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
 		return 0
