@@ -640,6 +640,15 @@ func (x *xlWriter) auditSheet(res *CampaignReport) {
 			x.err = x.f.SetRowHeight(s, row+1+i, 30)
 		}
 	}
+	if rows := excludedRows(res.Excluded); len(rows) > 0 {
+		row += len(res.Cautions) + 2
+		x.header(s, row, "excluded (profile)", "file, line", "depth (µm)", "value", "reason")
+		for i, r := range rows {
+			for j, v := range r {
+				x.set(s, 1+j, row+1+i, v, 0)
+			}
+		}
+	}
 	x.widths(s, 34, 100, 10)
 }
 
@@ -661,7 +670,7 @@ func auditPairs(a campaign.AuditOptions) [][2]string {
 	if by == "" {
 		by = "none (one line)"
 	}
-	return [][2]string{
+	return append([][2]string{
 		{"model", a.Model}, {"interval method", a.CIMethod}, {"confidence level", fmt.Sprint(a.Level)},
 		{"σ taken as known (absolute)", fmt.Sprint(a.AbsoluteSigma)}, {"fixed parameters", join(a.Fixed)},
 		{"freed parameters", join(a.Free)}, {"grouped by", by}, {"Arrhenius method", a.Method},
@@ -669,5 +678,13 @@ func auditPairs(a campaign.AuditOptions) [][2]string {
 		{"comparison temperature (K)", f(a.TRef, "where the data are centred")},
 		{"reference lines", join(a.References)}, {"back-calculation interval", a.SolveMethod},
 		{"temperature unit", a.TempUnit},
+	}, exclusionsPair(a)...)
+}
+
+// exclusionsPair is the exclusions file of the audit trail, when there is one.
+func exclusionsPair(a campaign.AuditOptions) [][2]string {
+	if a.Exclusions == "" {
+		return nil
 	}
+	return [][2]string{{"exclusions file", a.Exclusions}}
 }
