@@ -187,6 +187,10 @@ type AuditOptions struct {
 	TRef          float64  `json:"comparison_temperature_K"`
 	References    []string `json:"references"`
 	SolveMethod   string   `json:"backcalc_method"`
+	// CaseThreshold is the case-depth threshold asked for and
+	// HardnessCalibration the hardness–concentration table's file ("" for none).
+	CaseThreshold       string `json:"case_threshold,omitempty"`
+	HardnessCalibration string `json:"hardness_calibration,omitempty"`
 	// Exclusions names the exclusions file applied ("" for none).
 	Exclusions string `json:"exclusions_file,omitempty"`
 	// TempUnit is the temperature unit of the text and reports; the
@@ -204,6 +208,12 @@ func auditOptions(o Options) AuditOptions {
 	}
 	if o.Exclusions != nil {
 		a.Exclusions = FileBase(o.Exclusions.Source)
+	}
+	if o.Fit.CaseThreshold != nil {
+		a.CaseThreshold = o.Fit.CaseThreshold.String()
+	}
+	if o.Fit.Calibration != nil {
+		a.HardnessCalibration = FileBase(o.Fit.Calibration.Source)
 	}
 	if a.Model == "" {
 		a.Model = "erf"

@@ -681,10 +681,15 @@ func auditPairs(a campaign.AuditOptions) [][2]string {
 	}, exclusionsPair(a)...)
 }
 
-// exclusionsPair is the exclusions file of the audit trail, when there is one.
+// exclusionsPair lists the options that are written only when used: the
+// case-depth threshold, the hardness calibration and the exclusions file.
 func exclusionsPair(a campaign.AuditOptions) [][2]string {
-	if a.Exclusions == "" {
-		return nil
+	var out [][2]string
+	for _, kv := range [][2]string{{"case-depth threshold", a.CaseThreshold},
+		{"hardness calibration", a.HardnessCalibration}, {"exclusions file", a.Exclusions}} {
+		if kv[1] != "" {
+			out = append(out, kv)
+		}
 	}
-	return [][2]string{{"exclusions file", a.Exclusions}}
+	return out
 }

@@ -3,7 +3,6 @@ package main
 import (
 	"fmt"
 	"io"
-	"strconv"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -159,15 +158,11 @@ func (f *fitFlags) options() (fit.Options, error) {
 	if len(f.fix) > 0 {
 		o.Fixed = map[string]float64{}
 		for _, s := range f.fix {
-			name, val, ok := strings.Cut(s, "=")
-			if !ok {
-				return o, usagef("--fix %q: write NAME=VALUE, e.g. --fix Cs=1.05", s)
-			}
-			v, err := fixValue(strings.TrimSpace(val))
+			name, v, err := fit.ParseFixed(s)
 			if err != nil {
-				return o, usagef("--fix %s: %v", s, err)
+				return o, usagef("--fix %v", plain(err))
 			}
-			o.Fixed[strings.TrimSpace(name)] = v
+			o.Fixed[name] = v
 		}
 	}
 	return o, nil
@@ -218,17 +213,6 @@ func (f *fitFlags) leaveOut(rs []*fit.Result) []*fit.Result {
 		}
 	}
 	return out
-}
-
-// fixValue reads a plain number, or a length with its unit (for x0, xm).
-func fixValue(s string) (float64, error) {
-	if v, err := strconv.ParseFloat(s, 64); err == nil {
-		return v, nil
-	}
-	if v, err := profile.ParseLength(s); err == nil {
-		return v, nil
-	}
-	return 0, fmt.Errorf("%q is not a number (or a length with a unit such as 0.02mm)", s)
 }
 
 // override applies --temperature, --time and --thickness to every profile,
