@@ -40,3 +40,8 @@ func ReadBytes(data []byte, name string) ([]Profile, error) {
 	}
 	return ps, checkUnique(ps)
 }
+
+// Files lists the files ReadAll reads for paths: a file as given, a
+// folder replaced by the readable files directly in it, in name order
+// (hidden files and spreadsheet lock files skipped).
+func Files(paths []string) ([]string, error) { return expand(paths) }
