@@ -82,4 +82,3 @@ func openBrowser(url string) error {
 	}
 	return cmd.Start()
 }
-
