@@ -169,7 +169,9 @@ func evalInt(t *testing.T, b *browserRun, expr string) int {
 
 func click(sel string) chromedp.Action[chromedp.Void] { return chromedp.Click(chromedp.CSS(sel)) }
 
-func visible(sel string) chromedp.Action[chromedp.Void] { return chromedp.WaitVisible(chromedp.CSS(sel)) }
+func visible(sel string) chromedp.Action[chromedp.Void] {
+	return chromedp.WaitVisible(chromedp.CSS(sel))
+}
 
 // pageErrors returns the page's errors so far, expected ones (a refused
 // request a test makes on purpose) left out.
@@ -411,4 +413,3 @@ func TestWorkbenchLoadsFoldersGivenOnTheCommandLine(t *testing.T) {
 		t.Errorf("the page logged errors:\n%s", strings.Join(errs, "\n"))
 	}
 }
-
