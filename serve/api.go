@@ -169,7 +169,7 @@ func (s *session) handleUpload(w http.ResponseWriter, r *http.Request) {
 		fail(w, http.StatusBadRequest, err)
 		return
 	}
-	b, err := readBody(w, r, profile.MaxFileSize)
+	b, err := readBody(w, r, s.maxUpload)
 	if err != nil {
 		fail(w, http.StatusRequestEntityTooLarge, fmt.Errorf("%s: %w", name, err))
 		return
@@ -213,7 +213,7 @@ func (s *session) handleSettings(w http.ResponseWriter, r *http.Request) {
 }
 
 func (s *session) handleCalibration(w http.ResponseWriter, r *http.Request) {
-	b, err := readBody(w, r, profile.MaxFileSize)
+	b, err := readBody(w, r, s.maxUpload)
 	if err != nil {
 		fail(w, http.StatusRequestEntityTooLarge, err)
 		return
@@ -267,7 +267,7 @@ func (s *session) handleLoadExclusions(w http.ResponseWriter, r *http.Request) {
 		fail(w, http.StatusBadRequest, err)
 		return
 	}
-	b, err := readBody(w, r, profile.MaxFileSize)
+	b, err := readBody(w, r, s.maxUpload)
 	if err != nil {
 		fail(w, http.StatusRequestEntityTooLarge, err)
 		return

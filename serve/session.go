@@ -159,11 +159,13 @@ type session struct {
 	total    atomic.Int64
 	gen      atomic.Int64 // optGen, for workers to notice a change
 	closed   atomic.Bool
-	lastLoad string // duration of the last file load, for the page
+	// maxUpload bounds an upload: the readers' limit (profile.MaxFileSize).
+	maxUpload int64
 }
 
 func newSession(version string) *session {
-	s := &session{version: version, byID: map[string]*entry{}, excl: &profile.Exclusions{Source: "exclusions.csv"}}
+	s := &session{version: version, byID: map[string]*entry{}, excl: &profile.Exclusions{Source: "exclusions.csv"},
+		maxUpload: profile.MaxFileSize}
 	s.st.defaults()
 	s.fo, s.unit, _ = s.st.options(nil)
 	return s
