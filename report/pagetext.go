@@ -1,6 +1,10 @@
 package report
 
 import (
+	"bufio"
+	"bytes"
+	"strings"
+
 	"github.com/fickfit/fickfit/fit"
 )
 
@@ -44,3 +48,26 @@ func R2Text(v float64) string { return r2Text(v) }
 
 // RatioText writes a ratio of D with its interval, as the reports do.
 func RatioText(v float64, ci fit.Interval, level float64) string { return ratioText(v, ci, level) }
+
+// ExtraText is what the text view writes below a fit's statistics: the
+// case and decarburization depths and, with --model auto, the model
+// comparison ("" when there is none).
+func ExtraText(r *fit.Result) string {
+	var b bytes.Buffer
+	bw := bufio.NewWriter(&b)
+	o := TextOptions{Width: 1 << 20} // one line per sentence; the page wraps
+	for _, e := range []*fit.DepthEstimate{r.CaseDepth, r.DecarbDepth} {
+		if e != nil {
+			writeDepthText(bw, r, e, o)
+		}
+	}
+	if r.Selection != nil {
+		writeSelectionText(bw, r.Selection, o)
+	}
+	bw.Flush()
+	lines := strings.Split(strings.TrimRight(b.String(), "\n"), "\n")
+	for i, l := range lines {
+		lines[i] = strings.TrimSpace(l)
+	}
+	return strings.Join(lines, "\n")
+}

@@ -422,6 +422,7 @@ type profileView struct {
 	Params    []report.ParamText
 	Stats     []string `json:"stats"`
 	Interval  string   `json:"interval"`
+	Extra     string   `json:"extra"`
 	Title     string   `json:"model_title"`
 	LeftOutBy string   `json:"left_out_reason"`
 }
@@ -499,7 +500,7 @@ func (s *session) profileView(e *entry) (*profileView, error) {
 		return nil, fmt.Errorf("the fit could not be written: %v", err)
 	}
 	v.Fit = doc.Fits[0]
-	v.Params, v.Stats = report.ParamTexts(res), report.StatsTexts(res)
+	v.Params, v.Stats, v.Extra = report.ParamTexts(res), report.StatsTexts(res), report.ExtraText(res)
 	v.Interval = report.Level(res.CILevel) + " CI by " + report.CIMethodDescription(res.CIMethod)
 	v.Title = report.ModelDescription(res.Model)
 	v.Curve = curveOf(res, used)

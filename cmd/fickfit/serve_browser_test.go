@@ -409,6 +409,16 @@ func TestWorkbenchLoadsFoldersGivenOnTheCommandLine(t *testing.T) {
 	if want := bad + `:3: column "C_wt%": "x" is not a number`; !strings.Contains(errText, want) {
 		t.Errorf("error beside the file: %q, want %q", errText, want)
 	}
+	b.shot(t, "6-file-error")
+	// Settings for every profile: auto model selection and a case depth.
+	b.do(t, "change the settings",
+		chromedp.SetValue(chromedp.CSS(`#s-model`), "auto"),
+		chromedp.SendKeys(chromedp.CSS(`#s-case`), "0.35wt%"),
+		click(`#s-apply`))
+	b.wait(t, `document.querySelector("#command").textContent.includes("--model auto --case-threshold 0.35wt%")`)
+	b.do(t, "open a profile", click(`#rows [data-id="F7-2291-940-1"]`), visible(`#p-plot g.point`))
+	b.wait(t, `document.querySelector("#p-extra").textContent.includes("case depth at 0.35wt%")`)
+	b.shot(t, "7-auto")
 	if errs := b.pageErrors(); len(errs) > 0 {
 		t.Errorf("the page logged errors:\n%s", strings.Join(errs, "\n"))
 	}

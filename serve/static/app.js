@@ -147,7 +147,8 @@ async function refreshState() {
 function showProgress(s) {
   const p = $("progress");
   const frac = s.total > 0 ? s.done / s.total : 1;
-  p.querySelector(".fill").style.width = (s.running ? 100 * frac : 0) + "%";
+  p.querySelector(".fill").style.width = (s.running ? 100 * frac : s.profiles ? 100 : 0) + "%";
+  p.classList.toggle("done", !s.running);
   p.querySelector(".label").textContent = s.running ? `fitting ${s.done} / ${s.total} on all cores` :
     s.profiles ? `${s.profiles} profiles fitted` : "no profiles loaded";
   p.dataset.running = s.running ? "1" : "0";
@@ -329,10 +330,17 @@ function applyView() {
   }
   $("f-count").textContent = `${v.length} of ${app.rows.length} profiles`;
   $("spacer").style.height = v.length * rowHeight() + "px";
+  alignHead();
   drawRows(true);
 }
 
 const rowHeight = () => 30;
+
+// The header lines up with the rows, whose scroller may show a scroll bar.
+function alignHead() {
+  const sc = $("scroller");
+  $("thead").style.paddingRight = (sc.offsetWidth - sc.clientWidth) + "px";
+}
 
 // Only the rows in sight are in the DOM, so thousands of profiles scroll smoothly.
 let drawnFrom = -1, drawnTo = -1;
@@ -423,9 +431,9 @@ function drawProfileView() {
     t.append(el("tr", {}, el("th", { text: "parameter" }), el("th", { text: "value" }), el("th", { text: "std. error" }), el("th", { text: "interval" })));
     for (const q of p.Params) t.append(el("tr", {}, el("td", { text: q.Name }), el("td", { text: q.Value }), el("td", { text: q.SE }), el("td", { text: q.CI })));
   }
-  let stats = (p.stats || []).join(" · ");
-  if (fit && fit.case_depth) stats += " · case depth: see the report";
-  $("p-stats").textContent = stats;
+  $("p-stats").textContent = (p.stats || []).join(" · ");
+  $("p-extra").textContent = p.extra || "";
+  $("p-extra").hidden = !p.extra;
   const ex = p.points.filter((q) => q.excluded);
   const exbox = $("p-excluded");
   exbox.replaceChildren();
@@ -496,7 +504,7 @@ function drawProfilePlot(p) {
   const rmax = Math.max(1e-12, ...rv.map(Math.abs)) * 1.15;
   const mr = { l: m.l, r: m.r, t: 8, b: 34 };
   const R = frame(rroot, W, HR, mr, xr, [-rmax, rmax], { xlabel: `depth (${sc.u}) — residual = measured − fitted`, ylabel: "residual",
-    yticks: ticks(-rmax, rmax, 3).map((v) => [v, fmtAxis(v)]) });
+    yticks: ticks(-rmax, rmax, 4).map((v) => [v, fmtAxis(v)]) });
   svg("line", { x1: mr.l, x2: W - mr.r, y1: R.Y(0), y2: R.Y(0), class: "zero" }, rroot);
   pts.forEach((q, i) => {
     if (res[i] === null) return;
@@ -709,7 +717,7 @@ function showTab(name) {
   app.tab = name;
   for (const b of document.querySelectorAll(".tabs button")) b.classList.toggle("on", b.dataset.tab === name);
   for (const s of document.querySelectorAll(".tab")) s.classList.toggle("on", s.id === "tab-" + name);
-  if (name === "table") drawRows(true);
+  if (name === "table") { alignHead(); drawRows(true); }
   if (name === "arrhenius") loadArrhenius();
   if (name === "backcalc") { fillBackcalc(); if (!app.arr) loadArrhenius(); }
   if (name === "profile" && !app.current && app.view.length) openProfile(app.view[0].id);
@@ -766,7 +774,7 @@ function wire() {
   for (const id of ["f-lot", "f-temp", "f-warn", "f-status"]) $(id).addEventListener("change", applyView);
   $("f-text").addEventListener("input", applyView);
   $("scroller").addEventListener("scroll", () => drawRows(false), { passive: true });
-  window.addEventListener("resize", () => drawRows(true));
+  window.addEventListener("resize", () => { alignHead(); drawRows(true); });
   $("p-prev").addEventListener("click", () => step(-1));
   $("p-next").addEventListener("click", () => step(1));
   $("p-leaveout").addEventListener("click", () => app.current && toggleLeaveOut(app.current));
