@@ -143,22 +143,22 @@ type entry struct {
 type session struct {
 	version string
 
-	mu       sync.Mutex
-	files    []*file
-	entries  []*entry
-	byID     map[string]*entry
-	st       settings
-	fo       fit.Options
-	unit     report.TempUnit
-	cal      *profile.Calibration
-	optGen   int
-	excl     *profile.Exclusions // never changed in place: replaced
-	running  bool
-	again    bool
-	done     atomic.Int64
-	total    atomic.Int64
-	gen      atomic.Int64 // optGen, for workers to notice a change
-	closed   atomic.Bool
+	mu      sync.Mutex
+	files   []*file
+	entries []*entry
+	byID    map[string]*entry
+	st      settings
+	fo      fit.Options
+	unit    report.TempUnit
+	cal     *profile.Calibration
+	optGen  int
+	excl    *profile.Exclusions // never changed in place: replaced
+	running bool
+	again   bool
+	done    atomic.Int64
+	total   atomic.Int64
+	gen     atomic.Int64 // optGen, for workers to notice a change
+	closed  atomic.Bool
 	// maxUpload bounds an upload: the readers' limit (profile.MaxFileSize).
 	maxUpload int64
 }
