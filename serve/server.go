@@ -158,6 +158,11 @@ func (s *Server) ServeHTTP(w http.ResponseWriter, r *http.Request) {
 		http.Error(w, "forbidden", http.StatusForbidden)
 		return
 	}
+	if rest == "/" && !strings.HasSuffix(r.URL.Path, "/") {
+		// The page's relative links need the slash after the token.
+		http.Redirect(w, r, r.URL.Path+"/", http.StatusMovedPermanently)
+		return
+	}
 	if r.Method != http.MethodGet && r.Method != http.MethodHead && !s.originOK(r) {
 		http.Error(w, "fickfit serve: request from another origin refused", http.StatusForbidden)
 		return

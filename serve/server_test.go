@@ -79,6 +79,7 @@ func TestTokenAndHost(t *testing.T) {
 	}{
 		{"with token", local, "/s/" + token + "/api/state", 200},
 		{"page with token", local, "/s/" + token + "/", 200},
+		{"page without the slash (redirected)", local, "/s/" + token, 200},
 		{"localhost", "localhost:" + port, "/s/" + token + "/api/state", 200},
 		{"no token", local, "/api/state", 403},
 		{"root", local, "/", 403},

@@ -419,6 +419,18 @@ func TestWorkbenchLoadsFoldersGivenOnTheCommandLine(t *testing.T) {
 	b.do(t, "open a profile", click(`#rows [data-id="F7-2291-940-1"]`), visible(`#p-plot g.point`))
 	b.wait(t, `document.querySelector("#p-extra").textContent.includes("case depth at 0.35wt%")`)
 	b.shot(t, "7-auto")
+
+	// Files dropped on the page: a profile, then an exclusions file for it.
+	drop := func(name, content string) chromedp.Action[chromedp.Void] {
+		js, _ := json.Marshal([]string{name, content})
+		return chromedp.Evaluate[chromedp.Void](`(() => { const [n, c] = ` + string(js) + `; const dt = new DataTransfer();
+			dt.items.add(new File([c], n, { type: "text/csv" }));
+			document.querySelector("#drop").dispatchEvent(new DragEvent("drop", { dataTransfer: dt, bubbles: true, cancelable: true })); })()`)
+	}
+	b.do(t, "drop a profile", drop("dropped.csv", "# id: DROP-1\n# temperature: 900 C\n# time: 4 h\ndepth_mm,C_wt%\n0.05,0.88\n0.1,0.80\n0.2,0.66\n0.3,0.52\n0.4,0.42\n0.6,0.30\n0.8,0.24\n1.0,0.21\n"))
+	b.wait(t, `[...document.querySelectorAll("#files li")].some((li) => li.textContent.includes("dropped.csv") && li.textContent.includes("1 profile"))`)
+	b.do(t, "drop exclusions", drop("exclusions.csv", "file,profile,depth_um,line,reason\ndropped.csv,DROP-1,100,,smeared\n"))
+	b.wait(t, `document.querySelector("#ex-summary").textContent === "1 point excluded."`)
 	if errs := b.pageErrors(); len(errs) > 0 {
 		t.Errorf("the page logged errors:\n%s", strings.Join(errs, "\n"))
 	}

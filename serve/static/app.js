@@ -747,11 +747,10 @@ async function poll() {
 function wire() {
   for (const b of document.querySelectorAll(".tabs button")) b.addEventListener("click", () => showTab(b.dataset.tab));
   const drop = $("drop");
-  for (const t of [document.body, drop]) {
-    t.addEventListener("dragover", (e) => { e.preventDefault(); drop.classList.add("over"); });
-    t.addEventListener("dragleave", () => drop.classList.remove("over"));
-    t.addEventListener("drop", (e) => { e.preventDefault(); drop.classList.remove("over"); upload(e.dataTransfer.files); });
-  }
+  // Files may be dropped anywhere on the page; the drop zone lights up.
+  document.body.addEventListener("dragover", (e) => { e.preventDefault(); drop.classList.add("over"); });
+  document.body.addEventListener("dragleave", () => drop.classList.remove("over"));
+  document.body.addEventListener("drop", (e) => { e.preventDefault(); drop.classList.remove("over"); upload(e.dataTransfer.files); });
   $("pick").addEventListener("change", (e) => { upload(e.target.files); e.target.value = ""; });
   $("s-apply").addEventListener("click", applySettings);
   $("s-calfile").addEventListener("change", async (e) => {
