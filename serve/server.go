@@ -26,7 +26,6 @@ import (
 	"embed"
 	"encoding/hex"
 	"errors"
-	"fmt"
 	"io/fs"
 	"net"
 	"net/http"
@@ -238,6 +237,3 @@ func (s *Server) routes() {
 	m.HandleFunc("GET /api/export.zip", s.ses.handleExportZip)
 	s.mux = m
 }
-
-// errorf is a message for the page.
-func errorf(format string, args ...any) error { return fmt.Errorf(format, args...) }

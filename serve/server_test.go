@@ -167,7 +167,7 @@ func TestUploadErrorsStayBesideTheFile(t *testing.T) {
 		t.Errorf("duplicate id: %d %q", code, f.Error)
 	}
 	// A folder in the name is dropped: an upload is never a path.
-	code, b = post(t, port, base+"..%2F..%2Fetc%2Fx.csv", good[:0])
+	_, b = post(t, port, base+"..%2F..%2Fetc%2Fx.csv", good[:0])
 	json.Unmarshal(b, &f)
 	if f.Name != "x.csv" || !strings.Contains(f.Error, "x.csv: the file is empty") {
 		t.Errorf("upload name: %q %q", f.Name, f.Error)
