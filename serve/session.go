@@ -530,6 +530,13 @@ func (s *session) campaignRun() (*campaign.Result, report.TempUnit, error) {
 		parallel.For(len(ps), func(i int) {
 			if e := cache[ps[i].ID]; e != nil && sameData(e.used, ps[i]) {
 				rs[i], errs[i] = e.res, e.err
+				if e.res != nil {
+					// The campaign adds metadata (the quantity) that the
+					// fit only carries along: the numbers are the same.
+					c := *e.res
+					c.Meta = ps[i].Meta
+					rs[i] = &c
+				}
 				return
 			}
 			rs[i], errs[i] = fitRecovered(&ps[i], fo)
@@ -543,7 +550,7 @@ func (s *session) campaignRun() (*campaign.Result, report.TempUnit, error) {
 // sameData tells whether two profiles hold the same points and conditions
 // (a cached fit of one is the fit of the other).
 func sameData(a, b profile.Profile) bool {
-	return a.ID == b.ID && a.Temperature == b.Temperature && a.Time == b.Time && a.Thickness == b.Thickness &&
+	return a.ID == b.ID && a.Source == b.Source && a.Lot == b.Lot && a.Material == b.Material && a.Temperature == b.Temperature && a.TemperatureSigma == b.TemperatureSigma && a.Time == b.Time && a.Thickness == b.Thickness &&
 		slices.Equal(a.Depth, b.Depth) && slices.Equal(a.Value, b.Value) && slices.Equal(a.Sigma, b.Sigma) &&
 		a.ValueUnit == b.ValueUnit
 }

@@ -98,3 +98,105 @@ func withoutCalibrationName(t *testing.T, raw json.RawMessage) string {
 	b, _ := json.Marshal(m)
 	return string(b)
 }
+
+// Exclusions made on the page, saved and given to the command line with
+// --exclude, reproduce the page's campaign (Arrhenius lines, lot
+// comparison, back-calculated part) and its back-calculation from the
+// current line, number for number (common practice, no source).
+func TestWorkbenchExclusionsReproducedByTheCommandLine(t *testing.T) {
+	demo := "../../testdata/demo"
+	inputs := []string{demo + "/coupons", demo + "/lims-export-HV-2307.csv", demo + "/unknown"}
+	_, url := workbench(t, inputs...)
+	page(t, "POST", url+"api/exclude", []byte(`{"id":"F7-2291-880-1","index":0,"reason":"oxide layer"}`), nil)
+	page(t, "POST", url+"api/exclude", []byte(`{"id":"F7-2307-970-2","index":5,"reason":"indent on a carbide"}`), nil)
+	page(t, "POST", url+"api/exclude", []byte(`{"id":"F7-2307-940-2","whole":true,"reason":"door opened"}`), nil)
+	dir := t.TempDir()
+	resp, err := http.Get(url + "api/exclusions.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	ex, _ := io.ReadAll(resp.Body)
+	resp.Body.Close()
+	exFile := dir + "/exclusions.csv"
+	os.WriteFile(exFile, ex, 0o644)
+
+	// The campaign: the page's export against campaign --exclude.
+	pageOut, cliOut := dir+"/page", dir+"/cli"
+	body, _ := json.Marshal(map[string]any{"folder": pageOut})
+	page(t, "POST", url+"api/export", body, nil)
+	if code, _, errs := runCLI(t, append(append([]string{"campaign"}, inputs...), "--exclude", exFile, "--out", cliOut, "--no-png")...); code != 0 {
+		t.Fatalf("campaign: %s", errs)
+	}
+	var a, b map[string]any
+	for _, x := range []struct {
+		dir string
+		m   *map[string]any
+	}{{pageOut, &a}, {cliOut, &b}} {
+		raw, _ := os.ReadFile(x.dir + "/results.json")
+		if err := json.Unmarshal(raw, x.m); err != nil {
+			t.Fatal(err)
+		}
+	}
+	for _, key := range []string{"fits", "failed", "arrhenius", "lot_comparison", "backcalc", "exclusions", "options"} {
+		ja, _ := json.Marshal(stripSources(a[key]))
+		jb, _ := json.Marshal(stripSources(b[key]))
+		if string(ja) != string(jb) {
+			i := 0
+			for i < len(ja) && i < len(jb) && ja[i] == jb[i] {
+				i++
+			}
+			t.Errorf("results.json %q differs at byte %d:\npage …%.300s\ncli  …%.300s", key, i, ja[max(0, i-100):], jb[max(0, i-100):])
+		}
+	}
+	if pts := a["exclusions"].(map[string]any)["points"].([]any); len(pts) != 2 {
+		t.Errorf("%d excluded points in the page's results.json", len(pts))
+	}
+
+	// The back-calculation from the current line of lot HV-2291.
+	var bc struct {
+		Solution json.RawMessage `json:"solution"`
+	}
+	page(t, "POST", url+"api/backcalc", []byte(`{"id":"pinion-7731","solve":"temperature"}`), &bc)
+	line := dir + "/line.json"
+	if code, _, errs := runCLI(t, "arrhenius", "--by", "lot", demo+"/coupons", demo+"/lims-export-HV-2307.csv", "--exclude", exFile, "--format", "json", "-o", line); code != 0 {
+		t.Fatalf("arrhenius: %s", errs)
+	}
+	code, out, errs := runCLI(t, "backcalc", demo+"/unknown/pinion-7731.csv", "--calibration", line+":HV-2291", "--exclude", exFile, "--format", "json")
+	if code != 0 {
+		t.Fatalf("backcalc: %s", errs)
+	}
+	var cli struct {
+		Backcalc []json.RawMessage `json:"backcalc"`
+	}
+	json.Unmarshal([]byte(out), &cli)
+	var ps, cs map[string]any
+	json.Unmarshal(bc.Solution, &ps)
+	json.Unmarshal(cli.Backcalc[0], &cs)
+	pt, _ := json.Marshal(ps["temperature_K"])
+	ct, _ := json.Marshal(cs["temperature_K"])
+	if string(pt) != string(ct) || !strings.Contains(string(pt), `"ci":[`) {
+		t.Errorf("back-calculated temperature: page %s, command line %s", pt, ct)
+	}
+}
+
+// stripSources drops the file names (the page's "source" and "file" are
+// as loaded; the numbers must agree).
+func stripSources(v any) any {
+	switch x := v.(type) {
+	case map[string]any:
+		for k, e := range x {
+			if k == "source" || k == "calibration" && isString(e) {
+				delete(x, k)
+				continue
+			}
+			x[k] = stripSources(e)
+		}
+	case []any:
+		for i := range x {
+			x[i] = stripSources(x[i])
+		}
+	}
+	return v
+}
+
+func isString(v any) bool { _, ok := v.(string); return ok }
