@@ -140,22 +140,30 @@ func (b *browserRun) wait(t *testing.T, cond string) {
 	}
 }
 
+// attr and text read in one step in the page (a node the page redraws
+// between a query and a read cannot go missing).
 func (b *browserRun) attr(t *testing.T, sel, name string) string {
 	t.Helper()
-	v, err := chromedp.Run(b.ctx, chromedp.AttributeValue(chromedp.CSS(sel), name))
-	if err != nil || !v.Exists {
-		t.Fatalf("attribute %s of %s: %v", name, sel, err)
-	}
-	return v.Value
+	return b.js(t, `document.querySelector(`+jsString(sel)+`).getAttribute(`+jsString(name)+`)`)
 }
 
 func (b *browserRun) text(t *testing.T, sel string) string {
 	t.Helper()
-	v, err := chromedp.Run(b.ctx, chromedp.Text(chromedp.CSS(sel)))
+	return b.js(t, `document.querySelector(`+jsString(sel)+`).innerText`)
+}
+
+func (b *browserRun) js(t *testing.T, expr string) string {
+	t.Helper()
+	v, err := chromedp.Run(b.ctx, chromedp.Evaluate[string](expr))
 	if err != nil {
-		t.Fatalf("text of %s: %v", sel, err)
+		t.Fatalf("%s: %v", expr, err)
 	}
 	return v
+}
+
+func jsString(s string) string {
+	b, _ := json.Marshal(s)
+	return string(b)
 }
 
 func evalInt(t *testing.T, b *browserRun, expr string) int {

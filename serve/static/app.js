@@ -154,7 +154,11 @@ function showProgress(s) {
   p.dataset.running = s.running ? "1" : "0";
 }
 
+let filesShown = "";
 function showFiles(s) {
+  const sig = JSON.stringify(s.files);
+  if (sig === filesShown) return; // unchanged: leave the DOM alone
+  filesShown = sig;
   const ul = $("files");
   ul.replaceChildren();
   if (!s.files.length) ul.append(el("li", { class: "none", text: "No files yet." }));
@@ -271,8 +275,12 @@ function buildHead() {
     onclick: () => { app.sort = { key: c.key, up: app.sort.key === c.key ? !app.sort.up : true }; applyView(); } })));
 }
 
+let rowsShown = "";
 async function refreshRows() {
   const r = await api("api/profiles");
+  const sig = JSON.stringify(r.rows);
+  if (sig === rowsShown) return; // unchanged: keep the DOM (and the scroll) as it is
+  rowsShown = sig;
   app.rows = r.rows;
   app.gen = r.generation;
   fillFilters();
