@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"html/template"
 	"io"
+	"strconv"
 	"strings"
 
 	"github.com/fickfit/fickfit/arrhenius"
@@ -414,7 +415,8 @@ func excludedRows(a *profile.Applied) [][5]string {
 		if e.Line > 0 {
 			where += fmt.Sprintf(":%d", e.Line)
 		}
-		out = append(out, [5]string{e.Profile, where, Sig(e.Depth*1e6, 6), Sig(e.Value, 6), e.Reason})
+		// As written in the files (six significant digits at most), not rounded to an uncertainty.
+		out = append(out, [5]string{e.Profile, where, strconv.FormatFloat(e.Depth*1e6, 'g', 6, 64), strconv.FormatFloat(e.Value, 'g', 6, 64), e.Reason})
 	}
 	for _, l := range a.LeftOut {
 		out = append(out, [5]string{l.Profile, l.File, "whole profile (left out of the Arrhenius lines)", "", l.Reason})

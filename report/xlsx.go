@@ -741,17 +741,19 @@ func (x *xlWriter) auditSheet(res *CampaignReport) {
 			x.err = x.f.SetRowHeight(s, row+1+i, 30)
 		}
 	}
+	last := row + len(res.Cautions)
 	if rows := excludedRows(res.Excluded); len(rows) > 0 {
-		row += len(res.Cautions) + 2
+		row = last + 2
 		x.header(s, row, "excluded (profile)", "file, line", "depth (µm)", "value", "reason")
 		for i, r := range rows {
 			for j, v := range r {
-				x.set(s, 1+j, row+1+i, v, 0)
+				x.set(s, 1+j, row+1+i, v, x.st.text)
 			}
 		}
+		last = row + len(rows)
 	}
 	x.widths(s, 34, 100, 10)
-	x.pageSetup(s, 3, row+len(res.Cautions), false, 0, 0)
+	x.pageSetup(s, 3, last, false, 0, 0)
 }
 
 // auditPairs lists the options as (name, value) for the audit trail.

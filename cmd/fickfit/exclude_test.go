@@ -6,6 +6,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/xuri/excelize/v2"
 )
 
 // exclFitJSON is the part of fickfit fit --format json these tests read.
@@ -143,6 +145,19 @@ func TestExcludeProfileFromLines(t *testing.T) {
 	html, _ := os.ReadFile(filepath.Join(out, "report.html"))
 	if !strings.Contains(string(html), "<td>oxide layer</td>") || !strings.Contains(string(html), "F7-2291-880-1.csv:9") {
 		t.Error("report.html's audit trail lacks the exclusion")
+	}
+	book, err := excelize.OpenFile(filepath.Join(out, "results.xlsx"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows, _ := book.GetRows("Audit")
+	book.Close()
+	found := false
+	for _, r := range rows {
+		found = found || strings.Contains(strings.Join(r, "|"), "F7-2291-880-1|F7-2291-880-1.csv:9|50|0.89|oxide layer")
+	}
+	if !found {
+		t.Errorf("the workbook's audit sheet lacks the exclusion: %q", rows)
 	}
 	// The folder's exclusions.csv reproduces the same fit.
 	d1, _ := fitD(t, filepath.Join(demo, "coupons/F7-2291-880-1.csv"), "--exclude", ex)
