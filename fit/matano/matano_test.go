@@ -96,30 +96,6 @@ func simulatedCouple(t *testing.T, D, k, cl, cr, tm, L float64) *numeric.Solutio
 	return s
 }
 
-func TestBandCoverage(t *testing.T) {
-	// Self-check by simulation: the 95 % bootstrap band at the middle of an
-	// erf couple must cover the true D in most of 12 seeded replicates
-	// (at least 9; with a true coverage of 95 % fewer happens with
-	// probability 0.2 %).
-	const D, tm = 4e-14, 100 * 3600.0
-	w := 2 * math.Sqrt(D*tm)
-	covered := 0
-	for seed := uint64(100); seed < 112; seed++ {
-		p := couple(seed, 40, -4*w, 4*w, tm, 0.1, func(x float64) float64 { return erfCouple(x, D, tm, 2, 30, 0) })
-		r, err := Analyze(p, 0, Options{Resamples: 200, Seed: seed, Concentrations: []float64{16}})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if ci := r.Points[0].CI; ci.Lo <= D && D <= ci.Hi {
-			covered++
-		}
-	}
-	if covered < 9 {
-		t.Errorf("the 95 %% band covered the true D in %d of 12 replicates", covered)
-	}
-	t.Logf("covered %d of 12", covered)
-}
-
 func TestExponentialDFromSolver(t *testing.T) {
 	// Consistency check between two of our methods (not an external
 	// check): the forward solver makes a couple profile for a known
