@@ -5,6 +5,7 @@ import (
 	"errors"
 	"math"
 	"math/rand/v2"
+	"os"
 	"reflect"
 	"sort"
 	"testing"
@@ -322,5 +323,40 @@ func TestAnalyzeBadInput(t *testing.T) {
 				t.Errorf("error %v does not wrap ErrBadInput", err)
 			}
 		})
+	}
+}
+
+func TestQuantileType6(t *testing.T) {
+	// External check: scipy 1.10.1 scipy.stats.mstats.mquantiles with
+	// alphap = betap = 0 (Hyndman & Fan, Amer. Statist. 50 (1996), type 6),
+	// testdata/reference/scipy_quantile.py → scipy_quantile.json.
+	b, err := os.ReadFile("../../testdata/reference/scipy_quantile.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var ref struct {
+		Cases []struct {
+			Data, P, Quantile []float64
+		}
+	}
+	if err := json.Unmarshal(b, &ref); err != nil || len(ref.Cases) == 0 {
+		t.Fatalf("scipy_quantile.json: %v", err)
+	}
+	for _, c := range ref.Cases {
+		s := append([]float64(nil), c.Data...)
+		sort.Float64s(s)
+		for i, p := range c.P {
+			if got := quantile(s, p); math.Abs(got-c.Quantile[i]) > 1e-12*math.Max(1, math.Abs(c.Quantile[i])) {
+				t.Errorf("quantile(%v, %g) = %.15g, scipy %.15g", c.Data, p, got, c.Quantile[i])
+			}
+		}
+	}
+	// The bootstrap rule: of 119 replicates, the 3rd and the 117th.
+	s := make([]float64, 119)
+	for i := range s {
+		s[i] = float64(i + 1)
+	}
+	if lo, hi := quantile(s, 0.025), quantile(s, 0.975); lo != 3 || hi != 117 {
+		t.Errorf("2.5 %% and 97.5 %% of 1…119: %g and %g, want 3 and 117", lo, hi)
 	}
 }

@@ -208,10 +208,11 @@ func (pl *pipeline) fitK(v []float64, k int, p0s [][]float64, w *lmWork) *candid
 // accuracy of bootstrap confidence intervals for a probability density",
 // Ann. Statist. 20 (1992) 675–694; L. Wasserman, All of Nonparametric
 // Statistics, Springer 2006, §5.7) is the standard remedy. For this basis
-// one term more cuts the bias of D by a factor of about five (noise-free
-// couples with exponential D(C): 5.8 → 1.0 % for ×10 from three to four
-// terms) while the spread grows by about a third; TestBandCoverage checks
-// the coverage that results.
+// one term more cuts the bias of D by a factor of two to five (largest bias
+// over 10–90 % of the range for a noise-free couple whose D rises ×10:
+// 5.8 % with three terms, 2.3 % with four, 0.4 % with five) while the
+// spread grows by about a third; TestBandCoverage checks the coverage that
+// results.
 func (pl *pipeline) run(v []float64, w *lmWork) *candidate {
 	n := len(v)
 	cl, cr, m, s, err := oneTermStart(pl.u, v)
@@ -224,17 +225,16 @@ func (pl *pipeline) run(v []float64, w *lmWork) *candidate {
 	}
 	var prev, best *candidate
 	for k := 1; k <= kmax && n >= 3*k+1+4; k++ {
+		// Grow the previous curve by splitting a term; when that fails,
+		// spread k terms over the one-term curve. (Two further starts,
+		// widths growing or shrinking across the profile, found an
+		// admissible curve these missed in 5 of 148 fits on simulated ×10
+		// couples, for 40 % more work in the whole pipeline.)
 		var p0s [][]float64
-		if k == 1 {
-			p0s = starts(1, cl, cr, m, s)
-		} else {
-			// Grow the previous curve by splitting a term; when that
-			// fails, spread k terms over the one-term curve.
-			if prev != nil {
-				p0s = append(p0s, split(prev.p, k-1))
-			}
-			p0s = append(p0s, starts(k, cl, cr, m, s)...)
+		if k > 1 && prev != nil {
+			p0s = append(p0s, split(prev.p, k-1))
 		}
+		p0s = append(p0s, start(k, cl, cr, m, s))
 		f := pl.fitK(v, k, p0s, w)
 		if k == 1 && f != nil {
 			// Later starts build on the one-term fit.

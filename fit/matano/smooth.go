@@ -226,32 +226,21 @@ func (m erfSum) jacobian(x []float64, s *Smooth, phi, jac []float64) {
 	}
 }
 
-// starts returns starting vectors for k terms from a one-term fit
-// (cl, cr, m, s): k terms of equal weight spread over the middle of the
-// one-term curve, with equal widths, widths growing ×2.5 from left to right,
-// and shrinking (the asymmetry a D rising or falling with C gives).
-func starts(k int, cl, cr, m, s float64) [][]float64 {
-	base := func() []float64 {
-		p := make([]float64, 3*k+1)
-		p[0], p[1] = cl, cr
-		return p
-	}
-	if k == 1 {
-		p := base()
-		p[2], p[3] = m, math.Log(s)
-		return [][]float64{p}
-	}
-	var out [][]float64
-	for _, ratio := range []float64{1, 2.5, 1 / 2.5} {
-		p := base()
-		for j := 0; j < k; j++ {
-			f := float64(j)/float64(k-1) - 0.5 // −½ … ½
-			p[2+2*j] = m + 0.5*s*f
-			p[3+2*j] = math.Log(s * math.Pow(ratio, f))
+// start returns a starting vector for k terms from a one-term fit
+// (cl, cr, m, s): k terms of equal weight and width s spread over the
+// middle half-width of the one-term curve.
+func start(k int, cl, cr, m, s float64) []float64 {
+	p := make([]float64, 3*k+1)
+	p[0], p[1] = cl, cr
+	for j := 0; j < k; j++ {
+		f := 0.0
+		if k > 1 {
+			f = float64(j)/float64(k-1) - 0.5 // −½ … ½
 		}
-		out = append(out, p)
+		p[2+2*j] = m + 0.5*s*f
+		p[3+2*j] = math.Log(s)
 	}
-	return out
+	return p
 }
 
 // oneTermStart estimates CL, CR, the centre and the width of a one-term
