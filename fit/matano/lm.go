@@ -4,17 +4,17 @@ import "math"
 
 // The smoother has its own small Levenberg–Marquardt rather than fit.Solve
 // for three reasons. The band refits the whole smoother (every number of
-// terms from every start) for each of ~1000 bootstrap replicates, so a fit
-// that is heading for an inadmissible curve (a term narrower than the point
-// spacing, wider than the data, or with vanishing weight) must be abandoned
-// at once, not after the iteration limit. The problem it solves is unit-free
+// terms it tries, from its starts) for each of ~1000 bootstrap replicates,
+// so a fit that is heading for an inadmissible curve (a term narrower than
+// the point spacing, wider than the data, or with vanishing weight) must be
+// abandoned at once, not after the iteration limit. The problem it solves is unit-free
 // by construction (positions scaled to [−1, 1], values to about [0, 1]; see
 // scaling), so nothing here depends on the units or on how a general solver
 // treats them. And the smoother's acceptance rule (a first-order certificate
 // plus identifiability, below) is part of what the band resamples: it must
 // not change when the general solver's tolerances are tuned for other models.
 
-// lmSettings bound one smoother fit.
+// Limits and tolerances of one smoother fit.
 const (
 	lmMaxIter = 100   // accepted iterations
 	lmStall   = 10    // a fit whose S falls, over lmStall accepted iterations,

@@ -91,9 +91,9 @@ func (sc scaling) smooth(k int, p []float64) *Smooth {
 }
 
 // pipeline is the whole smoothing procedure applied to one set of values
-// on fixed positions: the data-derived start, the fits of every number of
-// terms from every start, the admissibility rules and the choice of the
-// number of terms. The band runs it unchanged on each bootstrap replicate.
+// on fixed positions: the data-derived starts, the fits adding one term at
+// a time, the admissibility rules and the choice of the number of terms.
+// The band runs it unchanged on each bootstrap replicate.
 type pipeline struct {
 	u []float64 // positions, unit-free, increasing
 	// terms > 0 fixes the number of terms; 0 chooses it (see run).
@@ -108,7 +108,7 @@ type pipeline struct {
 // maxTerms is the largest number of erf terms a smoother may have.
 const maxTerms = 8
 
-// candidate is the best admissible fit with k terms.
+// candidate is an admissible fit with k terms (the first its starts gave).
 type candidate struct {
 	k    int
 	p    []float64 // internal parameters, unit-free
