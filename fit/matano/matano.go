@@ -73,6 +73,15 @@ type Options struct {
 	Workers int
 }
 
+// resolution is the number of point spacings below which the local length
+// of the profile, |CR − CL|/|dC/dx|, counts as under-resolved. Self-check
+// on 24 simulated couples with 60 points and 0.5 % scatter whose D rises
+// ×30: at 10–40 % of the range, where that length is 4.7–6 spacings, the
+// 95 % band held the true D at 58 of 96 levels; with 120 points (twice the
+// length) at 86 of 96. Where it is 7.8 spacings or more (D rising ×10) the
+// bands held 95 %.
+const resolution = 7
+
 // Point is D at one concentration, with its bootstrap interval.
 type Point struct {
 	C  float64      // concentration, profile unit
@@ -262,7 +271,14 @@ func analyze(p *profile.Profile, t float64, o Options) (*Result, error) {
 		}
 		return s.sauerFreise(xx, t)
 	}
-	var outside, nearEnd []string
+	// The median spacing of the points, for the resolution warning.
+	gaps := make([]float64, n-1)
+	for i := 1; i < n; i++ {
+		gaps[i-1] = x[i] - x[i-1]
+	}
+	sort.Float64s(gaps)
+	spacing := gaps[(n-1)/2]
+	var outside, nearEnd, coarse []string
 	for _, c := range cs {
 		pt := Point{C: c, D: dAt(smooth, c), CI: fit.Interval{Lo: math.NaN(), Hi: math.NaN()}}
 		yy := (c - smooth.CL) / (smooth.CR - smooth.CL)
@@ -271,6 +287,9 @@ func analyze(p *profile.Profile, t float64, o Options) (*Result, error) {
 			outside = append(outside, fmt.Sprintf("%g", c))
 		case yy < 0.1 || yy > 0.9:
 			nearEnd = append(nearEnd, fmt.Sprintf("%.4g", c))
+		}
+		if xx, ok := smooth.Position(yy); ok && smooth.slopeY(xx) > 1/(resolution*spacing) {
+			coarse = append(coarse, fmt.Sprintf("%.4g", c))
 		}
 		r.Points = append(r.Points, pt)
 	}
@@ -306,6 +325,9 @@ func analyze(p *profile.Profile, t float64, o Options) (*Result, error) {
 	}
 	if len(nearEnd) > 0 {
 		r.warn("near-end", "at %s, within 10 %% of an end composition, D is the ratio of two small numbers (the integral and the gradient) and is poorly determined; read it with its interval", strings.Join(nearEnd, ", "))
+	}
+	if len(coarse) > 0 {
+		r.warn("under-resolved", "at %s the profile would cross the whole range within %d point spacings at its local slope: the points are too far apart there for the smoother to follow D(C) (no term may be narrower than the spacing), so D and its band may be biased; measure with a finer step across the steep part", strings.Join(coarse, ", "), resolution)
 	}
 
 	if o.Resamples >= 0 {

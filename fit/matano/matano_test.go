@@ -360,3 +360,27 @@ func TestQuantileType6(t *testing.T) {
 		t.Errorf("2.5 %% and 97.5 %% of 1…119: %g and %g, want 3 and 117", lo, hi)
 	}
 }
+
+func TestUnderResolvedWarning(t *testing.T) {
+	// Self-check: a couple whose D rises ×30 (Crank–Nicolson solver) has a
+	// steep low side. Sampled at 60 points over ±6√(Dmax·t) it crosses the
+	// range within 5–6 point spacings there and must be flagged; at 160
+	// points it must not be.
+	const tm = 50 * 3600.0
+	law := numeric.Exp{D: 1e-14, K: math.Log(30)}
+	sol, L := boxCouple(t, law, tm)
+	half := 6 * math.Sqrt(law.Max(0, 1)*tm)
+	for _, c := range []struct {
+		n    int
+		want bool
+	}{{60, true}, {160, false}} {
+		p := couple(1, c.n, L/2-half, L/2+half, tm, 0.005, sol.At)
+		r, err := Analyze(p, 0, Options{Resamples: -1, Concentrations: []float64{0.1, 0.2, 0.3, 0.5, 0.7, 0.9}})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := hasWarning(r, "under-resolved"); got != c.want {
+			t.Errorf("%d points: under-resolved warning %v, want %v (%v)", c.n, got, c.want, r.Warnings)
+		}
+	}
+}
