@@ -66,7 +66,7 @@ Near the end compositions the method is ill-conditioned and says so.`,
 				results = append(results, r)
 			}
 			if figure != "" {
-				if err := writeMatanoFigures(figure, results, ps); err != nil {
+				if err := writeMatanoFigures(figure, results, ps, out.output()); err != nil {
 					return err
 				}
 			}
@@ -82,11 +82,13 @@ Near the end compositions the method is ill-conditioned and says so.`,
 	fl.IntVar(&resamples, "resamples", 1000, "bootstrap resamples for the band")
 	fl.Uint64Var(&seed, "seed", 1, "bootstrap seed: the same seed gives the same band")
 	fl.StringVar(&figure, "figure", "", "also draw the profile and D(C) to this .svg or .png file (one file per couple: the id is added when there are several)")
+	markOutput(c, "figure")
 	return c
 }
 
-// writeMatanoFigures draws each analysis to path (SVG or PNG by extension).
-func writeMatanoFigures(path string, results []*matano.Result, ps []profile.Profile) error {
+// writeMatanoFigures draws each analysis to path (SVG or PNG by extension),
+// never over an input.
+func writeMatanoFigures(path string, results []*matano.Result, ps []profile.Profile, o report.Output) error {
 	ext := strings.ToLower(filepath.Ext(path))
 	if ext != ".svg" && ext != ".png" {
 		return usagef("--figure %s: name an .svg or .png file", path)
@@ -100,7 +102,7 @@ func writeMatanoFigures(path string, results []*matano.Result, ps []profile.Prof
 		if len(results) > 1 {
 			target = strings.TrimSuffix(path, filepath.Ext(path)) + "-" + f.Name + ext
 		}
-		err = report.WriteFileAtomic(target, func(w io.Writer) error {
+		err = o.WriteFile(target, func(w io.Writer) error {
 			if ext == ".png" {
 				return f.WritePNG(w, 0)
 			}
