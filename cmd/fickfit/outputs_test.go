@@ -1,0 +1,444 @@
+package main
+
+import (
+	"bytes"
+	"errors"
+	"io/fs"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"syscall"
+	"testing"
+	"time"
+
+	"github.com/fickfit/fickfit/report"
+)
+
+// The output promises of README.md ("an input is never overwritten", "an
+// output is whole or absent", the report folder) tried as a careless or
+// unlucky user would: every case asserts the exit status, the message and
+// the files on disk (common practice, no source). Links, pipes and folders
+// are made at test time in t.TempDir().
+
+// TestMain lets a test run the real main (signals, exit statuses) in a
+// child process: with FICKFIT_TEST_MAIN=1 the test binary is fickfit.
+func TestMain(m *testing.M) {
+	if os.Getenv("FICKFIT_TEST_MAIN") == "1" {
+		main()
+		return
+	}
+	os.Exit(m.Run())
+}
+
+// copyCoupons copies a few demo coupons into dir/coupons and returns the folder.
+func copyCoupons(t *testing.T, dir string) string {
+	t.Helper()
+	c := filepath.Join(dir, "coupons")
+	if err := os.MkdirAll(c, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	for _, n := range []string{"F7-2291-880-1.csv", "F7-2291-910-1.csv", "F7-2291-940-1.csv"} {
+		b, err := os.ReadFile(filepath.Join(demoDir, "coupons", n))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(filepath.Join(c, n), b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	return c
+}
+
+// snapshot records every file under dir (its content, or its kind for
+// what is not a regular file), to compare before and after a run.
+func snapshot(t *testing.T, dir string) map[string]string {
+	t.Helper()
+	out := map[string]string{}
+	filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
+		if err != nil || p == dir {
+			return nil
+		}
+		fi, err := os.Lstat(p)
+		if err != nil {
+			return nil
+		}
+		switch {
+		case fi.Mode()&fs.ModeSymlink != 0:
+			l, _ := os.Readlink(p)
+			out[p] = "link→" + l
+		case fi.Mode().IsRegular():
+			b, _ := os.ReadFile(p)
+			out[p] = string(b)
+		default:
+			out[p] = fi.Mode().Type().String()
+		}
+		return nil
+	})
+	return out
+}
+
+func sameSnapshot(t *testing.T, before, after map[string]string) {
+	t.Helper()
+	for p, v := range before {
+		if w, ok := after[p]; !ok {
+			t.Errorf("%s disappeared", p)
+		} else if w != v {
+			t.Errorf("%s changed", p)
+		}
+	}
+	for p := range after {
+		if _, ok := before[p]; !ok {
+			t.Errorf("%s appeared", p)
+		}
+	}
+}
+
+// TestOutputNeverAnInput: -o is refused when it is, by any path, a file
+// the command reads; nothing on disk changes.
+func TestOutputNeverAnInput(t *testing.T) {
+	dir := t.TempDir()
+	coupons := copyCoupons(t, dir)
+	input := filepath.Join(coupons, "F7-2291-880-1.csv")
+	mustDo(t, os.Symlink(input, filepath.Join(dir, "link.csv")))
+	mustDo(t, os.Link(input, filepath.Join(dir, "hard.csv")))
+	mustDo(t, os.Symlink(coupons, filepath.Join(dir, "linked-folder")))
+	couple := filepath.Join(dir, "couple.csv")
+	cb, err := os.ReadFile("../../testdata/golden/couple-NiCu.csv")
+	mustDo(t, err)
+	mustDo(t, os.WriteFile(couple, cb, 0o644))
+	mustDo(t, os.Symlink(couple, filepath.Join(dir, "fig.svg")))
+	cal := filepath.Join(dir, "hv-to-c.csv")
+	mustDo(t, os.WriteFile(cal, []byte("HV,C_wt%\n300,0.2\n500,0.5\n700,0.9\n"), 0o644))
+	line := filepath.Join(dir, "line.json")
+	code, _, stderr := runCLI(t, "arrhenius", coupons, "--format", "json", "-o", line)
+	if code != 0 {
+		t.Fatalf("arrhenius: exit %d: %s", code, stderr)
+	}
+	for _, tc := range []struct {
+		name string
+		args []string
+	}{
+		{"a file found in an input folder", []string{"fit", coupons, "-o", input}},
+		{"another spelling of the path", []string{"fit", coupons, "-o", filepath.Join(coupons, "..", "coupons", ".", "F7-2291-880-1.csv")}},
+		{"a symbolic link to an input", []string{"fit", coupons, "-o", filepath.Join(dir, "link.csv")}},
+		{"a hard link to an input", []string{"fit", coupons, "-o", filepath.Join(dir, "hard.csv")}},
+		{"through a linked folder", []string{"fit", coupons, "-o", filepath.Join(dir, "linked-folder", "F7-2291-910-1.csv")}},
+		{"the input given through a linked folder", []string{"fit", filepath.Join(dir, "linked-folder"), "-o", filepath.Join(coupons, "F7-2291-940-1.csv")}},
+		{"a calibration read by a flag", []string{"predict", "--calibration", line, "--temperature", "925C", "--time", "4h", "--Cs", "1", "--C0", "0.2", "-o", line}},
+		{"a calibration with its group", []string{"backcalc", input, "--calibration", line + ":", "--time", "4h", "-o", line}},
+		{"a hardness calibration", []string{"fit", input, "--hardness-calibration", cal, "-o", cal}},
+		{"a figure through a link to an input", []string{"matano", couple, "--resamples", "-1", "--figure", filepath.Join(dir, "fig.svg")}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			before := snapshot(t, dir)
+			code, stdout, stderr := runCLI(t, tc.args...)
+			if code != exitBadInput || !strings.Contains(stderr, "would overwrite an input") {
+				t.Errorf("exit %d, stderr %q; want %d and \"would overwrite an input\"", code, stderr, exitBadInput)
+			}
+			if stdout != "" && tc.args[0] != "matano" {
+				t.Errorf("wrote to standard output: %q", stdout)
+			}
+			sameSnapshot(t, before, snapshot(t, dir))
+		})
+	}
+}
+
+// TestOutputNotARegularFile: -o never replaces a folder, a named pipe or a
+// device; "-o -" is standard output; a link to another file keeps the
+// link and replaces its target.
+func TestOutputNotARegularFile(t *testing.T) {
+	dir := t.TempDir()
+	in := copyCoupons(t, dir)
+	fifo := filepath.Join(dir, "pipe")
+	mustDo(t, syscall.Mkfifo(fifo, 0o644))
+	sub := filepath.Join(dir, "sub")
+	mustDo(t, os.Mkdir(sub, 0o755))
+	mustDo(t, os.Symlink(filepath.Join(dir, "missing"), filepath.Join(dir, "dangling")))
+	cases := []struct{ path, frag string }{
+		{fifo, "not a regular file (a named pipe)"},
+		{sub, "not a regular file (a folder)"},
+		{filepath.Join(dir, "dangling"), "symbolic link that leads nowhere"},
+	}
+	// /dev/null is tried only when a mistake could not replace it (not as
+	// root): the case must never be able to harm the machine running it.
+	if os.Geteuid() != 0 {
+		if fi, err := os.Stat("/dev/null"); err == nil && fi.Mode()&fs.ModeCharDevice != 0 {
+			cases = append(cases, struct{ path, frag string }{"/dev/null", "a character device"})
+		}
+	}
+	for _, tc := range cases {
+		before := snapshot(t, dir)
+		code, stdout, stderr := runCLI(t, "fit", in, "--format", "json", "-o", tc.path)
+		if code != exitBadInput || !strings.Contains(stderr, tc.frag) || !strings.Contains(stderr, "-o -") && !strings.HasSuffix(tc.frag, "(a folder)") && !strings.Contains(tc.frag, "nowhere") {
+			t.Errorf("-o %s: exit %d, stderr %q; want %d and %q", tc.path, code, stderr, exitBadInput, tc.frag)
+		}
+		if stdout != "" {
+			t.Errorf("-o %s wrote to standard output", tc.path)
+		}
+		sameSnapshot(t, before, snapshot(t, dir))
+	}
+	// "-o -" writes to standard output and creates no file named "-".
+	wd, _ := os.Getwd()
+	mustDo(t, os.Chdir(dir))
+	defer os.Chdir(wd)
+	code, stdout, stderr := runCLI(t, "fit", in, "--format", "json", "-o", "-")
+	if code != 0 || !strings.HasPrefix(stdout, "{\n  \"fickfit_version\"") {
+		t.Errorf("-o -: exit %d, stderr %s, stdout %.40q", code, stderr, stdout)
+	}
+	if _, err := os.Lstat(filepath.Join(dir, "-")); err == nil {
+		t.Error("-o - created a file named -")
+	}
+	// A link to a file that is not an input: the link stays, its target is replaced.
+	target := filepath.Join(dir, "old.json")
+	mustDo(t, os.WriteFile(target, []byte("old"), 0o644))
+	mustDo(t, os.Symlink(target, filepath.Join(dir, "current.json")))
+	if code, _, stderr := runCLI(t, "fit", in, "--format", "json", "-o", filepath.Join(dir, "current.json")); code != 0 {
+		t.Fatalf("-o through a link: exit %d: %s", code, stderr)
+	}
+	if fi, err := os.Lstat(filepath.Join(dir, "current.json")); err != nil || fi.Mode()&fs.ModeSymlink == 0 {
+		t.Errorf("the link was replaced by a file")
+	}
+	if b, _ := os.ReadFile(target); !bytes.HasPrefix(b, []byte("{")) {
+		t.Errorf("the link's target was not written: %.20q", b)
+	}
+}
+
+// campaignArgs is a small campaign: three coupons, fast intervals, no PNG.
+func campaignArgs(coupons, out string, more ...string) []string {
+	return append([]string{"campaign", coupons, "--out", out, "--ci", "wald", "--no-png", "--by", "none"}, more...)
+}
+
+// TestReportFolderOwnership: --force replaces exactly the files an earlier
+// report wrote (stale ones removed) and never a user's; a file fickfit
+// wrote and the user changed is the user's; a folder fickfit did not
+// write is refused where the report needs its names.
+func TestReportFolderOwnership(t *testing.T) {
+	dir := t.TempDir()
+	coupons := copyCoupons(t, dir)
+	part := filepath.Join(dir, "part.csv")
+	b, _ := os.ReadFile(filepath.Join(demoDir, "unknown", "pinion-7731.csv"))
+	mustDo(t, os.WriteFile(part, b, 0o644))
+	out := filepath.Join(dir, "R")
+	if code, _, stderr := runCLI(t, campaignArgs(coupons, out, "--reference-lines", "C-in-gamma-Fe")...); code != 0 {
+		t.Fatalf("first run: exit %d: %s", code, stderr)
+	}
+	for _, n := range []string{"results.json", "summary.txt", "figures/arrhenius.svg", report.ManifestName} {
+		if _, err := os.Stat(filepath.Join(out, n)); err != nil {
+			t.Fatalf("first run did not write %s", n)
+		}
+	}
+	// A second run without --force is refused and changes nothing.
+	before := snapshot(t, out)
+	code, _, stderr := runCLI(t, campaignArgs(coupons, out)...)
+	if code != exitBadInput || !strings.Contains(stderr, "holds an earlier fickfit report") || !strings.Contains(stderr, "--force") {
+		t.Errorf("rerun without --force: exit %d, %s", code, stderr)
+	}
+	sameSnapshot(t, before, snapshot(t, out))
+	// With --force and the part added: the user's files stay, the report is replaced.
+	notes := filepath.Join(out, "notes.txt")
+	mustDo(t, os.WriteFile(notes, []byte("lab notes"), 0o644))
+	mine := filepath.Join(out, "figures", "my-sketch.svg")
+	mustDo(t, os.WriteFile(mine, []byte("<svg/>"), 0o644))
+	if code, _, stderr := runCLI(t, append(campaignArgs(coupons, out, "--force"), part)...); code != 0 {
+		t.Fatalf("--force with a part: exit %d: %s", code, stderr)
+	}
+	if _, err := os.Stat(filepath.Join(out, "backcalc.csv")); err != nil {
+		t.Fatal("backcalc.csv not written for the part")
+	}
+	// Without the part again: its backcalc.csv and figure are stale and go.
+	if code, _, stderr := runCLI(t, campaignArgs(coupons, out, "--force")...); code != 0 {
+		t.Fatalf("--force without the part: exit %d: %s", code, stderr)
+	}
+	for _, n := range []string{"backcalc.csv", "figures/profile-pinion-7731.svg"} {
+		if _, err := os.Stat(filepath.Join(out, n)); !errors.Is(err, fs.ErrNotExist) {
+			t.Errorf("stale %s of the earlier report left behind (%v)", n, err)
+		}
+	}
+	if b, _ := os.ReadFile(notes); string(b) != "lab notes" {
+		t.Error("the user's notes.txt was changed")
+	}
+	if b, _ := os.ReadFile(mine); string(b) != "<svg/>" {
+		t.Error("the user's figures/my-sketch.svg was changed")
+	}
+	if entries, _ := filepath.Glob(filepath.Join(out, ".fickfit-tmp-*")); len(entries) > 0 {
+		t.Errorf("temporary folders left: %v", entries)
+	}
+	// A report file the user changed is theirs now: refused even with --force.
+	summary := filepath.Join(out, "summary.txt")
+	f, _ := os.OpenFile(summary, os.O_APPEND|os.O_WRONLY, 0)
+	f.WriteString("checked by J. Doe\n")
+	f.Close()
+	before = snapshot(t, out)
+	code, _, stderr = runCLI(t, campaignArgs(coupons, out, "--force")...)
+	if code != exitBadInput || !strings.Contains(stderr, "summary.txt changed after fickfit wrote it") {
+		t.Errorf("changed summary.txt: exit %d, %s", code, stderr)
+	}
+	sameSnapshot(t, before, snapshot(t, out))
+	// A folder holding a user's results.json (no manifest lists it): refused
+	// with --force, the file untouched.
+	user := filepath.Join(dir, "U")
+	mustDo(t, os.Mkdir(user, 0o755))
+	mustDo(t, os.WriteFile(filepath.Join(user, "results.json"), []byte(`{"mine": true}`), 0o644))
+	before = snapshot(t, user)
+	code, _, stderr = runCLI(t, campaignArgs(coupons, user, "--force")...)
+	if code != exitBadInput || !strings.Contains(stderr, "results.json was not written by fickfit") {
+		t.Errorf("user's results.json: exit %d, %s", code, stderr)
+	}
+	sameSnapshot(t, before, snapshot(t, user))
+	// The report folder may not be an input folder.
+	before = snapshot(t, coupons)
+	code, _, stderr = runCLI(t, campaignArgs(coupons, filepath.Join(dir, ".", "coupons"), "--force")...)
+	if code != exitBadInput || !strings.Contains(stderr, "is the input folder") {
+		t.Errorf("--out an input folder: exit %d, %s", code, stderr)
+	}
+	sameSnapshot(t, before, snapshot(t, coupons))
+}
+
+// TestReportFolderRefusals: an empty --out, a file as --out, a folder
+// another run is writing, and a campaign that fails leave nothing behind.
+func TestReportFolderRefusals(t *testing.T) {
+	dir := t.TempDir()
+	coupons := copyCoupons(t, dir)
+	before := snapshot(t, dir)
+	wd, _ := os.Getwd()
+	mustDo(t, os.Chdir(dir))
+	code, _, stderr := runCLI(t, campaignArgs(coupons, "")...)
+	os.Chdir(wd)
+	if code != exitBadInput || !strings.Contains(stderr, "--out: name the report folder") {
+		t.Errorf(`--out "": exit %d, %s`, code, stderr)
+	}
+	sameSnapshot(t, before, snapshot(t, dir))
+
+	file := filepath.Join(coupons, "F7-2291-880-1.csv")
+	code, _, stderr = runCLI(t, campaignArgs(coupons, file, "--force")...)
+	if code != exitBadInput || !strings.Contains(stderr, "name a folder") {
+		t.Errorf("--out a file: exit %d, %s", code, stderr)
+	}
+	sameSnapshot(t, before, snapshot(t, dir))
+
+	// A campaign that fails (a bad input) into a new folder leaves no folder.
+	bad := filepath.Join(dir, "bad.csv")
+	mustDo(t, os.WriteFile(bad, []byte("depth_mm,C_wt%\n0.1,abc\n"), 0o644))
+	out := filepath.Join(dir, "new", "R")
+	code, _, stderr = runCLI(t, append(campaignArgs(coupons, out), bad)...)
+	if code != exitBadInput || !strings.Contains(stderr, "bad.csv") {
+		t.Errorf("bad input: exit %d, %s", code, stderr)
+	}
+	if _, err := os.Stat(filepath.Join(dir, "new")); !errors.Is(err, fs.ErrNotExist) {
+		t.Errorf("a failed campaign left its folder behind (%v)", err)
+	}
+
+	// A second run into a folder being written fails at once.
+	busy := filepath.Join(dir, "busy")
+	held, err := report.OpenReportFolder(busy, report.FolderOptions{Command: "campaign"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	code, _, stderr = runCLI(t, campaignArgs(coupons, busy, "--force")...)
+	held.Close()
+	if code != exitBadInput || !strings.Contains(stderr, "another fickfit run is writing") {
+		t.Errorf("busy folder: exit %d, %s", code, stderr)
+	}
+	if _, err := os.Stat(busy); !errors.Is(err, fs.ErrNotExist) {
+		t.Errorf("the busy folder was not removed by the run that created it (%v)", err)
+	}
+}
+
+// TestDemoNeverOverwritesAUserFile: the demo replaces its own earlier
+// report, judged by the manifest, never a file of the user's with a
+// report's name, with or without --force.
+func TestDemoNeverOverwritesAUserFile(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "demo")
+	mustDo(t, os.Mkdir(dir, 0o755))
+	user := filepath.Join(dir, "results.json")
+	mustDo(t, os.WriteFile(user, []byte(`{"mine": true}`), 0o644))
+	for _, force := range []bool{false, true} {
+		args := []string{"demo", "--out", dir, "--no-png", "--ci", "wald"}
+		if force {
+			args = append(args, "--force")
+		}
+		code, _, stderr := runCLI(t, args...)
+		if code != exitBadInput || !strings.Contains(stderr, "results.json") {
+			t.Errorf("demo (force %v) over a user's results.json: exit %d, %s", force, code, stderr)
+		}
+		if b, _ := os.ReadFile(user); string(b) != `{"mine": true}` {
+			t.Fatal("the user's results.json was changed")
+		}
+		if entries, _ := os.ReadDir(dir); len(entries) != 1 {
+			t.Errorf("files written into a refused folder: %v", entries)
+		}
+	}
+}
+
+// TestInterruptLeavesNothing runs fickfit as a child process whose input
+// is a named pipe nobody writes, so that it waits inside the campaign with
+// its report folder created and locked; SIGINT and SIGTERM must remove
+// the folder it created (or leave an earlier report as it was) and exit
+// 130 and 143.
+func TestInterruptLeavesNothing(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts child processes")
+	}
+	dir := t.TempDir()
+	fifo := filepath.Join(dir, "waiting.csv")
+	mustDo(t, syscall.Mkfifo(fifo, 0o644))
+	coupons := copyCoupons(t, dir)
+	earlier := filepath.Join(dir, "earlier")
+	if code, _, stderr := runCLI(t, campaignArgs(coupons, earlier)...); code != 0 {
+		t.Fatalf("earlier report: exit %d: %s", code, stderr)
+	}
+	for _, tc := range []struct {
+		sig  syscall.Signal
+		out  string
+		want int
+	}{
+		{syscall.SIGINT, filepath.Join(dir, "R"), 130},
+		{syscall.SIGTERM, earlier, 143},
+	} {
+		before := snapshot(t, tc.out)
+		cmd := exec.Command(os.Args[0], campaignArgs(fifo, tc.out, "--force")[0:]...)
+		cmd.Env = append(os.Environ(), "FICKFIT_TEST_MAIN=1")
+		var stderr bytes.Buffer
+		cmd.Stderr = &stderr
+		mustDo(t, cmd.Start())
+		// Wait until the child reads the pipe: a non-blocking open of its
+		// write end succeeds only then, and by then the child has locked
+		// the report folder (which it does before reading anything). The
+		// write end stays open and silent, so the child keeps waiting.
+		var w *os.File
+		for deadline := time.Now().Add(2 * time.Minute); ; time.Sleep(20 * time.Millisecond) {
+			var err error
+			if w, err = os.OpenFile(fifo, os.O_WRONLY|syscall.O_NONBLOCK, 0); err == nil {
+				break
+			}
+			if time.Now().After(deadline) {
+				cmd.Process.Kill()
+				t.Fatalf("the child never read its input: %s", stderr.String())
+			}
+		}
+		mustDo(t, cmd.Process.Signal(tc.sig))
+		err := cmd.Wait()
+		w.Close()
+		var ee *exec.ExitError
+		if !errors.As(err, &ee) || ee.ExitCode() != tc.want {
+			t.Errorf("%v: %v, want exit %d; stderr %s", tc.sig, err, tc.want, stderr.String())
+		}
+		if !strings.Contains(stderr.String(), "stopped by") {
+			t.Errorf("%v: message %q", tc.sig, stderr.String())
+		}
+		sameSnapshot(t, before, snapshot(t, tc.out))
+		if tc.out != earlier {
+			if _, err := os.Stat(tc.out); !errors.Is(err, fs.ErrNotExist) {
+				t.Errorf("%v: the folder the run created is still there (%v)", tc.sig, err)
+			}
+		}
+	}
+}
+
+func mustDo(t *testing.T, err error) {
+	t.Helper()
+	if err != nil {
+		t.Fatal(err)
+	}
+}
