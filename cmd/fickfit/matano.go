@@ -38,6 +38,9 @@ Near the end compositions the method is ill-conditioned and says so.`,
 			if err := out.check(args); err != nil {
 				return err
 			}
+			if err := atMost("--resamples", resamples, maxResamples); err != nil {
+				return err
+			}
 			ps, err := profile.ReadAll(args)
 			if err != nil {
 				return err
@@ -79,7 +82,7 @@ Near the end compositions the method is ill-conditioned and says so.`,
 	fl.StringVar(&tm, "time", "", "annealing time of the couple (overrides the file)")
 	fl.Float64SliceVar(&at, "at", nil, "concentrations at which to report D (default: 5 %…95 % of the way between the end compositions)")
 	fl.Float64Var(&level, "level", 0.95, "confidence level of the bootstrap band")
-	fl.IntVar(&resamples, "resamples", 1000, "bootstrap resamples for the band")
+	fl.IntVar(&resamples, "resamples", 1000, "bootstrap resamples for the band (at most 100000; negative: no band)")
 	fl.Uint64Var(&seed, "seed", 1, "bootstrap seed: the same seed gives the same band")
 	fl.StringVar(&figure, "figure", "", "also draw the profile and D(C) to this .svg or .png file (one file per couple: the id is added when there are several)")
 	markOutput(c, "figure")

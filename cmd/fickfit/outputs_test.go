@@ -12,6 +12,9 @@ import (
 	"testing"
 	"time"
 
+	"github.com/spf13/cobra"
+
+	"github.com/fickfit/fickfit/internal/parallel"
 	"github.com/fickfit/fickfit/report"
 )
 
@@ -27,6 +30,11 @@ func TestMain(m *testing.M) {
 	if os.Getenv("FICKFIT_TEST_MAIN") == "1" {
 		main()
 		return
+	}
+	if os.Getenv("FICKFIT_TEST_CRASH") == "1" {
+		crashBySignal()
+		go func() { panic("planted crash") }()
+		select {}
 	}
 	os.Exit(m.Run())
 }
@@ -440,5 +448,77 @@ func mustDo(t *testing.T, err error) {
 	t.Helper()
 	if err != nil {
 		t.Fatal(err)
+	}
+}
+
+// TestWorkLimits: counts beyond the stated limits are usage errors (exit
+// 2) before any work, naming the flag and the limit; the limits themselves
+// are accepted by the flag check (common practice, no source).
+func TestWorkLimits(t *testing.T) {
+	good := "../../testdata/profile/A3.csv"
+	for _, tc := range []struct {
+		args []string
+		frag string
+	}{
+		{[]string{"fit", good, "--ci", "bootstrap", "--resamples", "1000000000"}, "--resamples 1000000000 is more than the limit of 100000"},
+		{[]string{"campaign", good, "--out", filepath.Join(t.TempDir(), "R"), "--ci", "bootstrap", "--resamples", "100001"}, "limit of 100000"},
+		{[]string{"matano", "../../testdata/golden/couple-NiCu.csv", "--resamples", "200000"}, "--resamples 200000 is more than the limit of 100000"},
+		{[]string{"backcalc", good, "--reference", "C-in-gamma-Fe", "--time", "4h", "--method", "monte-carlo", "--draws", "100000000"}, "--draws 100000000 is more than the limit of 1000000"},
+		{[]string{"predict", "--reference", "C-in-gamma-Fe", "--temperature", "925C", "--time", "4h", "--Cs", "1", "--C0", "0.2", "--points", "1000000"}, "--points 1000000 is more than the limit of 10000"},
+	} {
+		code, stdout, stderr := runCLI(t, tc.args...)
+		if code != exitBadInput || !strings.Contains(stderr, tc.frag) || stdout != "" {
+			t.Errorf("%v: exit %d, stderr %q; want %d and %q", tc.args[:2], code, stderr, exitBadInput, tc.frag)
+		}
+	}
+	if err := atMost("--draws", maxDraws, maxDraws); err != nil {
+		t.Errorf("the limit itself is refused: %v", err)
+	}
+}
+
+// TestInternalErrorIsNotBadInput: a panic in a command, or in one of its
+// workers, exits 3 with a message saying it is fickfit's fault, never 2
+// (common practice, no source; docs/output.md, "Exit status").
+func TestInternalErrorIsNotBadInput(t *testing.T) {
+	commands = append(commands, func() *cobra.Command {
+		return &cobra.Command{Use: "test-panic", RunE: func(*cobra.Command, []string) error {
+			parallel.For(4, func(i int) {
+				if i == 2 {
+					panic("a bug planted by the test")
+				}
+			}, nil)
+			return nil
+		}}
+	})
+	defer func() { commands = commands[:len(commands)-1] }()
+	code, _, stderr := runCLI(t, "test-panic")
+	if code != exitInternal || !strings.Contains(stderr, "internal error (a fault of fickfit, not of your input)") ||
+		!strings.Contains(stderr, "a bug planted by the test") {
+		t.Errorf("exit %d, stderr %q", code, stderr)
+	}
+}
+
+// TestRuntimeCrashIsNotExit2: a fatal error of the Go runtime (here an
+// unrecovered panic in a goroutine of its own) ends the process with
+// SIGABRT, not with the runtime's usual status 2, which means bad input.
+func TestRuntimeCrashIsNotExit2(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts a child process")
+	}
+	cmd := exec.Command(os.Args[0])
+	cmd.Env = append(os.Environ(), "FICKFIT_TEST_CRASH=1")
+	var stderr bytes.Buffer
+	cmd.Stderr = &stderr
+	err := cmd.Run()
+	var ee *exec.ExitError
+	if !errors.As(err, &ee) {
+		t.Fatalf("the child did not fail: %v", err)
+	}
+	ws, ok := ee.Sys().(syscall.WaitStatus)
+	if ee.ExitCode() == exitBadInput || !ok || !ws.Signaled() || ws.Signal() != syscall.SIGABRT {
+		t.Errorf("crash ended with %v (exit %d), want SIGABRT; stderr %.200q", err, ee.ExitCode(), stderr.String())
+	}
+	if !strings.Contains(stderr.String(), "planted crash") {
+		t.Errorf("the crash's message is missing: %.200q", stderr.String())
 	}
 }
