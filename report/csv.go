@@ -1,7 +1,6 @@
 package report
 
 import (
-	"encoding/csv"
 	"io"
 	"strconv"
 	"strings"
@@ -59,7 +58,7 @@ func (f Fits) WriteCSV(w io.Writer) error {
 	}
 	header = append(header, "value_unit", "n", "dof", "rss", "rmse", "r2", "aicc", "chi2_red", "chi2_p", "runs_p", "cond",
 		"ci_level", "ci_method", "covariance", "converged", "source", "material", "warnings", "error")
-	cw := csv.NewWriter(w)
+	cw := newCSVWriter(w)
 	if err := cw.Write(header); err != nil {
 		return err
 	}
@@ -122,7 +121,7 @@ func (f Fits) WriteCSV(w io.Writer) error {
 // or row; empty when unknown). Observed, fitted and residual are in the
 // profile's value unit, given in value_unit.
 func (f Fits) WriteResidualsCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
+	cw := newCSVWriter(w)
 	if err := cw.Write([]string{"id", "depth_m", "observed", "fitted", "residual", "value_unit", "line"}); err != nil {
 		return err
 	}

