@@ -63,7 +63,7 @@ func (f Fits) WriteCSV(w io.Writer) error {
 		return err
 	}
 	for _, r := range f.Results {
-		row := []string{r.ID, r.Lot, csvNumber(r.Temperature), csvNumber(r.Time), r.Model}
+		row := []string{r.ID, r.Lot, csvGiven(r.Temperature), csvGiven(r.Time), r.Model}
 		d := r.Param("D")
 		switch {
 		case d == nil:

@@ -666,3 +666,46 @@ func TestNoInjection(t *testing.T) {
 		}
 	}
 }
+
+// TestMissingConditions: a profile without hold time or temperature gives
+// null in JSON and an empty cell in CSV, never 0, and the JSON reads back
+// (common practice, no source; docs/output.md, "Undetermined numbers").
+func TestMissingConditions(t *testing.T) {
+	dir := t.TempDir()
+	b, err := os.ReadFile(filepath.Join(demoDir, "coupons", "F7-2291-880-1.csv"))
+	mustDo(t, err)
+	var keep []string
+	for _, l := range strings.Split(string(b), "\n") {
+		if !strings.HasPrefix(l, "# time:") && !strings.HasPrefix(l, "# temperature:") {
+			keep = append(keep, l)
+		}
+	}
+	in := filepath.Join(dir, "bare.csv")
+	mustDo(t, os.WriteFile(in, []byte(strings.Join(keep, "\n")), 0o644))
+	out := filepath.Join(dir, "fits.json")
+	if code, _, stderr := runCLI(t, "fit", in, "--ci", "wald", "--format", "json", "-o", out); code != 0 {
+		t.Fatalf("fit: exit %d: %s", code, stderr)
+	}
+	js, _ := os.ReadFile(out)
+	if !bytes.Contains(js, []byte(`"time_s": null,`)) || !bytes.Contains(js, []byte(`"temperature_K": null,`)) {
+		t.Errorf("missing time and temperature are not null:\n%.600s", js)
+	}
+	_, csvOut, _ := runCLI(t, "fit", in, "--ci", "wald", "--format", "csv")
+	rows, err := csv.NewReader(strings.NewReader(csvOut)).ReadAll()
+	mustDo(t, err)
+	if rows[0][2] != "temperature_K" || rows[0][3] != "time_s" || rows[1][2] != "" || rows[1][3] != "" {
+		t.Errorf("CSV: %v / %v", rows[0][:4], rows[1][:4])
+	}
+	// The JSON with nulls is read back by the next command.
+	code, text, stderr := runCLI(t, "backcalc", out, "--solve", "temperature", "--time", "5h", "--reference", "C-in-gamma-Fe")
+	if code != 0 || !strings.Contains(text, "°C") {
+		t.Errorf("backcalc on the JSON: exit %d: %s", code, stderr)
+	}
+	// An extreme answer in text: a hold time at room temperature is a
+	// number with a power of ten, not hundreds of digits or NaN.
+	code, text, stderr = runCLI(t, "backcalc", in, "--solve", "time", "--temperature", "300K", "--reference", "C-in-gamma-Fe")
+	if code != 0 || !regexp.MustCompile(`hold time +[0-9.]+ × 10[⁰¹²³⁴⁵⁶⁷⁸⁹]+ h`).MatchString(text) ||
+		regexp.MustCompile(`[0-9]{12}`).MatchString(text) || strings.Contains(text, "NaN") {
+		t.Errorf("hold time at 300 K: exit %d, %s\n%s", code, stderr, text)
+	}
+}

@@ -10,8 +10,10 @@ import (
 	"bufio"
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"io"
 	"math"
+	"slices"
 )
 
 // Num returns a pointer to v, or nil when v is NaN or ±Inf, so that a
@@ -56,4 +58,44 @@ func Encode(w io.Writer, v any) error {
 		return err
 	}
 	return bw.Flush()
+}
+
+// ZeroAsNull rewrites a compact JSON object (as Marshal writes it) so that
+// each of the named top-level keys whose value is exactly 0 reads null:
+// for quantities where 0 means "not given" (a hold time, a temperature in
+// kelvin), which a script must not take for a measured zero. Key order and
+// every other byte are kept.
+func ZeroAsNull(obj []byte, keys ...string) ([]byte, error) {
+	dec := json.NewDecoder(bytes.NewReader(obj))
+	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
+		return nil, fmt.Errorf("jsonx.ZeroAsNull: not a JSON object")
+	}
+	var out bytes.Buffer
+	out.WriteByte('{')
+	for i := 0; dec.More(); i++ {
+		t, err := dec.Token()
+		if err != nil {
+			return nil, err
+		}
+		key, _ := t.(string)
+		var raw json.RawMessage
+		if err := dec.Decode(&raw); err != nil {
+			return nil, err
+		}
+		if string(raw) == "0" && slices.Contains(keys, key) {
+			raw = json.RawMessage("null")
+		}
+		k, err := Marshal(key)
+		if err != nil {
+			return nil, err
+		}
+		if i > 0 {
+			out.WriteByte(',')
+		}
+		out.Write(k)
+		out.WriteByte(':')
+		out.Write(raw)
+	}
+	out.WriteByte('}')
+	return out.Bytes(), nil
 }
