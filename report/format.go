@@ -71,6 +71,21 @@ func exp10(v float64) int {
 	return e
 }
 
+// numFmt writes numbers for people with digits significant digits for a
+// value that has no interval (TextOptions.Digits, the --digits option; 0
+// means DefaultDigits); a value with an interval keeps the digits its
+// interval supports. The package functions (LastDigit, Estimate, General…)
+// are numFmt{}'s, for figures, the workbook and the HTML report.
+type numFmt struct{ digits int }
+
+// sig is the number of significant digits of a value without an interval.
+func (n numFmt) sig() int {
+	if n.digits <= 0 {
+		return DefaultDigits
+	}
+	return n.digits
+}
+
 // LastDigit returns the decimal place (as a power of ten) of the last digit
 // to show for value v with interval iv. The uncertainty u is the smaller
 // finite half-width of the interval, and its digits follow the Particle
@@ -81,7 +96,10 @@ func exp10(v float64) int {
 // 100:2008 §7.2.6), but keeps at least one and at most six significant
 // digits. Without a usable interval it gives DefaultDigits significant
 // digits.
-func LastDigit(v float64, iv fit.Interval) int {
+func LastDigit(v float64, iv fit.Interval) int { return numFmt{}.lastDigit(v, iv) }
+
+// lastDigit is LastDigit with n's digits for a value without an interval.
+func (n numFmt) lastDigit(v float64, iv fit.Interval) int {
 	u := math.Inf(1)
 	if finite(iv.Lo) && v-iv.Lo > 0 {
 		u = v - iv.Lo
@@ -91,7 +109,7 @@ func LastDigit(v float64, iv fit.Interval) int {
 	}
 	ev := exp10(v)
 	if math.IsInf(u, 1) || !finite(v) {
-		return ev - (DefaultDigits - 1)
+		return ev - (n.sig() - 1)
 	}
 	eu := exp10(u)
 	lead := leadDigits(u, eu)
@@ -229,7 +247,10 @@ func mantissa(v float64, e, last int) string {
 func Sig(v float64, sig int) string { return Number(v, SigDigits(v, sig)) }
 
 // General writes a number with DefaultDigits significant digits.
-func General(v float64) string { return Sig(v, DefaultDigits) }
+func General(v float64) string { return numFmt{}.general(v) }
+
+// general writes a number with n's significant digits.
+func (n numFmt) general(v float64) string { return Sig(v, n.sig()) }
 
 // Estimate writes a value with its unit and its interval at the given level:
 //
@@ -240,7 +261,12 @@ func General(v float64) string { return Sig(v, DefaultDigits) }
 // The unit is written as given through PrettyUnit. A degenerate interval
 // (lo = hi = v, a fixed parameter) is left out.
 func Estimate(v float64, iv fit.Interval, level float64, unit string) string {
-	last := LastDigit(v, iv)
+	return numFmt{}.estimate(v, iv, level, unit)
+}
+
+// estimate is Estimate with n's digits for a value without an interval.
+func (n numFmt) estimate(v float64, iv fit.Interval, level float64, unit string) string {
+	last := n.lastDigit(v, iv)
 	s := Number(v, last)
 	if u := PrettyUnit(unit); u != "" {
 		s += " " + u
@@ -342,11 +368,14 @@ func PrettyUnit(u string) string {
 // best beside it: µm²/s for 10⁻¹⁵ ≤ D < 10⁻⁸ m²/s ("29.4 µm²/s"), cm²/s
 // otherwise ("0.32 cm²/s", "2.9 × 10⁻¹⁵ cm²/s" is never chosen for small D).
 // The digits follow the interval as in Estimate. It returns "" for D ≤ 0.
-func DAlternative(d float64, iv fit.Interval) string {
+func DAlternative(d float64, iv fit.Interval) string { return numFmt{}.dAlternative(d, iv) }
+
+// dAlternative is DAlternative with n's digits for a value without an interval.
+func (n numFmt) dAlternative(d float64, iv fit.Interval) string {
 	if !(d > 0) || !finite(d) {
 		return ""
 	}
-	last := LastDigit(d, iv)
+	last := n.lastDigit(d, iv)
 	f, unit := 1e-4, "cm²/s"
 	if d >= 1e-15 && d < 1e-8 {
 		f, unit = 1e-12, "µm²/s"
@@ -480,10 +509,15 @@ func TemperatureShort(k float64, u TempUnit) string {
 // digits following the interval, in the user's unit with kelvin beside:
 // "931 °C (1204 K), 95 % CI 918–944 °C".
 func TemperatureEstimate(k float64, iv fit.Interval, level float64, u TempUnit) string {
+	return numFmt{}.temperatureEstimate(k, iv, level, u)
+}
+
+// temperatureEstimate is TemperatureEstimate with n's digits.
+func (n numFmt) temperatureEstimate(k float64, iv fit.Interval, level float64, u TempUnit) string {
 	// The digits are decided on the kelvin interval; a °F step is smaller,
 	// which the scale factor allows for.
-	last := LastDigit(k, iv)
-	lastU := LastDigit(u.FromKelvin(k), fit.Interval{Lo: u.FromKelvin(iv.Lo), Hi: u.FromKelvin(iv.Hi)})
+	last := n.lastDigit(k, iv)
+	lastU := n.lastDigit(u.FromKelvin(k), fit.Interval{Lo: u.FromKelvin(iv.Lo), Hi: u.FromKelvin(iv.Hi)})
 	if !finite(iv.Lo) || !finite(iv.Hi) {
 		last, lastU = 0, 0
 	}
@@ -551,6 +585,11 @@ func Duration(s float64) string {
 // DurationEstimate writes an estimated time with its interval, digits
 // following the interval: "6.2 h, 95 % CI 5.8–6.7 h".
 func DurationEstimate(s float64, iv fit.Interval, level float64) string {
+	return numFmt{}.durationEstimate(s, iv, level)
+}
+
+// durationEstimate is DurationEstimate with n's digits.
+func (n numFmt) durationEstimate(s float64, iv fit.Interval, level float64) string {
 	f, unit := 3600.0, "h"
 	switch {
 	case math.Abs(s) < 120:
@@ -559,7 +598,7 @@ func DurationEstimate(s float64, iv fit.Interval, level float64) string {
 		f, unit = 60, "min"
 	}
 	scaled := fit.Interval{Lo: iv.Lo / f, Hi: iv.Hi / f}
-	out := Estimate(s/f, scaled, level, unit)
+	out := n.estimate(s/f, scaled, level, unit)
 	if finite(iv.Lo) && finite(iv.Hi) && !degenerate(s, iv) {
 		out += " " + unit
 	}

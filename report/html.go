@@ -181,7 +181,7 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 			}
 		}
 		for _, e := range r.Params {
-			pt := formatParam(e)
+			pt := formatParam(e, numFmt{})
 			if e.Name == "D" && r.Time == 0 {
 				pt.Name = "Dt"
 			}

@@ -114,10 +114,10 @@ func (f *ReportFolder) WriteCampaign(result *campaign.Result, opts CampaignOptio
 	if len(res.Parts) > 0 {
 		add(FileBackcalc, res.Backcalc().WriteCSV)
 	}
-	to := TextOptions{TempUnit: opts.TempUnit}
+	to := TextOptions{TempUnit: opts.TempUnit, Digits: opts.Digits}
 	add(FileSummary, func(out io.Writer) error {
 		w := newTextEscaper(out)
-		if err := res.WriteSummary(w, TextOptions{TempUnit: opts.TempUnit, NoCautions: true}); err != nil {
+		if err := res.WriteSummary(w, TextOptions{TempUnit: opts.TempUnit, Digits: opts.Digits, NoCautions: true}); err != nil {
 			return err
 		}
 		io.WriteString(w, "\n\nProfiles in detail\n\n")

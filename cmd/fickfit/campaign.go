@@ -66,7 +66,7 @@ func (cf *campaignFlags) options(c *cobra.Command, args []string) (campaign.Opti
 		return o, ro, usagef("--out: name the report folder (it is created if it does not exist)")
 	}
 	progress := stageProgress()
-	ro = report.CampaignOptions{TempUnit: cf.output.unit, Force: cf.force, NoPNG: cf.noPNG, Progress: progress}
+	ro = report.CampaignOptions{TempUnit: cf.output.unit, Digits: cf.output.digits, Force: cf.force, NoPNG: cf.noPNG, Progress: progress}
 	o = campaign.Options{
 		Fit: fo, By: cf.by, Method: cf.method, References: cf.refs, Version: fickfit.Version, Progress: progress,
 		Adjust: func(p *profile.Profile) error {
@@ -206,7 +206,7 @@ func finishCampaign(w io.Writer, folder *report.ReportFolder, res *campaign.Resu
 	}
 	dir := folder.Dir()
 	summary := &report.CampaignReport{Result: res, TempUnit: o.TempUnit}
-	if err := emit(w, report.Text, report.TextOptions{TempUnit: o.TempUnit}, summary); err != nil {
+	if err := emit(w, report.Text, report.TextOptions{TempUnit: o.TempUnit, Digits: o.Digits}, summary); err != nil {
 		return err
 	}
 	fmt.Fprintf(w, "\nReport written to %s (%d files); open %s in a browser.\n", dir, len(files), filepath.Join(dir, report.FileHTML))

@@ -17,14 +17,15 @@ import (
 
 // outFlags are the output options, declared here once for every command:
 // --format and -o for the commands that write one document to a stream,
-// and --temperature-unit for every command that writes text (campaign and
-// demo too). A new shared output option is one more field, flag and line
-// in textOptions or emit below.
+// and --temperature-unit and --digits for every command that writes text
+// (campaign and demo too). A new shared output option is one more field,
+// flag and line in textOptions or emit below.
 type outFlags struct {
 	stream   bool // the command writes a Document to standard output or -o
 	format   string
 	path     string
 	tempUnit string
+	digits   int
 
 	cmd    *cobra.Command
 	fmt    report.Format
@@ -45,6 +46,7 @@ func (o *outFlags) register(c *cobra.Command, stream bool) {
 		markOutput(c, "output")
 	}
 	fl.StringVar(&o.tempUnit, "temperature-unit", "C", "temperature unit of the text and reports: C, K or F")
+	fl.IntVar(&o.digits, "digits", report.DefaultDigits, "significant digits of the numbers text writes without an interval (1 to 15; a value with an interval keeps the digits its interval supports)")
 	_ = c.RegisterFlagCompletionFunc("temperature-unit", fixed("C", "K", "F"))
 }
 
@@ -57,6 +59,9 @@ func (o *outFlags) check(args []string) error {
 		return usagef("--temperature-unit: %v", err)
 	}
 	o.unit = u
+	if o.digits < 1 || o.digits > 15 {
+		return usagef("--digits %d: give 1 to 15 significant digits", o.digits)
+	}
 	o.inputs = inputFiles(o.cmd, args)
 	if !o.stream {
 		return nil
@@ -137,7 +142,7 @@ func inputFiles(c *cobra.Command, args []string) []string {
 
 // textOptions are the options of the text form.
 func (o *outFlags) textOptions() report.TextOptions {
-	return report.TextOptions{TempUnit: o.unit}
+	return report.TextOptions{TempUnit: o.unit, Digits: o.digits}
 }
 
 // emit writes d in the chosen format to standard output or, with -o, to a

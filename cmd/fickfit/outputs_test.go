@@ -709,3 +709,47 @@ func TestMissingConditions(t *testing.T) {
 		t.Errorf("hold time at 300 K: exit %d, %s\n%s", code, stderr, text)
 	}
 }
+
+// TestDigits: --digits sets the significant digits of the numbers text
+// writes without an interval, in every command that writes text; numbers
+// with an interval keep the digits their interval supports; the default
+// output is pinned by the golden files (common practice, no source).
+func TestDigits(t *testing.T) {
+	coupon := demoDir + "/coupons/F7-2291-880-1.csv"
+	for _, tc := range []struct {
+		args       []string
+		def, wider string
+	}{
+		{[]string{"fit", coupon, "--fix", "C0=0.2", "--ci", "wald"}, "C0  0.200 wt%", "C0  0.200000 wt%"},
+		{[]string{"predict", "--reference", "C-in-gamma-Fe", "--temperature", "925C", "--Cs", "1.0", "--C0", "0.2",
+			"--case-threshold", "0.35wt%", "--target-depth", "0.9mm"}, "hold time      7.97 h", "hold time      7.97407 h"},
+		{[]string{"backcalc", demoDir + "/unknown/pinion-7731.csv", "--solve", "time", "--temperature", "925C", "--reference", "C-in-gamma-Fe"},
+			"(1.53 eV)", "(1.53391 eV)"},
+		{[]string{"matano", goldenDir + "/couple-NiCu.csv", "--resamples", "-1"}, "5.54 × 10⁻¹⁵", "5.53"},
+	} {
+		_, def, _ := runCLI(t, tc.args...)
+		code, wider, stderr := runCLI(t, append(tc.args, "--digits", "6")...)
+		if code != 0 || !strings.Contains(def, tc.def) || !strings.Contains(wider, tc.wider) {
+			t.Errorf("%s: exit %d %s; default has %q: %v; --digits 6 has %q: %v", tc.args[0], code, stderr,
+				tc.def, strings.Contains(def, tc.def), tc.wider, strings.Contains(wider, tc.wider))
+		}
+	}
+	for _, bad := range []string{"0", "16"} {
+		code, _, stderr := runCLI(t, "reference", "--digits", bad)
+		if code != exitBadInput || !strings.Contains(stderr, "--digits "+bad+": give 1 to 15") {
+			t.Errorf("--digits %s: exit %d, %s", bad, code, stderr)
+		}
+	}
+	// The campaign's summary.txt follows --digits too.
+	dir := t.TempDir()
+	coupons := copyCoupons(t, dir)
+	mustDo(t, os.Remove(filepath.Join(coupons, "F7-2291-940-1.csv"))) // two temperatures: D0 without interval
+	code, _, stderr := runCLI(t, campaignArgs(coupons, filepath.Join(dir, "R"), "--digits", "7")...)
+	if code != 0 {
+		t.Fatalf("campaign: exit %d: %s", code, stderr)
+	}
+	b, _ := os.ReadFile(filepath.Join(dir, "R", "summary.txt"))
+	if !regexp.MustCompile(`D0 = [0-9]\.[0-9]{6} × 10⁻[⁰¹²³⁴⁵⁶⁷⁸⁹]+ m²/s \(no interval`).Match(b) {
+		t.Errorf("summary.txt does not write D0 (no interval: two temperatures) with 7 digits:\n%.1500s", b)
+	}
+}
