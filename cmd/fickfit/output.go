@@ -3,6 +3,7 @@ package main
 import (
 	"io"
 	"os"
+	"path/filepath"
 	"strings"
 	"sync"
 
@@ -74,6 +75,9 @@ func (o *outFlags) check(args []string) error {
 	}
 	if _, err := o.output().Target(o.path); err != nil {
 		return usagef("-o %v", err)
+	}
+	if fi, err := os.Stat(filepath.Dir(o.path)); err != nil || !fi.IsDir() {
+		return usagef("-o %s: the folder %s does not exist; create it first or choose another output name", o.path, filepath.Dir(o.path))
 	}
 	return nil
 }
