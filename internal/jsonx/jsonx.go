@@ -64,38 +64,43 @@ func Encode(w io.Writer, v any) error {
 // each of the named top-level keys whose value is exactly 0 reads null:
 // for quantities where 0 means "not given" (a hold time, a temperature in
 // kelvin), which a script must not take for a measured zero. Key order and
-// every other byte are kept.
+// every other byte are kept. It scans the bytes once (strings skipped,
+// nesting counted), so that it costs little beside the marshalling.
 func ZeroAsNull(obj []byte, keys ...string) ([]byte, error) {
-	dec := json.NewDecoder(bytes.NewReader(obj))
-	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
+	if len(obj) < 2 || obj[0] != '{' {
 		return nil, fmt.Errorf("jsonx.ZeroAsNull: not a JSON object")
 	}
-	var out bytes.Buffer
-	out.WriteByte('{')
-	for i := 0; dec.More(); i++ {
-		t, err := dec.Token()
-		if err != nil {
-			return nil, err
+	var out []byte
+	last, depth := 0, 0
+	for i := 0; i < len(obj); i++ {
+		switch obj[i] {
+		case '{', '[':
+			depth++
+		case '}', ']':
+			depth--
+		case '"':
+			j := i + 1
+			for j < len(obj) && obj[j] != '"' {
+				if obj[j] == '\\' {
+					j++
+				}
+				j++
+			}
+			if j >= len(obj) {
+				return nil, fmt.Errorf("jsonx.ZeroAsNull: unterminated string")
+			}
+			v := j + 2 // the value after "key":
+			if depth == 1 && v+1 < len(obj) && obj[j+1] == ':' && obj[v] == '0' && (obj[v+1] == ',' || obj[v+1] == '}') &&
+				slices.Contains(keys, string(obj[i+1:j])) {
+				out = append(out, obj[last:v]...)
+				out = append(out, "null"...)
+				last = v + 1
+			}
+			i = j
 		}
-		key, _ := t.(string)
-		var raw json.RawMessage
-		if err := dec.Decode(&raw); err != nil {
-			return nil, err
-		}
-		if string(raw) == "0" && slices.Contains(keys, key) {
-			raw = json.RawMessage("null")
-		}
-		k, err := Marshal(key)
-		if err != nil {
-			return nil, err
-		}
-		if i > 0 {
-			out.WriteByte(',')
-		}
-		out.Write(k)
-		out.WriteByte(':')
-		out.Write(raw)
 	}
-	out.WriteByte('}')
-	return out.Bytes(), nil
+	if out == nil {
+		return obj, nil
+	}
+	return append(out, obj[last:]...), nil
 }
