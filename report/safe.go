@@ -109,10 +109,15 @@ func appendEscaped(b, p []byte, final bool) (out, rest []byte) {
 		if c < utf8.RuneSelf {
 			if unsafeByte(c) {
 				b = fmt.Appendf(b, `\x%02x`, c)
-			} else {
-				b = append(b, c)
+				i++
+				continue
 			}
-			i++
+			j := i + 1 // copy a run of safe ASCII at once
+			for j < len(p) && p[j] < utf8.RuneSelf && !unsafeByte(p[j]) {
+				j++
+			}
+			b = append(b, p[i:j]...)
+			i = j
 			continue
 		}
 		if !final && !utf8.FullRune(p[i:]) {
