@@ -4,7 +4,6 @@ import (
 	"bufio"
 	"crypto/sha256"
 	"encoding/hex"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -17,7 +16,6 @@ import (
 	"strings"
 
 	"github.com/fickfit/fickfit/internal/cleanup"
-	"github.com/fickfit/fickfit/internal/jsonx"
 )
 
 // A report folder is whole or absent, and fickfit replaces only what it
@@ -53,35 +51,6 @@ var (
 	// fickfit, or was changed after fickfit wrote it.
 	ErrNotOwned = errors.New("not written by fickfit")
 )
-
-// kindError is an error of a kind (errors.Is) with a message of its own.
-type kindError struct {
-	kind error
-	msg  string
-}
-
-func (e kindError) Error() string { return e.msg }
-func (e kindError) Unwrap() error { return e.kind }
-
-// manifest is the content of ManifestName. No timestamps, so that a
-// rerun writes the same bytes.
-type manifest struct {
-	Format   int            `json:"fickfit_manifest"`
-	Version  string         `json:"fickfit_version"`
-	Command  string         `json:"command"`
-	Complete bool           `json:"complete"`
-	Files    []manifestFile `json:"files"`
-	Folders  []string       `json:"folders"`
-}
-
-// manifestFile is one file of a report, its path relative to the folder
-// with '/' separators. SHA256 is empty while a report is moved into place
-// (the file may hold the earlier or the new content).
-type manifestFile struct {
-	Path   string `json:"path"`
-	Bytes  int64  `json:"bytes"`
-	SHA256 string `json:"sha256"`
-}
 
 // FolderOptions control how a report folder is opened.
 type FolderOptions struct {
@@ -384,52 +353,6 @@ func (f *ReportFolder) removeStaleTemporaries() {
 	}
 }
 
-// readManifest reads the folder's manifest; nil when there is none.
-func readManifest(dir string) (*manifest, error) {
-	p := filepath.Join(dir, ManifestName)
-	fi, err := os.Lstat(p)
-	if errors.Is(err, fs.ErrNotExist) {
-		return nil, nil
-	}
-	bad := func(why string) error {
-		return fmt.Errorf("%s: the manifest of an earlier report cannot be used (%s): choose another folder, or remove the report's files and %s yourself", p, why, ManifestName)
-	}
-	if err != nil {
-		return nil, bad(unwrapPath(err).Error())
-	}
-	if !fi.Mode().IsRegular() || fi.Size() > 64<<20 {
-		return nil, bad("not a regular file of at most 64 MiB")
-	}
-	b, err := os.ReadFile(p)
-	if err != nil {
-		return nil, bad(unwrapPath(err).Error())
-	}
-	var m manifest
-	if err := json.Unmarshal(b, &m); err != nil {
-		return nil, bad(err.Error())
-	}
-	if m.Format != 1 {
-		return nil, bad(fmt.Sprintf("format %d is not known to this version", m.Format))
-	}
-	for _, mf := range m.Files {
-		if !localPath(mf.Path) {
-			return nil, bad(fmt.Sprintf("it lists %q, which is not a path inside the folder", mf.Path))
-		}
-	}
-	for _, d := range m.Folders {
-		if !localPath(d) {
-			return nil, bad(fmt.Sprintf("it lists %q, which is not a path inside the folder", d))
-		}
-	}
-	return &m, nil
-}
-
-// localPath tells a clean relative slash path inside the folder that is
-// not one of the folder's own control files.
-func localPath(p string) bool {
-	return p != "" && fs.ValidPath(p) && p != "." && p != ManifestName && p != lockName && !strings.HasPrefix(p, tempPrefix)
-}
-
 // builtFile is a file of the new report, complete in the temporary folder.
 type builtFile struct {
 	manifestFile
@@ -590,18 +513,6 @@ func (f *ReportFolder) commit(built []builtFile, folders []string) error {
 // incomplete is the error of a commit that stopped after files began to move.
 func (f *ReportFolder) incomplete(err error) error {
 	return fmt.Errorf("report folder %s is incomplete (its manifest says so): %w; run again with --force to replace it", f.dir, unwrapPath(err))
-}
-
-// writeManifest writes the manifest atomically, files sorted by path.
-func (f *ReportFolder) writeManifest(m manifest) error {
-	sort.Slice(m.Files, func(i, j int) bool { return m.Files[i].Path < m.Files[j].Path })
-	if m.Files == nil {
-		m.Files = []manifestFile{}
-	}
-	if m.Folders == nil {
-		m.Folders = []string{}
-	}
-	return Output{Force: true}.WriteFile(filepath.Join(f.dir, ManifestName), func(w io.Writer) error { return jsonx.Encode(w, m) })
 }
 
 // Close unlocks the folder. When no report was committed, a folder this
