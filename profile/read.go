@@ -99,11 +99,6 @@ func openError(path string, err error) *Error {
 	return &Error{File: path, Err: fmt.Errorf("%w: %w", ErrOpen, err), Hint: "check the path and the permissions"}
 }
 
-// Files lists the files ReadAll reads for paths: each path that is a
-// folder is replaced by the readable files directly in it, in name order.
-// The command line uses it to know every input it must never overwrite.
-func Files(paths []string) ([]string, error) { return expand(paths) }
-
 // expand replaces folders by the readable files in them.
 func expand(paths []string) ([]string, error) {
 	var out []string

@@ -24,6 +24,9 @@ const (
 	FileWorkbook  = "results.xlsx"
 	FileHTML      = "report.html"
 	DirFigures    = "figures"
+	// FileExclusions is the exclusions file applied (written only when
+	// there is one); fickfit reads it back with --exclude.
+	FileExclusions = "exclusions.csv"
 )
 
 // renderedFigure is a figure drawn as SVG (inline and standalone) and PNG.
@@ -113,6 +116,9 @@ func (f *ReportFolder) WriteCampaign(result *campaign.Result, opts CampaignOptio
 	add(FileArrhenius, res.Arrhenius().WriteCSV)
 	if len(res.Parts) > 0 {
 		add(FileBackcalc, res.Backcalc().WriteCSV)
+	}
+	if res.Exclusions != nil {
+		add(FileExclusions, res.Exclusions.WriteCSV)
 	}
 	to := TextOptions{TempUnit: opts.TempUnit, Digits: opts.Digits}
 	add(FileSummary, func(out io.Writer) error {

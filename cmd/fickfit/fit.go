@@ -48,6 +48,9 @@ highest temperature), exact when D does not depend on concentration.`,
 			if err != nil {
 				return err
 			}
+			if err := ff.excludePoints(ps, c.ErrOrStderr()); err != nil {
+				return err
+			}
 			if err := ff.override(ps); err != nil {
 				return err
 			}

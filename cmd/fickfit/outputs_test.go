@@ -125,6 +125,8 @@ func TestOutputNeverAnInput(t *testing.T) {
 	mustDo(t, err)
 	mustDo(t, os.WriteFile(couple, cb, 0o644))
 	mustDo(t, os.Symlink(couple, filepath.Join(dir, "fig.svg")))
+	excl := filepath.Join(dir, "exclusions.csv")
+	mustDo(t, os.WriteFile(excl, []byte("file,profile,depth_um,line,reason\n"), 0o644))
 	cal := filepath.Join(dir, "hv-to-c.csv")
 	mustDo(t, os.WriteFile(cal, []byte("HV,C_wt%\n300,0.2\n500,0.5\n700,0.9\n"), 0o644))
 	line := filepath.Join(dir, "line.json")
@@ -145,6 +147,7 @@ func TestOutputNeverAnInput(t *testing.T) {
 		{"a calibration read by a flag", []string{"predict", "--calibration", line, "--temperature", "925C", "--time", "4h", "--Cs", "1", "--C0", "0.2", "-o", line}},
 		{"a calibration with its group", []string{"backcalc", input, "--calibration", line + ":", "--time", "4h", "-o", line}},
 		{"a hardness calibration", []string{"fit", input, "--hardness-calibration", cal, "-o", cal}},
+		{"an exclusions file", []string{"fit", coupons, "--exclude", excl, "-o", excl}},
 		{"a figure through a link to an input", []string{"matano", couple, "--resamples", "-1", "--figure", filepath.Join(dir, "fig.svg")}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
