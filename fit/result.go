@@ -137,9 +137,11 @@ type Result struct {
 	// ValueUnit is the unit of the measured values ("wt%", "HV"…).
 	ValueUnit string `json:"value_unit,omitempty"`
 	Converged bool   `json:"converged"`
-	// Time is the hold time in s (0 when not given: then D is reported as Dt).
+	// Time is the hold time in s (0 when not given: then D is reported as
+	// Dt; null in JSON).
 	Time float64 `json:"time_s"`
-	// Temperature is the hold temperature in K (0 when not given).
+	// Temperature is the hold temperature in K (0 when not given; null in
+	// JSON).
 	Temperature      float64 `json:"temperature_K"`
 	TemperatureSigma float64 `json:"temperature_sigma_K,omitempty"`
 	Thickness        float64 `json:"thickness_m,omitempty"`
@@ -179,6 +181,19 @@ type Result struct {
 	pint  []float64   // all parameters, internal scale
 	free  []bool      // which are free
 	cov   [][]float64 // covariance of free parameters, internal scale
+}
+
+// MarshalJSON writes the result with its fields' tags, except that a hold
+// time or temperature that was not given (0) is null, not 0: a script
+// must not read 0 s or 0 K as a measured value. Reading it back gives 0
+// again.
+func (r Result) MarshalJSON() ([]byte, error) {
+	type plain Result // the same fields without this method
+	b, err := jsonx.Marshal(plain(r))
+	if err != nil {
+		return nil, err
+	}
+	return jsonx.ZeroAsNull(b, "time_s", "temperature_K")
 }
 
 // Param returns the estimate with the given name, or nil.

@@ -1,7 +1,6 @@
 package report
 
 import (
-	"encoding/csv"
 	"io"
 	"strconv"
 	"strings"
@@ -59,12 +58,12 @@ func (f Fits) WriteCSV(w io.Writer) error {
 	}
 	header = append(header, "value_unit", "n", "dof", "rss", "rmse", "r2", "aicc", "chi2_red", "chi2_p", "runs_p", "cond",
 		"ci_level", "ci_method", "covariance", "converged", "source", "material", "warnings", "error")
-	cw := csv.NewWriter(w)
+	cw := newCSVWriter(w)
 	if err := cw.Write(header); err != nil {
 		return err
 	}
 	for _, r := range f.Results {
-		row := []string{r.ID, r.Lot, csvNumber(r.Temperature), csvNumber(r.Time), r.Model}
+		row := []string{r.ID, r.Lot, csvGiven(r.Temperature), csvGiven(r.Time), r.Model}
 		d := r.Param("D")
 		switch {
 		case d == nil:
@@ -122,7 +121,7 @@ func (f Fits) WriteCSV(w io.Writer) error {
 // or row; empty when unknown). Observed, fitted and residual are in the
 // profile's value unit, given in value_unit.
 func (f Fits) WriteResidualsCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
+	cw := newCSVWriter(w)
 	if err := cw.Write([]string{"id", "depth_m", "observed", "fitted", "residual", "value_unit", "line"}); err != nil {
 		return err
 	}

@@ -112,7 +112,7 @@ func viewMatanoText(w *bufio.Writer, rs []*matano.Result, o TextOptions) {
 				tb.Add(c, "n/a", "outside the end compositions")
 				continue
 			}
-			dl := LastDigit(p.D, p.CI)
+			dl := t.n().lastDigit(p.D, p.CI)
 			civ := ""
 			if finite(p.CI.Lo) || finite(p.CI.Hi) {
 				civ = IntervalAt(p.D, p.CI, dl)

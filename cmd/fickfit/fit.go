@@ -71,7 +71,7 @@ highest temperature), exact when D does not depend on concentration.`,
 			}
 			for _, e := range errs {
 				if e != nil && e != worst {
-					fmt.Fprintln(c.ErrOrStderr(), "fickfit:", e)
+					fmt.Fprintln(c.ErrOrStderr(), "fickfit:", report.EscapeText(e.Error()))
 				}
 			}
 			return worst

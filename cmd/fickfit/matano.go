@@ -43,6 +43,9 @@ so.`,
 			if err := out.check(args); err != nil {
 				return err
 			}
+			if err := atMost("--resamples", resamples, maxResamples); err != nil {
+				return err
+			}
 			ps, err := profile.ReadAll(args)
 			if err != nil {
 				return err
@@ -79,7 +82,7 @@ so.`,
 				results = append(results, r)
 			}
 			if figure != "" {
-				if err := writeMatanoFigures(figure, results, ps); err != nil {
+				if err := writeMatanoFigures(figure, results, ps, out.output()); err != nil {
 					return err
 				}
 			}
@@ -93,14 +96,16 @@ so.`,
 	fl.StringVar(&terms, "terms", "auto", "error-function terms of the smoother: 1 to 8, or auto (one more than AICc chooses)")
 	fl.Float64SliceVar(&at, "at", nil, "concentrations at which to report D (default: 5 %…95 % of the way between the end compositions)")
 	fl.Float64Var(&level, "level", 0.95, "confidence level of the bootstrap band")
-	fl.IntVar(&resamples, "resamples", 1000, "bootstrap resamples for the band")
+	fl.IntVar(&resamples, "resamples", 1000, "bootstrap resamples for the band (at most 100000; negative: no band)")
 	fl.Uint64Var(&seed, "seed", 1, "bootstrap seed: the same seed gives the same band")
 	fl.StringVar(&figure, "figure", "", "also draw the profile and D(C) to this .svg or .png file (one file per couple: the id is added when there are several)")
+	markOutput(c, "figure")
 	return c
 }
 
-// writeMatanoFigures draws each analysis to path (SVG or PNG by extension).
-func writeMatanoFigures(path string, results []*matano.Result, ps []profile.Profile) error {
+// writeMatanoFigures draws each analysis to path (SVG or PNG by extension),
+// never over an input.
+func writeMatanoFigures(path string, results []*matano.Result, ps []profile.Profile, o report.Output) error {
 	ext := strings.ToLower(filepath.Ext(path))
 	if ext != ".svg" && ext != ".png" {
 		return usagef("--figure %s: name an .svg or .png file", path)
@@ -114,7 +119,7 @@ func writeMatanoFigures(path string, results []*matano.Result, ps []profile.Prof
 		if len(results) > 1 {
 			target = strings.TrimSuffix(path, filepath.Ext(path)) + "-" + f.Name + ext
 		}
-		err = report.WriteFileAtomic(target, func(w io.Writer) error {
+		err = o.WriteFile(target, func(w io.Writer) error {
 			if ext == ".png" {
 				return f.WritePNG(w, 0)
 			}
