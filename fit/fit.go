@@ -338,7 +338,7 @@ func plural(n int, one, many string) string {
 func failureReason(m Model, sol *Solution, free []bool, p0 []float64) string {
 	params := m.Params()
 	switch {
-	case strings.HasPrefix(sol.Reason, "iteration limit"):
+	case sol.Status == IterationLimit:
 		// Name the free parameter that travelled furthest in units of its
 		// effect on the curve: it is the one the data do not hold.
 		kk := countTrue(free)
@@ -362,7 +362,7 @@ func failureReason(m Model, sol *Solution, free []bool, p0 []float64) string {
 	case sol.Stuck >= 0 && sol.Stuck < len(params):
 		name := params[sol.Stuck].Name
 		return fmt.Sprintf("%s has no effect on the curve at the final point: it ran off towards an asymptote (0 or infinity), so these data do not determine %s", name, name)
-	case sol.Unidentified:
+	case sol.Status == Unidentified:
 		var idx []int
 		for j, f := range free {
 			if f {

@@ -20,15 +20,22 @@ type Problem struct {
 
 // Settings tune Solve. A zero field takes the value from DefaultSettings.
 type Settings struct {
-	// MaxIter is the largest number of Jacobian evaluations.
+	// MaxIter is the largest number of iterations (Jacobian evaluations at
+	// accepted points).
 	MaxIter int
-	// FTol stops when the actual and predicted relative reductions of S
-	// are both below it.
+	// FTol is the certificate's tolerance on the predicted relative
+	// reduction of S: the reduction the quadratic model predicts for the
+	// next Levenberg–Marquardt step (damping at most the initial one),
+	// divided by S, must be below it.
 	FTol float64
-	// XTol stops when the scaled step is below XTol times the scaled parameters.
+	// XTol is ignored: a small step is not evidence of an optimum, so Solve
+	// no longer stops on it. Kept so that older callers still compile.
+	//
+	// Deprecated: the first-order certificate (FTol, GTol) decides.
 	XTol float64
-	// GTol stops when the largest cosine between the residual vector and a
-	// Jacobian column is below it (the gradient vanishes).
+	// GTol is the certificate's tolerance on the largest scaled gradient
+	// component |gⱼ|/(dⱼ√S), the cosine between the residual vector and
+	// the scaled Jacobian column j.
 	GTol float64
 	// CondMax is the largest condition number of the scaled JᵀWJ at the
 	// solution for the parameters to count as identified.
@@ -38,7 +45,7 @@ type Settings struct {
 // DefaultSettings returns tolerances tight enough to reproduce certified
 // reference values to about eight significant digits.
 func DefaultSettings() Settings {
-	return Settings{MaxIter: 200, FTol: 1e-14, XTol: 1e-12, GTol: 1e-12, CondMax: 1e13}
+	return Settings{MaxIter: 200, FTol: 1e-14, GTol: 1e-8, CondMax: 1e13}
 }
 
 func (s *Settings) withDefaults() Settings {
@@ -52,9 +59,6 @@ func (s *Settings) withDefaults() Settings {
 	}
 	if out.FTol <= 0 {
 		out.FTol = d.FTol
-	}
-	if out.XTol <= 0 {
-		out.XTol = d.XTol
 	}
 	if out.GTol <= 0 {
 		out.GTol = d.GTol
@@ -70,10 +74,20 @@ type Solution struct {
 	P          []float64 // all parameters (fixed ones unchanged)
 	F          []float64 // model values at P
 	RSS        float64   // weighted residual sum of squares at P
-	Iterations int       // Jacobian evaluations
-	Converged  bool
+	Iterations int       // Jacobian evaluations at accepted points
+	// Status says how Solve ended; Converged is Status == Certified.
+	Status    Status
+	Converged bool
 	// Reason says why the iteration stopped, in words.
 	Reason string
+	// FirstOrder is true when the first-order certificate held at P, even
+	// if P is no usable answer (Status Asymptote or Unidentified): S is then
+	// stationary to working precision in the free parameters.
+	FirstOrder bool
+	// Gradient is the largest scaled gradient component |gⱼ|/(dⱼ√S) at P and
+	// Predicted the predicted relative reduction of S of the next step: the
+	// two numbers of the certificate.
+	Gradient, Predicted float64
 	// JTJ is JᵀWJ over the free parameters at P (k×k, row-major).
 	JTJ []float64
 	// Jac is the N×P Jacobian at P.
@@ -83,24 +97,50 @@ type Solution struct {
 	// Stuck is the index of a free parameter that ran off to an asymptote
 	// (it no longer changes the model), or −1.
 	Stuck int
-	// Unidentified is true when the scaled JᵀWJ is too ill-conditioned for
-	// the free parameters to be told apart.
-	Unidentified bool
 
 	work *[]float64 // the workspace P, F, Jac and JTJ live in
 }
 
+// lambda0 is the initial damping, dimensionless: relative to the scaled
+// JᵀWJ, whose diagonal is 1 at the start (Nielsen's τ = 1e-3 for a start
+// of unknown quality: H. B. Nielsen, "Damping parameter in Marquardt's
+// method", IMM-REP-1999-05, DTU, 1999; from memory).
+const lambda0 = 1e-3
+
 // Solve minimises the problem by Levenberg–Marquardt with Moré's scaling
 // (J. J. Moré, "The Levenberg–Marquardt algorithm: implementation and
-// theory", in Numerical Analysis, ed. G. A. Watson, Springer LNM 630, 1978): the damped normal
-// equations (JᵀWJ + λ·diag(d²)) δ = JᵀW r, with d the running maximum of the
-// column norms, solved by Cholesky. We keep our own small solver rather than
-// gonum/optimize so that one fit allocates only its workspace: a profile
-// has 2–6 parameters and the normal equations are tiny.
+// theory", in Numerical Analysis, ed. G. A. Watson, Springer LNM 630, 1978).
+// We keep our own small solver rather than gonum/optimize so that one fit
+// allocates only its workspace: a profile has 2–6 parameters and the
+// normal equations are tiny.
+//
+// What is scaled by what. Each free parameter j is scaled by dⱼ, the
+// largest weighted Jacobian column norm ‖∂f/∂pⱼ‖_W met so far (Moré's
+// D, a running maximum); in the scaled variables zⱼ = dⱼpⱼ the columns
+// have norm at most 1, whatever the units of values and positions. The
+// damped normal equations are (JᵀWJ + λ·D²) δ = JᵀW r, so λ is
+// dimensionless (it compares with the unit diagonal of the scaled JᵀWJ);
+// it starts at 1e-3 and is divided by 3 after a very successful step,
+// doubled after a poor one and multiplied by 4 after a rejected one.
+// Residual sums enter only as ratios to S, gradients only as cosines
+// gⱼ/(dⱼ√S). Multiplying the values by a, shifting them by b, or
+// measuring a parameter in other units leaves every decision unchanged.
+//
+// Converged only on a first-order certificate at an accepted point: the
+// largest scaled gradient component is below GTol and the reduction of S
+// predicted for the next step (damping at most 1e-3) is below FTol·S.
+// Both floors are raised to what rounding in the residuals allows
+// (8ε(‖y‖_W + √S)), so data stored with a large offset still certify. A
+// small step alone proves nothing: a stop without the certificate has
+// Status IterationLimit or NoDescent and Converged false. Steps whose
+// predicted and actual changes of S are both below its rounding level are
+// accepted (Gauss–Newton polishing), so that the certificate can be met
+// where S itself no longer resolves the progress.
 //
 // A point where the free parameters are not identified (condition number of
-// the scaled JᵀWJ above Settings.CondMax, or a Jacobian column that vanishes)
-// is returned with Converged false: it is not a minimum worth reporting.
+// the scaled JᵀWJ above Settings.CondMax) or where a free parameter ran off
+// to an asymptote is returned with Converged false: it is not a minimum
+// worth reporting.
 func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 	set := s.withDefaults()
 	n, np := len(pr.Y), len(p0)
@@ -124,10 +164,11 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 		return nil, fmt.Errorf("%w: %d observations for %d free parameters", ErrBadInput, n, k)
 	}
 
-	// One workspace block: p, trial, f, ftrial, jac, jtrial, a (JᵀWJ), chol, g, diag, delta.
-	// Trial points are evaluated with their Jacobian: most trials are
-	// accepted, and the Jacobian costs little beyond the values.
-	size := 2*np + 2*n + 2*n*np + 2*k*k + 3*k
+	// One workspace block: p, trial, f, ftrial, jac, jtrial, a (JᵀWJ), two
+	// factors, g, diag, delta, u, v. Trial points are evaluated with their
+	// Jacobian: most trials are accepted, and the Jacobian costs little
+	// beyond the values.
+	size := 2*np + 2*n + 2*n*np + 3*k*k + 5*k
 	bp, _ := workPool.Get().(*[]float64)
 	if bp == nil || cap(*bp) < size {
 		fresh := make([]float64, size)
@@ -137,227 +178,341 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 	clear(buf)
 	whole := buf
 	take := func(m int) []float64 { v := buf[:m:m]; buf = buf[m:]; return v }
+	st := lmState{pr: pr, n: n, np: np, k: k}
 	p, trial := take(np), take(np)
-	f, ftr := take(n), take(n)
-	jac, jtr := take(n*np), take(n*np)
-	a, chol := take(k*k), take(k*k)
-	g, diag, delta := take(k), take(k), take(k)
+	st.f, st.ftr = take(n), take(n)
+	st.jac, st.jtr = take(n*np), take(n*np)
+	st.a, st.fac, st.fac2 = take(k*k), take(k*k), take(k*k)
+	st.g, st.diag, st.delta, st.u, st.v = take(k), take(k), take(k), take(k), take(k)
 	copy(p, p0)
 
-	rss := func(fv []float64) float64 {
-		var sum float64
-		for i, y := range pr.Y {
-			r := y - fv[i]
-			if pr.W != nil {
-				sum += pr.W[i] * r * r
-			} else {
-				sum += r * r
-			}
-		}
-		return sum
-	}
-	// normal builds a = JᵀWJ and g = JᵀW r over the free parameters.
-	var jfBuf [16]float64
-	jf := jfBuf[:0]
-	if k > len(jfBuf) {
-		jf = make([]float64, 0, k)
-	}
-	jf = jf[:k]
-	normal := func() {
-		clear(a)
-		clear(g)
-		if k == 3 {
-			normal3(pr, f, jac, np, idx, a, g)
-			return
-		}
-		for i := 0; i < n; i++ {
-			w := 1.0
-			if pr.W != nil {
-				w = pr.W[i]
-			}
-			r := pr.Y[i] - f[i]
-			row := jac[i*np : (i+1)*np]
-			for aa, ja := range idx {
-				jf[aa] = row[ja]
-			}
-			for aa, ja := range jf {
-				wj := w * ja
-				g[aa] += wj * r
-				arow := a[aa*k : aa*k+aa+1]
-				for bb := range arow {
-					arow[bb] += wj * jf[bb]
-				}
-			}
-		}
-		for aa := 0; aa < k; aa++ {
-			for bb := 0; bb < aa; bb++ {
-				a[bb*k+aa] = a[aa*k+bb]
-			}
-		}
-	}
-
 	sol := &Solution{Stuck: -1}
-	pr.Func(p, f, jac)
-	if !allFinite(f) || !allFinite(jac) {
+	pr.Func(p, st.f, st.jac)
+	if !allFinite(st.f) || !allFinite(st.jac) {
 		return nil, fmt.Errorf("%w: the model cannot be evaluated at the starting values", ErrNoAnswer)
 	}
-	cur := rss(f)
-	lambda := 0.0
+	for i, y := range pr.Y {
+		st.ynorm += st.w(i) * y * y
+	}
+	st.ynorm = math.Sqrt(st.ynorm)
+	cur := st.rss(st.f)
+	lambda := lambda0
+	status := NotTerminated
 	reason := ""
-	converged := false
+	fresh := false // a and g belong to p
 	iter := 1
 	for ; iter <= set.MaxIter; iter++ {
-		normal()
-		if !allFinite(a) || !allFinite(g) {
-			reason = "the Jacobian is not finite at the current parameters"
+		st.normal(idx)
+		fresh = true
+		if !allFinite(st.a) || !allFinite(st.g) {
+			status, reason = NotFinite, "the Jacobian is not finite at the current parameters"
 			break
 		}
-		// Moré's scaling: d_j = max over iterations of the column norm.
-		var gmax float64
-		for aa := 0; aa < k; aa++ {
-			cn := math.Sqrt(a[aa*k+aa])
-			if cn > diag[aa] {
-				diag[aa] = cn
-			}
-			if cn > 0 && cur > 0 {
-				gmax = math.Max(gmax, math.Abs(g[aa])/(cn*math.Sqrt(cur)))
-			}
-		}
-		if gmax <= set.GTol {
-			converged, reason = true, "gradient vanished"
+		st.scale()
+		if st.certify(cur, lambda, set) {
+			status = Certified
 			break
-		}
-		if lambda == 0 {
-			var m float64
-			for aa := 0; aa < k; aa++ {
-				m = math.Max(m, a[aa*k+aa])
-			}
-			lambda = 1e-3 * m
-			if lambda == 0 {
-				lambda = 1e-3
-			}
 		}
 		// Inner loop: raise λ until the step reduces S.
-		stepped := false
+		floorS := st.roundS(cur)
+		accepted := false
 		for tries := 0; tries < 60; tries++ {
-			for aa := 0; aa < k; aa++ {
-				for bb := 0; bb < k; bb++ {
-					chol[aa*k+bb] = a[aa*k+bb]
-				}
-				d := diag[aa]
-				if d == 0 {
-					d = 1
-				}
-				chol[aa*k+aa] += lambda * d * d
-			}
-			if !cholSolve(chol, g, delta, k) {
+			if !st.step(lambda, st.fac, st.delta) {
 				lambda *= 10
 				continue
 			}
-			if tries == 0 && gaussNewtonLike(a, diag, lambda, k) {
-				// With negligible damping the quadratic model is the
-				// Gauss–Newton one: when even its full step would reduce S
-				// by less than FTol relatively, S is at its minimum to
-				// working precision and the trial evaluation is not needed.
-				if predicted(a, g, delta, k) <= set.FTol*cur {
-					converged, reason = true, "predicted reduction of the residual sum below tolerance"
-					break
-				}
-			}
+			pred := predicted(st.a, st.g, st.delta, k)
 			copy(trial, p)
 			for aa, ja := range idx {
-				trial[ja] += delta[aa]
+				trial[ja] += st.delta[aa]
 			}
-			pr.Func(trial, ftr, jtr)
-			next := rss(ftr) // NaN or Inf when any value is not finite
+			pr.Func(trial, st.ftr, st.jtr)
+			next := st.rss(st.ftr) // NaN or Inf when any value is not finite
 			if !finite(next) {
 				next = math.Inf(1)
 			}
-			pred := predicted(a, g, delta, k)
-			var dx, xn float64
-			for aa, ja := range idx {
-				d := diag[aa]
-				if d == 0 {
-					d = 1
-				}
-				dx += (d * delta[aa]) * (d * delta[aa])
-				xn += (d * p[ja]) * (d * p[ja])
-			}
-			dx, xn = math.Sqrt(dx), math.Sqrt(xn)
-			if next < cur {
-				actRel := (cur - next) / math.Max(cur, tiny)
-				predRel := pred / math.Max(cur, tiny)
+			polish := lambda <= lambda0 && pred <= floorS && next <= cur+floorS
+			if next < cur || polish {
 				rho := (cur - next) / math.Max(pred, tiny)
 				copy(p, trial)
-				f, ftr = ftr, f
-				jac, jtr = jtr, jac
+				st.f, st.ftr = st.ftr, st.f
+				st.jac, st.jtr = st.jtr, st.jac
 				cur = next
-				if rho > 0.75 {
-					lambda = math.Max(lambda/3, 1e-300)
-				} else if rho < 0.25 {
-					lambda *= 2
+				if !polish {
+					if rho > 0.75 {
+						lambda = math.Max(lambda/3, 1e-300)
+					} else if rho < 0.25 {
+						lambda *= 2
+					}
 				}
-				stepped = true
-				if actRel <= set.FTol && predRel <= set.FTol {
-					converged, reason = true, "relative reduction of the residual sum below tolerance"
-				} else if dx <= set.XTol*math.Max(xn, tiny) {
-					converged, reason = true, "relative step below tolerance"
-				}
+				accepted = true
 				break
 			}
-			if dx <= set.XTol*math.Max(xn, tiny) || pred <= set.FTol*cur*1e-2 {
-				// No further descent possible at machine precision.
-				converged, reason = true, "no further reduction possible at machine precision"
+			if pred <= floorS {
+				// The damped step predicts no change S could resolve.
 				break
 			}
 			lambda *= 4
 		}
-		if converged {
+		if !accepted {
+			if st.certify(cur, lambda0, set) {
+				status = Certified
+			} else {
+				status = NoDescent
+			}
 			break
 		}
-		if !stepped {
-			reason = "the damped step could not reduce the residual sum"
-			break
-		}
+		fresh = false
 	}
-	if iter > set.MaxIter {
+	if status == NotTerminated {
+		// The last accepted point has not been tested yet.
 		iter = set.MaxIter
-		reason = fmt.Sprintf("iteration limit (%d) reached", set.MaxIter)
+		st.normal(idx)
+		fresh = true
+		st.scale()
+		if allFinite(st.a) && allFinite(st.g) && st.certify(cur, lambda, set) {
+			status = Certified
+		} else {
+			status = IterationLimit
+		}
 	}
-	normal()
+	if !fresh {
+		st.normal(idx)
+	}
+	if status != Certified && status != NotFinite {
+		st.scale()
+		st.test(cur, lambda0, set, true) // the certificate's numbers for the message
+	}
+	switch status {
+	case Certified:
+		reason = "first-order certificate: scaled gradient and predicted relative reduction below tolerance"
+	case IterationLimit:
+		reason = fmt.Sprintf("iteration limit (%d) reached without a first-order certificate (largest scaled gradient %.2g, predicted relative reduction %.2g)", set.MaxIter, st.gmax, st.predRel)
+	case NoDescent:
+		reason = fmt.Sprintf("no damped step reduces the residual sum, but the first-order certificate does not hold (largest scaled gradient %.2g, predicted relative reduction %.2g): the point is not proven to be a minimum", st.gmax, st.predRel)
+	}
 	// The solution keeps the workspace it was computed in: no copies.
-	sol.P, sol.F, sol.Jac, sol.JTJ = p, f, jac, a
+	sol.P, sol.F, sol.Jac, sol.JTJ = p, st.f, st.jac, st.a
 	*bp = whole
 	sol.work = bp
 	sol.RSS = cur
 	sol.Iterations = iter
-	sol.Converged = converged
-	sol.Reason = reason
-	if converged {
-		// A free parameter whose whole-size change moves the model by a
-		// negligible amount has run off to an asymptote (BoxBOD from its
+	sol.FirstOrder = status == Certified
+	sol.Gradient, sol.Predicted = st.gmax, st.predRel
+	if status == Certified || status == NoDescent {
+		// A free parameter whose whole-size change (at least 1 in its
+		// internal unit) moves the model by a negligible amount against the
+		// spread of the data has run off to an asymptote (BoxBOD from its
 		// first NIST start is the classic case): not a minimum.
-		var yn float64
-		for _, y := range pr.Y {
-			yn += y * y
-		}
-		yn = math.Sqrt(yn) + math.Sqrt(cur)
+		ref := 1e-9 * (math.Sqrt(st.spread()) + math.Sqrt(cur))
 		for aa, ja := range idx {
-			if math.Sqrt(a[aa*k+aa]/wmax(pr.W))*math.Max(math.Abs(p[ja]), 1) < 1e-9*yn {
-				sol.Converged = false
+			if math.Sqrt(st.a[aa*k+aa])*math.Max(math.Abs(p[ja]), 1) < ref {
+				status = Asymptote
 				sol.Stuck = ja
-				sol.Reason = fmt.Sprintf("parameter %d has no effect on the model at the final point (it ran off towards an asymptote)", ja+1)
-				return sol, nil
+				reason = fmt.Sprintf("parameter %d has no effect on the model at the final point (it ran off towards an asymptote)", ja+1)
+				break
 			}
 		}
-		sol.Cond = scaledCond(a, k)
+	}
+	if status == Certified {
+		sol.Cond = scaledCond(st.a, k)
 		if c := sol.Cond; !(c <= set.CondMax) {
-			sol.Converged = false
-			sol.Unidentified = true
-			sol.Reason = fmt.Sprintf("the free parameters are not identified by the data (condition number of the scaled JᵀWJ %.2g)", c)
+			status = Unidentified
+			reason = fmt.Sprintf("the free parameters are not identified by the data (condition number of the scaled JᵀWJ %.2g)", c)
 		}
 	}
+	sol.Status, sol.Converged, sol.Reason = status, status.Converged(), reason
 	return sol, nil
+}
+
+// lmState holds the working arrays of one Solve.
+type lmState struct {
+	pr        Problem
+	n, np, k  int
+	f, ftr    []float64
+	jac, jtr  []float64
+	a         []float64 // JᵀWJ over the free parameters
+	fac, fac2 []float64 // Cholesky factors of damped systems
+	g         []float64 // JᵀW r
+	diag      []float64 // Moré's dⱼ: running maximum of the column norms
+	delta     []float64 // the trial step
+	u, v      []float64 // scratch for the certificate
+	ynorm     float64   // ‖y‖_W, for the rounding level of the residuals
+	jf        [16]float64
+
+	gmax, predRel float64 // the certificate's numbers at the last test
+}
+
+func (st *lmState) w(i int) float64 {
+	if st.pr.W == nil {
+		return 1
+	}
+	return st.pr.W[i]
+}
+
+func (st *lmState) rss(fv []float64) float64 {
+	var sum float64
+	y, w := st.pr.Y, st.pr.W
+	if w == nil {
+		for i, yi := range y {
+			r := yi - fv[i]
+			sum += r * r
+		}
+		return sum
+	}
+	for i, yi := range y {
+		r := yi - fv[i]
+		sum += w[i] * r * r
+	}
+	return sum
+}
+
+// spread is the weighted sum of squares of the data about their weighted
+// mean: the scale of the data free of any offset.
+func (st *lmState) spread() float64 {
+	var sw, swy float64
+	for i, y := range st.pr.Y {
+		sw += st.w(i)
+		swy += st.w(i) * y
+	}
+	m := swy / sw
+	var ss float64
+	for i, y := range st.pr.Y {
+		ss += st.w(i) * (y - m) * (y - m)
+	}
+	return ss
+}
+
+// roundS is the change of S that rounding in the residuals can make:
+// each residual is uncertain by a few ε of the value, so S by about
+// 2√S·8ε(‖y‖ + √S), plus the rounding of the sum itself.
+func (st *lmState) roundS(cur float64) float64 {
+	sq := math.Sqrt(cur)
+	return 2*sq*st.resRound(cur) + float64(st.n)*eps*cur
+}
+
+// resRound is the rounding level of the residual vector, 8ε(‖y‖_W + √S).
+func (st *lmState) resRound(cur float64) float64 {
+	return 8 * eps * (st.ynorm + math.Sqrt(cur))
+}
+
+const eps = 0x1p-52
+
+// normal builds a = JᵀWJ and g = JᵀW r over the free parameters idx at
+// the current point (f, jac).
+func (st *lmState) normal(idx []int) {
+	a, g, k := st.a, st.g, st.k
+	clear(a)
+	clear(g)
+	if k == 3 {
+		normal3(st.pr, st.f, st.jac, st.np, idx, a, g)
+		return
+	}
+	jf := st.jf[:0]
+	if k > len(st.jf) {
+		jf = make([]float64, 0, k)
+	}
+	jf = jf[:k]
+	for i := 0; i < st.n; i++ {
+		w := st.w(i)
+		r := st.pr.Y[i] - st.f[i]
+		row := st.jac[i*st.np : (i+1)*st.np]
+		for aa, ja := range idx {
+			jf[aa] = row[ja]
+		}
+		for aa, ja := range jf {
+			wj := w * ja
+			g[aa] += wj * r
+			arow := a[aa*k : aa*k+aa+1]
+			for bb := range arow {
+				arow[bb] += wj * jf[bb]
+			}
+		}
+	}
+	for aa := 0; aa < k; aa++ {
+		for bb := 0; bb < aa; bb++ {
+			a[bb*k+aa] = a[aa*k+bb]
+		}
+	}
+}
+
+// scale updates Moré's dⱼ, the running maximum of the column norms.
+func (st *lmState) scale() {
+	for aa := 0; aa < st.k; aa++ {
+		if cn := math.Sqrt(st.a[aa*st.k+aa]); cn > st.diag[aa] {
+			st.diag[aa] = cn
+		}
+	}
+}
+
+// step solves (JᵀWJ + λD²) x = g, leaving the Cholesky factor in fac. It
+// reports false when the damped matrix is not numerically positive definite.
+func (st *lmState) step(lambda float64, fac, x []float64) bool {
+	k := st.k
+	copy(fac, st.a)
+	for aa := 0; aa < k; aa++ {
+		d := st.diag[aa]
+		if d == 0 {
+			d = 1 // a column that was zero all along: g is zero there too
+		}
+		fac[aa*k+aa] += lambda * d * d
+	}
+	if !cholesky(fac, k, 0) {
+		return false
+	}
+	cholSubst(fac, st.g, x, k)
+	return true
+}
+
+// certify tests the first-order certificate at the current point (a, g
+// and S = cur belong to it), for the step damped by min(λ, λ0), and
+// records its two numbers. Both tolerances are raised to what rounding in
+// the residuals allows: each gⱼ is uncertain by up to dⱼ·ρ, ρ the rounding
+// level of the residual vector, so the scaled gradient by ρ/√S and the
+// predicted reduction by uᵀ(JᵀWJ + λD²)⁻¹u with uⱼ = dⱼρ.
+func (st *lmState) certify(cur, lambda float64, set Settings) bool {
+	return st.test(cur, lambda, set, false)
+}
+
+// test is certify; with full it computes the predicted reduction even when
+// the gradient already fails (for the message of a failed solve).
+func (st *lmState) test(cur, lambda float64, set Settings, full bool) bool {
+	k := st.k
+	sq := math.Sqrt(math.Max(cur, tiny))
+	rho := st.resRound(cur)
+	st.gmax = 0
+	for aa := 0; aa < k; aa++ {
+		if d := st.diag[aa]; d > 0 {
+			st.gmax = math.Max(st.gmax, math.Abs(st.g[aa])/(d*sq))
+		}
+	}
+	st.predRel = math.NaN()
+	gok := st.gmax <= math.Max(set.GTol, rho/sq)
+	if !gok && !full {
+		return false
+	}
+	lc := math.Min(lambda, lambda0)
+	for !st.step(lc, st.fac2, st.v) {
+		lc *= 10
+		if lc > 1e300 {
+			return false
+		}
+	}
+	pred := predicted(st.a, st.g, st.v, k)
+	for aa := 0; aa < k; aa++ {
+		d := st.diag[aa]
+		if d == 0 {
+			d = 1
+		}
+		st.u[aa] = d * rho
+	}
+	cholSubst(st.fac2, st.u, st.v, k)
+	var noise float64
+	for aa := 0; aa < k; aa++ {
+		noise += st.u[aa] * st.v[aa]
+	}
+	st.predRel = math.Max(pred, 0) / math.Max(cur, tiny)
+	return gok && pred <= set.FTol*cur+noise
 }
 
 const tiny = 1e-300
@@ -423,35 +578,6 @@ func predicted(a, g, delta []float64, k int) float64 {
 		pred += delta[aa] * (2*g[aa] - ad)
 	}
 	return pred
-}
-
-// gaussNewtonLike reports whether the damping λ·d² is below 1 % of every
-// diagonal element of JᵀWJ: the damped step then predicts nearly the same
-// reduction as the Gauss–Newton step.
-func gaussNewtonLike(a, diag []float64, lambda float64, k int) bool {
-	for j := 0; j < k; j++ {
-		d := diag[j]
-		if d == 0 {
-			d = 1
-		}
-		if lambda*d*d > 1e-2*a[j*k+j] {
-			return false
-		}
-	}
-	return true
-}
-
-// wmax returns the largest weight (1 when unweighted), used to put JᵀWJ back
-// on the scale of the observations.
-func wmax(w []float64) float64 {
-	m := 0.0
-	for _, v := range w {
-		m = math.Max(m, v)
-	}
-	if w == nil || m == 0 {
-		return 1
-	}
-	return m
 }
 
 func allFinite(v []float64) bool {
