@@ -49,8 +49,34 @@ func massTransferShape(u, a float64) (g, gu, ga float64) {
 	// d erfc/du = −(2/√π)e^{−u²}; d(e^{−u²})/du = −2u e^{−u²};
 	// d erfcx/da = 2a·erfcx(a) − 2/√π.
 	gu = -(2/math.SqrtPi)*eu + 2*u*eu*ex
-	ga = -eu * (2*a*ex - 2/math.SqrtPi)
+	ga = -eu * erfcxDeriv(a, ex)
 	return g, gu, ga
+}
+
+// erfcxDeriv returns d erfcx/da = 2a·erfcx(a) − 2/√π given ex = erfcx(a).
+// For large a the two terms cancel to O(1/a²) (a fast surface reaction,
+// h√(Dt) ≫ 1, where the β column of the Jacobian lives on this
+// difference), so from a = 20 on it is summed from the asymptotic series
+// of erfcx (Abramowitz & Stegun 1964, eq. 7.1.23, from memory) with the
+// leading term removed:
+//
+//	2a·erfcx(a) − 2/√π = (2/√π)·Σₘ≥₁ (−1)ᵐ (2m−1)!!/(2a²)ᵐ,
+//
+// whose terms fall below 1e-17 of the sum within ten terms there.
+func erfcxDeriv(a, ex float64) float64 {
+	if a < 20 {
+		return 2*a*ex - 2/math.SqrtPi
+	}
+	z := 1 / (2 * a * a)
+	term, sum := 1.0, 0.0
+	for m := 1; m <= 30; m++ {
+		term *= -float64(2*m-1) * z
+		sum += term
+		if math.Abs(term) < 1e-17*math.Abs(sum) {
+			break
+		}
+	}
+	return 2 / math.SqrtPi * sum
 }
 
 // Eval implements Model. With u = x/(2√(Dt)) ∝ D^{-1/2} and

@@ -257,9 +257,17 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 		if !accepted {
 			if st.certify(cur, lambda0, set) {
 				status = Certified
-			} else {
-				status = NoDescent
+				break
 			}
+			// A parameter running off towards an asymptote makes the
+			// quadratic model useless along it: move it on directly.
+			if next, moved := st.push(p, trial, idx, cur); moved {
+				cur = next
+				lambda = lambda0
+				fresh = false
+				continue
+			}
+			status = NoDescent
 			break
 		}
 		fresh = false
@@ -462,6 +470,39 @@ func (st *lmState) step(lambda float64, fac, x []float64) bool {
 	}
 	cholSubst(fac, st.g, x, k)
 	return true
+}
+
+// push moves each free parameter whose Jacobian column has decayed below
+// 1e-3 of the largest norm it had (it runs off towards an asymptote, where
+// the quadratic model of S is useless along it) further in the descent
+// direction, by max(|pⱼ|, 1) and then doubling, as long as S does not
+// rise above its rounding level, at most 12 times. It reports whether any
+// parameter moved and the new S; p, f and jac follow the move.
+func (st *lmState) push(p, trial []float64, idx []int, cur float64) (float64, bool) {
+	moved := false
+	for aa, ja := range idx {
+		c := math.Sqrt(st.a[aa*st.k+aa])
+		if !(c < 1e-3*st.diag[aa]) || st.g[aa] == 0 {
+			continue
+		}
+		dir := math.Copysign(1, st.g[aa]) // ∂S/∂pⱼ = −2gⱼ
+		step := math.Max(math.Abs(p[ja]), 1)
+		for m := 0; m < 12; m++ {
+			copy(trial, p)
+			trial[ja] += dir * step
+			st.pr.Func(trial, st.ftr, st.jtr)
+			next := st.rss(st.ftr)
+			if !(next <= cur+st.roundS(cur)) || !allFinite(st.jtr) {
+				break
+			}
+			copy(p, trial)
+			st.f, st.ftr = st.ftr, st.f
+			st.jac, st.jtr = st.jtr, st.jac
+			cur, moved = next, true
+			step *= 2
+		}
+	}
+	return cur, moved
 }
 
 // certify tests the first-order certificate at the current point (a, g
