@@ -93,6 +93,11 @@ func solveRobust(m Model, d *Data, p0 []float64, free []bool, s *Settings) (*rob
 		}
 	}
 	if !anyConverged(sols) {
+		if v := valleyWalk(pr, params, free, lowest(sols), s); v != nil {
+			add(v, "a walk along the valley from the lowest end point")
+		}
+	}
+	if !anyConverged(sols) {
 		low := lowest(sols)
 		for i, from := range [][]float64{p0, low} {
 			if from == nil {
@@ -238,6 +243,82 @@ func levelsFromData(pr Problem, params []Param, free []bool, start []float64, s 
 	out := append([]float64(nil), sol.P...)
 	sol.release()
 	return out, true
+}
+
+// valleyWalk follows a valley of S that runs off towards an asymptote
+// with the levels compensating (D → ∞ with C0 → −∞ when the base level is
+// not reached, β → ∞ when the surface is at Cp): D (or the first free
+// log-scale parameter) is moved on by 1, 2, 4, … in ln units, in whichever
+// direction lowers S, with the levels re-derived from the data by least
+// squares at each point, while S keeps falling (at most 8 doublings); the
+// solver then starts from the last point. Far along such a valley S is
+// flat to working precision and the solver can certify the point (as
+// Unidentified or Asymptote when the parameters are not separately
+// determined there), which gives the infimum of S over the closure of the
+// model. nil when there is no such valley.
+func valleyWalk(pr Problem, params []Param, free []bool, from []float64, s *Settings) *Solution {
+	jd := dIndex(params, free)
+	if jd < 0 || from == nil {
+		return nil
+	}
+	cur, ok := levelsAt(pr, params, free, from, s)
+	if !ok {
+		return nil
+	}
+	curS := rssAt(pr, cur)
+	var best []float64
+	for _, dir := range []float64{1, -1} {
+		p, sp := cur, curS
+		for m := 0; m < 8; m++ {
+			q := append([]float64(nil), p...)
+			q[jd] += dir * math.Ldexp(1, m)
+			lv, ok := levelsAt(pr, params, free, q, s)
+			if !ok {
+				break
+			}
+			sq := rssAt(pr, lv)
+			if !(sq < sp) {
+				break
+			}
+			p, sp = lv, sq
+		}
+		if sp < curS {
+			best, curS = p, sp
+		}
+	}
+	if best == nil {
+		return nil
+	}
+	sol, err := Solve(pr, best, s)
+	if err != nil {
+		return nil
+	}
+	return sol
+}
+
+// levelsAt is levelsFromData, or the point itself when the model has no
+// free level.
+func levelsAt(pr Problem, params []Param, free []bool, p []float64, s *Settings) ([]float64, bool) {
+	if lv, ok := levelsFromData(pr, params, free, p, s); ok {
+		return lv, true
+	}
+	for j, pa := range params {
+		if free[j] && !pa.Log && pa.Unit == "value" {
+			return nil, false // levels exist but could not be solved
+		}
+	}
+	return p, true
+}
+
+// rssAt evaluates S at p (+Inf when the model is not finite there).
+func rssAt(pr Problem, p []float64) float64 {
+	f := make([]float64, len(pr.Y))
+	pr.Func(p, f, nil)
+	st := lmState{pr: pr, n: len(pr.Y)}
+	if v := st.rss(f); finite(v) {
+		return v
+	}
+	return math.Inf(1)
 }
 
 // simplex minimises S by the Nelder–Mead method of gonum/optimize from
