@@ -206,7 +206,8 @@ func fitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 		return nil, err
 	}
 	sol := rb.Sol
-	if !sol.Converged {
+	limit := atLimit(m.Params(), sol, p0)
+	if !sol.Converged && limit < 0 {
 		return nil, fmt.Errorf("%w: the %s fit did not converge: %s. Try fixing a parameter (--fix), adding deeper or shallower points, or another model", ErrNoAnswer, m.Name(), failureReason(m, sol, free, p0))
 	}
 	r := &Result{
@@ -214,6 +215,7 @@ func fitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 		ValueUnit: p.ValueUnit, Converged: true, Time: p.Time, Temperature: p.Temperature,
 		TemperatureSigma: p.TemperatureSigma, Thickness: d.Thickness, Meta: p.Meta,
 		model: m, data: d, pint: append([]float64(nil), sol.P...), free: free,
+		lim: limit + 1, p0: p0,
 	}
 	err = r.finish(sol, o)
 	sol.release() // the result keeps copies, not the solver's workspace

@@ -144,6 +144,12 @@ func (MassTransfer) Diagnose(r *Result) {
 	}
 	hs := b.Value * r.data.Time / math.Sqrt(D.Value*r.data.Time)
 	switch {
+	case math.IsInf(b.Value, 1):
+		bound := "the data give no lower bound either"
+		if finite(b.CI.Lo) {
+			bound = fmt.Sprintf("the data only bound it from below, beta > %.3g %s", b.CI.Lo, b.Unit)
+		}
+		r.Warn("surface-fast", "The best fit has beta → ∞: the surface is held at Cp throughout and the profile is the constant-surface erf model (the nested limit of this model), so beta has no value (%s). D, Cp and C0 are those of the limit; prefer --model erf.", bound)
 	case hs > 20:
 		r.Warn("surface-fast", "The surface reaction is fast (β√t/√D = %.3g > 20): the surface is practically at Cp and the profile cannot be told from the constant-surface erf model, so β is poorly determined. Prefer --model erf.", hs)
 	case hs < 0.2:

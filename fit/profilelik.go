@@ -39,8 +39,15 @@ func (r *Result) profileIntervals(o Options) error {
 		se := math.Sqrt(r.cov[fi][fi])
 		fi++
 		pf := newProfiler(r, j, o.Settings)
-		lo, whyLo := pf.bound(-1, se, q, s)
-		hi, whyHi := pf.bound(+1, se, q, s)
+		var lo, hi float64
+		var whyLo, whyHi openEnd
+		if j == r.limit() {
+			lo, whyLo = pf.limitBound(q, s)
+			hi, whyHi = math.NaN(), openEnd{open: true}
+		} else {
+			lo, whyLo = pf.bound(-1, se, q, s)
+			hi, whyHi = pf.bound(+1, se, q, s)
+		}
 		if params[j].Log {
 			lo, hi = math.Exp(lo), math.Exp(hi)
 		}
@@ -116,6 +123,8 @@ type profiler struct {
 	// one starts from the solution at the nearest θ already evaluated, which
 	// keeps the re-optimisation on the profile trace.
 	done []tracePoint
+	// last is the latest refit, whether kept on the trace or not.
+	last tracePoint
 	// model is the model's own start from the data (nil until needed).
 	model []float64
 	// failed is the status of the last refit that could not be certified.
@@ -316,7 +325,13 @@ func (pf *profiler) tau(theta, s float64) (float64, bool) {
 	if !ok {
 		return 0, false
 	}
-	pf.done = append(pf.done, tracePoint{theta, append([]float64(nil), sol.P...), sol.RSS})
+	// A refit in which some parameter ran off (other than one already at
+	// its limit in the fit) is a valid profile value but a poor start for
+	// its neighbours: it is not kept on the trace.
+	pf.last = tracePoint{theta, append([]float64(nil), sol.P...), sol.RSS}
+	if sol.Status != Asymptote || (sol.Stuck == pf.r.limit() && sol.Stuck >= 0) {
+		pf.done = append(pf.done, pf.last)
+	}
 	ds := sol.RSS - pf.best
 	sol.release()
 	if ds < 0 {
@@ -354,14 +369,12 @@ func (pf *profiler) bound(dir, se, q, s float64) (float64, openEnd) {
 			}
 			// The crossing holds only if no other start gives a lower
 			// minimum at the bound; otherwise search on, thoroughly.
-			last := pf.done[len(pf.done)-1]
-			if last.theta != c {
+			if pf.last.theta != c {
 				if _, ok := pf.tau(c, s); !ok {
 					return math.NaN(), openEnd{open: true, uncertified: true, theta: c, status: pf.failed}
 				}
-				last = pf.done[len(pf.done)-1]
 			}
-			if _, lower := pf.lower(last.p, last.rss, last.theta); !lower {
+			if _, lower := pf.lower(pf.last.p, pf.last.rss, c); !lower {
 				return c, why
 			}
 			pf.thorough = true
@@ -388,6 +401,44 @@ func (pf *profiler) bound(dir, se, q, s float64) (float64, openEnd) {
 		}
 		step *= 1.6
 	}
+}
+
+// limitBound finds the lower bound of a parameter at its limit (+∞, see
+// atLimit), where τ is flat: θ is lowered from the estimate by 1, 2, 4, …
+// (ln units) until τ crosses −q, the bracket is halved down to a width of
+// 1, and the crossing refined as for the other bounds.
+func (pf *profiler) limitBound(q, s float64) (float64, openEnd) {
+	pf.thorough = true // a rare path: every refit checks other starts
+	theta0 := pf.r.pint[pf.j]
+	target := -q
+	aTh, aF := theta0, q
+	for m := 0; m < 14; m++ {
+		th := theta0 - math.Ldexp(1, m)
+		t, ok := pf.tau(th, s)
+		if !ok {
+			return math.NaN(), openEnd{open: true, uncertified: true, theta: th, status: pf.failed}
+		}
+		f := t - target
+		if f*aF > 0 {
+			aTh, aF = th, f
+			continue
+		}
+		b, fb := th, f
+		for aTh-b > 1 {
+			c := (aTh + b) / 2
+			t, ok := pf.tau(c, s)
+			if !ok {
+				return math.NaN(), openEnd{open: true, uncertified: true, theta: c, status: pf.failed}
+			}
+			if fc := t - target; fc*aF > 0 {
+				aTh, aF = c, fc
+			} else {
+				b, fb = c, fc
+			}
+		}
+		return pf.refine(aTh, aF, b, fb, target, s, 1)
+	}
+	return math.NaN(), openEnd{open: true}
 }
 
 func (pf *profiler) refine(a, fa, b, fb, target, s, se float64) (float64, openEnd) {

@@ -21,8 +21,9 @@ type optimum struct {
 
 // robust is the outcome of solveRobust.
 type robust struct {
-	// Sol is the best certified solution, or the solution from the
-	// model's start when no start gives one.
+	// Sol is the best certified solution (or one at the limit of the
+	// model, see atLimit), or the solution from the model's start when no
+	// start gives one.
 	Sol *Solution
 	// Optima lists the distinct certified optima found, lowest RSS first
 	// (Sol is the first); more than one means the starts disagree.
@@ -61,6 +62,7 @@ func solveRobust(m Model, d *Data, p0 []float64, free []bool, s *Settings) (*rob
 		return &robust{Sol: first}, nil
 	}
 	params := m.Params()
+	usable := func(sol *Solution) bool { return sol.Converged || atLimit(params, sol, p0) >= 0 }
 	jd := dIndex(params, free)
 	out := &robust{Searched: true}
 	var sols []*Solution
@@ -92,12 +94,12 @@ func solveRobust(m Model, d *Data, p0 []float64, free []bool, s *Settings) (*rob
 			}
 		}
 	}
-	if !anyConverged(sols) {
+	if !anyUsable(sols, usable) {
 		if v := valleyWalk(pr, params, free, lowest(sols), s); v != nil {
 			add(v, "a walk along the valley from the lowest end point")
 		}
 	}
-	if !anyConverged(sols) {
+	if !anyUsable(sols, usable) {
 		low := lowest(sols)
 		for i, from := range [][]float64{p0, low} {
 			if from == nil {
@@ -116,7 +118,7 @@ func solveRobust(m Model, d *Data, p0 []float64, free []bool, s *Settings) (*rob
 		order[i] = i
 	}
 	sort.SliceStable(order, func(a, b int) bool {
-		ca, cb := sols[order[a]].Converged, sols[order[b]].Converged
+		ca, cb := usable(sols[order[a]]), usable(sols[order[b]])
 		if ca != cb {
 			return ca
 		}
@@ -129,13 +131,13 @@ func solveRobust(m Model, d *Data, p0 []float64, free []bool, s *Settings) (*rob
 		return math.Exp(sol.P[jd])
 	}
 	best := sols[order[0]]
-	if !best.Converged {
+	if !usable(best) {
 		best = first
 	}
 	out.Sol = best
 	for _, i := range order {
 		sol := sols[i]
-		if !sol.Converged {
+		if !usable(sol) {
 			break
 		}
 		o := optimum{D: dOf(sol), RSS: sol.RSS, Status: sol.Status, Start: labels[i]}
@@ -150,9 +152,9 @@ func solveRobust(m Model, d *Data, p0 []float64, free []bool, s *Settings) (*rob
 			out.Optima = append(out.Optima, o)
 		}
 	}
-	if best.Converged {
+	if usable(best) {
 		for i, sol := range sols {
-			if !sol.Converged && sol.RSS < best.RSS*(1-1e-6) {
+			if !usable(sol) && sol.RSS < best.RSS*(1-1e-6) {
 				if out.Lower == nil || sol.RSS < out.Lower.RSS {
 					out.Lower = &optimum{D: dOf(sol), RSS: sol.RSS, Status: sol.Status, Start: labels[i]}
 				}
@@ -179,13 +181,32 @@ func sameOptimum(a, b optimum) bool {
 	return true
 }
 
-func anyConverged(sols []*Solution) bool {
+func anyUsable(sols []*Solution, usable func(*Solution) bool) bool {
 	for _, s := range sols {
-		if s.Converged {
+		if usable(s) {
 			return true
 		}
 	}
 	return false
+}
+
+// atLimit returns the index of the free parameter at which sol sits at
+// the limit of the model, or −1. That is a point with the first-order
+// certificate (Status Asymptote) where the parameter that no longer
+// changes the curve is a log-scale one other than D that ran off upwards
+// from the start p0: masstransfer's β → ∞, where the surface is held at
+// Cp and the model is the constant-surface erf (the nested pair). The fit
+// is then the limit model, the parameter only bounded from below. Any
+// other run-off (D itself, a level, a parameter falling to 0) is no answer.
+func atLimit(params []Param, sol *Solution, p0 []float64) int {
+	j := sol.Stuck
+	if sol.Status != Asymptote || !sol.FirstOrder || j < 0 || j >= len(params) {
+		return -1
+	}
+	if pa := params[j]; !pa.Log || pa.Name == "D" || !(sol.P[j] > p0[j]) {
+		return -1
+	}
+	return j
 }
 
 // lowest returns a copy of the parameters of the end point with the least

@@ -210,6 +210,16 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 		}
 		st.scale()
 		if st.certify(cur, lambda, set) {
+			// A parameter whose column has all but vanished may be
+			// certified only because it has: move it on towards its
+			// asymptote while S allows, so that every such run-off ends as
+			// Asymptote, not at an arbitrary point of the plateau.
+			if next, moved := st.push(p, trial, idx, cur); moved {
+				cur = next
+				lambda = lambda0
+				fresh = false
+				continue
+			}
 			status = Certified
 			break
 		}
@@ -312,7 +322,7 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 		// internal unit) moves the model by a negligible amount against the
 		// spread of the data has run off to an asymptote (BoxBOD from its
 		// first NIST start is the classic case): not a minimum.
-		ref := 1e-9 * (math.Sqrt(st.spread()) + math.Sqrt(cur))
+		ref := st.stuckRef(cur)
 		for aa, ja := range idx {
 			if math.Sqrt(st.a[aa*k+aa])*math.Max(math.Abs(p[ja]), 1) < ref {
 				status = Asymptote
@@ -346,6 +356,7 @@ type lmState struct {
 	delta     []float64 // the trial step
 	u, v      []float64 // scratch for the certificate
 	ynorm     float64   // ‖y‖_W, for the rounding level of the residuals
+	spreadv   float64   // √(spread), computed when first needed
 	jf        [16]float64
 
 	gmax, predRel float64 // the certificate's numbers at the last test
@@ -373,6 +384,16 @@ func (st *lmState) rss(fv []float64) float64 {
 		sum += w[i] * r * r
 	}
 	return sum
+}
+
+// stuckRef is the effect below which a whole-size change of a parameter
+// (at least 1 in its internal unit) counts as no effect on the model:
+// 1e-9 of the spread of the data plus the residual norm.
+func (st *lmState) stuckRef(cur float64) float64 {
+	if st.spreadv == 0 {
+		st.spreadv = math.Sqrt(st.spread())
+	}
+	return 1e-9 * (st.spreadv + math.Sqrt(cur))
 }
 
 // spread is the weighted sum of squares of the data about their weighted
@@ -482,8 +503,8 @@ func (st *lmState) push(p, trial []float64, idx []int, cur float64) (float64, bo
 	moved := false
 	for aa, ja := range idx {
 		c := math.Sqrt(st.a[aa*st.k+aa])
-		if !(c < 1e-3*st.diag[aa]) || st.g[aa] == 0 {
-			continue
+		if !(c < 1e-3*st.diag[aa]) || st.g[aa] == 0 || c*math.Max(math.Abs(p[ja]), 1) < st.stuckRef(cur) {
+			continue // not decaying, or already without effect
 		}
 		dir := math.Copysign(1, st.g[aa]) // ∂S/∂pⱼ = −2gⱼ
 		step := math.Max(math.Abs(p[ja]), 1)
