@@ -184,7 +184,7 @@ func (pf *profiler) solveFrom(from []float64, theta float64) *Solution {
 // follow, and the certified one with the
 // least RSS is kept. ok is false when no start gives a certified refit.
 func (pf *profiler) constrained(theta float64) (*Solution, bool) {
-	if sol := pf.solveFrom(pf.nearest(theta), theta); sol != nil && sol.FirstOrder {
+	if sol := pf.solveFrom(pf.nearest(theta), theta); sol != nil && pf.certified(sol) {
 		if pf.thorough {
 			if v, ok := pf.lower(sol.P, sol.RSS, theta); ok {
 				sol.release()
@@ -209,12 +209,12 @@ func (pf *profiler) constrained(theta float64) (*Solution, bool) {
 	if lv, ok := levelsFromData(pf.pr, pf.r.model.Params(), pf.pr.Free, pf.start, pf.set); ok {
 		keep(pf.solveFrom(lv, theta))
 	}
-	if !anyFirstOrder(tried) {
+	if !pf.anyCertified(tried) {
 		if v := valleyWalk(pf.pr, pf.r.model.Params(), pf.pr.Free, lowest(tried), pf.set); v != nil {
 			keep(v)
 		}
 	}
-	if !anyFirstOrder(tried) {
+	if !pf.anyCertified(tried) {
 		if low := lowest(tried); low != nil {
 			if x, ok := simplex(pf.pr, low); ok {
 				keep(pf.solveFrom(x, theta))
@@ -223,7 +223,7 @@ func (pf *profiler) constrained(theta float64) (*Solution, bool) {
 	}
 	var best *Solution
 	for _, sol := range tried {
-		if sol.FirstOrder && (best == nil || sol.RSS < best.RSS) {
+		if pf.certified(sol) && (best == nil || sol.RSS < best.RSS) {
 			best = sol
 		}
 	}
@@ -238,13 +238,29 @@ func (pf *profiler) constrained(theta float64) (*Solution, bool) {
 	return best, best != nil
 }
 
-func anyFirstOrder(sols []*Solution) bool {
+func (pf *profiler) anyCertified(sols []*Solution) bool {
 	for _, s := range sols {
-		if s.FirstOrder {
+		if pf.certified(s) {
 			return true
 		}
 	}
 	return false
+}
+
+// certified tells whether a constrained refit gives a profile value: the
+// first-order certificate holds, and if a parameter ran off to an
+// asymptote it is a log-scale one, whose limit (0 or ∞) is a point of the
+// model's closure. A level or position without effect means the model
+// evaluation has broken down (e.g. an underflowed term), not a limit.
+func (pf *profiler) certified(sol *Solution) bool {
+	if sol == nil || !sol.FirstOrder {
+		return false
+	}
+	if sol.Status == Asymptote {
+		params := pf.r.model.Params()
+		return sol.Stuck >= 0 && sol.Stuck < len(params) && params[sol.Stuck].Log
+	}
+	return true
 }
 
 // lower returns a certified refit at theta below the one at p (residual
@@ -252,7 +268,7 @@ func anyFirstOrder(sols []*Solution) bool {
 // along a valley.
 func (pf *profiler) lower(p []float64, rss, theta float64) (*Solution, bool) {
 	var best *Solution
-	if v := pf.solveFrom(pf.r.pint, theta); v != nil && v.FirstOrder && v.RSS < rss*(1-1e-12) {
+	if v := pf.solveFrom(pf.r.pint, theta); pf.certified(v) && v.RSS < rss*(1-1e-12) {
 		best, p, rss = v, v.P, v.RSS
 	} else {
 		v.release()
@@ -304,7 +320,7 @@ func (pf *profiler) farProbe(p []float64, rss float64) (*Solution, bool) {
 			continue
 		}
 		v, err := Solve(pf.pr, lv, pf.set)
-		if err != nil || !v.FirstOrder || !(v.RSS < rss*(1-1e-12)) {
+		if err != nil || !pf.certified(v) || !(v.RSS < rss*(1-1e-12)) {
 			v.release()
 			continue
 		}
@@ -389,8 +405,9 @@ func (pf *profiler) bound(dir, se, q, s float64) (float64, openEnd) {
 			continue
 		}
 		// τ levelling off below the cutoff: two steps, each 1.6 times longer
-		// than the one before, that raise |τ| by less than 1e-7·q.
-		if math.Abs(f-aF) < 1e-7*q {
+		// than the one before, that each close less than 1e-5 of the
+		// remaining gap to the cutoff.
+		if math.Abs(f-aF) < 1e-5*math.Abs(f) {
 			flat++
 		} else {
 			flat = 0
