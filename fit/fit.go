@@ -231,7 +231,7 @@ func fitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 
 // warnOptima says when the starts of the failure path disagree: two
 // certified optima, or an uncertified end point below the reported one.
-func (r *Result) warnOptima(rb *robust) {
+func (r *Result) warnOptima(rb robust) {
 	unit := "m²/s"
 	if e := r.Param("D"); e != nil && e.Unit == "m2" {
 		unit = "m² (Dt)"

@@ -52,19 +52,21 @@ type robust struct {
 // point, each polished by Solve. The certified optimum with the least
 // residual sum is returned; all distinct ones are listed so that the
 // caller can say the starts disagree.
-func solveRobust(m Model, d *Data, p0 []float64, free []bool, s *Settings) (*robust, error) {
-	pr := Problem{Y: d.Y, W: d.W, Free: free, Func: func(p, f, jac []float64) { m.Eval(p, d, f, jac) }}
-	first, err := Solve(pr, p0, s)
+func solveRobust(m Model, d *Data, p0 []float64, free []bool, s *Settings) (robust, error) {
+	// The ordinary fit: one solve. Its problem value does not escape, so
+	// it costs no allocation; the failure path builds its own.
+	first, err := Solve(Problem{Y: d.Y, W: d.W, Free: free, Func: func(p, f, jac []float64) { m.Eval(p, d, f, jac) }}, p0, s)
 	if err != nil {
-		return nil, err
+		return robust{}, err
 	}
 	if first.Converged && !fewRuns(d, first.F) {
-		return &robust{Sol: first}, nil
+		return robust{Sol: first}, nil
 	}
+	pr := Problem{Y: d.Y, W: d.W, Free: free, Func: func(p, f, jac []float64) { m.Eval(p, d, f, jac) }}
 	params := m.Params()
 	usable := func(sol *Solution) bool { return sol.Converged || atLimit(params, sol, p0) >= 0 }
 	jd := dIndex(params, free)
-	out := &robust{Searched: true}
+	out := robust{Searched: true}
 	var sols []*Solution
 	var labels []string
 	add := func(sol *Solution, label string) {
@@ -335,7 +337,7 @@ func levelsAt(pr Problem, params []Param, free []bool, p []float64, s *Settings)
 func rssAt(pr Problem, p []float64) float64 {
 	f := make([]float64, len(pr.Y))
 	pr.Func(p, f, nil)
-	st := lmState{pr: pr, n: len(pr.Y)}
+	st := lmState{y: pr.Y, wts: pr.W, n: len(pr.Y)}
 	if v := st.rss(f); finite(v) {
 		return v
 	}
@@ -354,7 +356,7 @@ func simplex(pr Problem, from []float64) ([]float64, bool) {
 	if !allFinite(f) || !allFinite(jac) {
 		return nil, false
 	}
-	st := lmState{pr: pr, n: n}
+	st := lmState{y: pr.Y, wts: pr.W, n: n}
 	s0 := st.rss(f)
 	if !(s0 > 0) {
 		return nil, false

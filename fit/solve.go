@@ -178,31 +178,36 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 	clear(buf)
 	whole := buf
 	take := func(m int) []float64 { v := buf[:m:m]; buf = buf[m:]; return v }
-	st := lmState{pr: pr, n: n, np: np, k: k}
+	st := lmState{y: pr.Y, wts: pr.W, n: n, np: np, k: k}
 	p, trial := take(np), take(np)
-	st.f, st.ftr = take(n), take(n)
-	st.jac, st.jtr = take(n*np), take(n*np)
-	st.a, st.fac, st.fac2 = take(k*k), take(k*k), take(k*k)
+	// The model values and Jacobians at p and at the trial point live
+	// apart from st, which holds the caller's data: only they are handed
+	// to the model function.
+	var ev evals
+	ev.f, ev.ftr = take(n), take(n)
+	ev.jac, ev.jtr = take(n*np), take(n*np)
+	jtj := take(k * k)
+	st.a, st.fac, st.fac2 = jtj, take(k*k), take(k*k)
 	st.g, st.diag, st.delta, st.u, st.v = take(k), take(k), take(k), take(k), take(k)
 	copy(p, p0)
 
 	sol := &Solution{Stuck: -1}
-	pr.Func(p, st.f, st.jac)
-	if !allFinite(st.f) || !allFinite(st.jac) {
+	pr.Func(p, ev.f, ev.jac)
+	if !allFinite(ev.f) || !allFinite(ev.jac) {
 		return nil, fmt.Errorf("%w: the model cannot be evaluated at the starting values", ErrNoAnswer)
 	}
 	for i, y := range pr.Y {
 		st.ynorm += st.w(i) * y * y
 	}
 	st.ynorm = math.Sqrt(st.ynorm)
-	cur := st.rss(st.f)
+	cur := st.rss(ev.f)
 	lambda := lambda0
 	status := NotTerminated
 	reason := ""
 	fresh := false // a and g belong to p
 	iter := 1
 	for ; iter <= set.MaxIter; iter++ {
-		st.normal(idx)
+		st.normal(&ev, idx)
 		fresh = true
 		if !allFinite(st.a) || !allFinite(st.g) {
 			status, reason = NotFinite, "the Jacobian is not finite at the current parameters"
@@ -214,7 +219,7 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 			// certified only because it has: move it on towards its
 			// asymptote while S allows, so that every such run-off ends as
 			// Asymptote, not at an arbitrary point of the plateau.
-			if next, moved := st.push(p, trial, idx, cur); moved {
+			if next, moved := st.push(pr.Func, &ev, p, trial, idx, cur); moved {
 				cur = next
 				lambda = lambda0
 				fresh = false
@@ -236,8 +241,8 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 			for aa, ja := range idx {
 				trial[ja] += st.delta[aa]
 			}
-			pr.Func(trial, st.ftr, st.jtr)
-			next := st.rss(st.ftr) // NaN or Inf when any value is not finite
+			pr.Func(trial, ev.ftr, ev.jtr)
+			next := st.rss(ev.ftr) // NaN or Inf when any value is not finite
 			if !finite(next) {
 				next = math.Inf(1)
 			}
@@ -245,8 +250,7 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 			if next < cur || polish {
 				rho := (cur - next) / math.Max(pred, tiny)
 				copy(p, trial)
-				st.f, st.ftr = st.ftr, st.f
-				st.jac, st.jtr = st.jtr, st.jac
+				ev.swap()
 				cur = next
 				if !polish {
 					if rho > 0.75 {
@@ -271,7 +275,7 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 			}
 			// A parameter running off towards an asymptote makes the
 			// quadratic model useless along it: move it on directly.
-			if next, moved := st.push(p, trial, idx, cur); moved {
+			if next, moved := st.push(pr.Func, &ev, p, trial, idx, cur); moved {
 				cur = next
 				lambda = lambda0
 				fresh = false
@@ -285,7 +289,7 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 	if status == NotTerminated {
 		// The last accepted point has not been tested yet.
 		iter = set.MaxIter
-		st.normal(idx)
+		st.normal(&ev, idx)
 		fresh = true
 		st.scale()
 		if allFinite(st.a) && allFinite(st.g) && st.certify(cur, lambda, set) {
@@ -295,7 +299,7 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 		}
 	}
 	if !fresh {
-		st.normal(idx)
+		st.normal(&ev, idx)
 	}
 	if status != Certified && status != NotFinite {
 		st.scale()
@@ -310,7 +314,7 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 		reason = fmt.Sprintf("no damped step reduces the residual sum, but the first-order certificate does not hold (largest scaled gradient %.2g, predicted relative reduction %.2g): the point is not proven to be a minimum", st.gmax, st.predRel)
 	}
 	// The solution keeps the workspace it was computed in: no copies.
-	sol.P, sol.F, sol.Jac, sol.JTJ = p, st.f, st.jac, st.a
+	sol.P, sol.F, sol.Jac, sol.JTJ = p, ev.f, ev.jac, jtj
 	*bp = whole
 	sol.work = bp
 	sol.RSS = cur
@@ -343,12 +347,23 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 	return sol, nil
 }
 
+// evals holds the model values and Jacobians at the current point (f,
+// jac) and at the trial point (ftr, jtr).
+type evals struct {
+	f, ftr   []float64
+	jac, jtr []float64
+}
+
+// swap makes the trial point the current one.
+func (ev *evals) swap() {
+	ev.f, ev.ftr = ev.ftr, ev.f
+	ev.jac, ev.jtr = ev.jtr, ev.jac
+}
+
 // lmState holds the working arrays of one Solve.
 type lmState struct {
-	pr        Problem
+	y, wts    []float64 // observations and weights (nil: all 1)
 	n, np, k  int
-	f, ftr    []float64
-	jac, jtr  []float64
 	a         []float64 // JᵀWJ over the free parameters
 	fac, fac2 []float64 // Cholesky factors of damped systems
 	g         []float64 // JᵀW r
@@ -363,15 +378,15 @@ type lmState struct {
 }
 
 func (st *lmState) w(i int) float64 {
-	if st.pr.W == nil {
+	if st.wts == nil {
 		return 1
 	}
-	return st.pr.W[i]
+	return st.wts[i]
 }
 
 func (st *lmState) rss(fv []float64) float64 {
 	var sum float64
-	y, w := st.pr.Y, st.pr.W
+	y, w := st.y, st.wts
 	if w == nil {
 		for i, yi := range y {
 			r := yi - fv[i]
@@ -400,13 +415,13 @@ func (st *lmState) stuckRef(cur float64) float64 {
 // mean: the scale of the data free of any offset.
 func (st *lmState) spread() float64 {
 	var sw, swy float64
-	for i, y := range st.pr.Y {
+	for i, y := range st.y {
 		sw += st.w(i)
 		swy += st.w(i) * y
 	}
 	m := swy / sw
 	var ss float64
-	for i, y := range st.pr.Y {
+	for i, y := range st.y {
 		ss += st.w(i) * (y - m) * (y - m)
 	}
 	return ss
@@ -429,12 +444,12 @@ const eps = 0x1p-52
 
 // normal builds a = JᵀWJ and g = JᵀW r over the free parameters idx at
 // the current point (f, jac).
-func (st *lmState) normal(idx []int) {
+func (st *lmState) normal(ev *evals, idx []int) {
 	a, g, k := st.a, st.g, st.k
 	clear(a)
 	clear(g)
 	if k == 3 {
-		normal3(st.pr, st.f, st.jac, st.np, idx, a, g)
+		normal3(st.y, st.wts, ev.f, ev.jac, st.np, idx, a, g)
 		return
 	}
 	jf := st.jf[:0]
@@ -444,8 +459,8 @@ func (st *lmState) normal(idx []int) {
 	jf = jf[:k]
 	for i := 0; i < st.n; i++ {
 		w := st.w(i)
-		r := st.pr.Y[i] - st.f[i]
-		row := st.jac[i*st.np : (i+1)*st.np]
+		r := st.y[i] - ev.f[i]
+		row := ev.jac[i*st.np : (i+1)*st.np]
 		for aa, ja := range idx {
 			jf[aa] = row[ja]
 		}
@@ -499,7 +514,7 @@ func (st *lmState) step(lambda float64, fac, x []float64) bool {
 // direction, by max(|pⱼ|, 1) and then doubling, as long as S does not
 // rise above its rounding level, at most 12 times. It reports whether any
 // parameter moved and the new S; p, f and jac follow the move.
-func (st *lmState) push(p, trial []float64, idx []int, cur float64) (float64, bool) {
+func (st *lmState) push(fn func(p, f, jac []float64), ev *evals, p, trial []float64, idx []int, cur float64) (float64, bool) {
 	moved := false
 	for aa, ja := range idx {
 		c := math.Sqrt(st.a[aa*st.k+aa])
@@ -511,14 +526,13 @@ func (st *lmState) push(p, trial []float64, idx []int, cur float64) (float64, bo
 		for m := 0; m < 12; m++ {
 			copy(trial, p)
 			trial[ja] += dir * step
-			st.pr.Func(trial, st.ftr, st.jtr)
-			next := st.rss(st.ftr)
-			if !(next <= cur+st.roundS(cur)) || !allFinite(st.jtr) {
+			fn(trial, ev.ftr, ev.jtr)
+			next := st.rss(ev.ftr)
+			if !(next <= cur+st.roundS(cur)) || !allFinite(ev.jtr) {
 				break
 			}
 			copy(p, trial)
-			st.f, st.ftr = st.ftr, st.f
-			st.jac, st.jtr = st.jtr, st.jac
+			ev.swap()
 			cur, moved = next, true
 			step *= 2
 		}
@@ -594,15 +608,15 @@ func (s *Solution) release() {
 
 // normal3 builds JᵀWJ and JᵀW r for exactly three free parameters, the
 // case of every default fit (D, Cs, C0), with the sums held in registers.
-func normal3(pr Problem, f, jac []float64, np int, idx []int, a, g []float64) {
+func normal3(ys, ws, f, jac []float64, np int, idx []int, a, g []float64) {
 	j0, j1, j2 := idx[0], idx[1], idx[2]
 	var a00, a10, a11, a20, a21, a22, g0, g1, g2 float64
-	for i, y := range pr.Y {
+	for i, y := range ys {
 		row := jac[i*np : (i+1)*np]
 		x0, x1, x2 := row[j0], row[j1], row[j2]
 		r := y - f[i]
-		if pr.W != nil {
-			w := pr.W[i]
+		if ws != nil {
+			w := ws[i]
 			r *= w
 			a00 += w * x0 * x0
 			a10 += w * x1 * x0
