@@ -238,8 +238,12 @@ func (r *Result) warnOptima(rb robust) {
 	}
 	if len(rb.Optima) > 1 {
 		a, b := rb.Optima[0], rb.Optima[1]
-		r.Warn("multiple-optima", "Different starts of the solver reached different optima: D = %.6g %s (RSS %.6g, from %s; reported) and D = %.6g %s (RSS %.6g, from %s). The reported one fits best; the other is a local optimum of the %s model, so check that the model suits the profile's shape.",
-			a.D, unit, a.RSS, a.Start, b.D, unit, b.RSS, b.Start, r.Model)
+		verdict := fmt.Sprintf("The reported one fits best; the other is a local optimum of the %s model, so check that the model suits the profile's shape.", r.Model)
+		if math.Abs(a.RSS-b.RSS) <= 1e-9*b.RSS {
+			verdict = fmt.Sprintf("Both fit equally well: these data cannot decide between them, so D is not determined by the %s model here.", r.Model)
+		}
+		r.Warn("multiple-optima", "Different starts of the solver reached different optima: D = %.6g %s (RSS %.6g, from %s; reported) and D = %.6g %s (RSS %.6g, from %s). %s",
+			a.D, unit, a.RSS, a.Start, b.D, unit, b.RSS, b.Start, verdict)
 	}
 	if l := rb.Lower; l != nil {
 		r.Warn("multiple-optima", "From %s the residual sum fell to %.6g, below the reported optimum's %.6g, without a certified optimum there (solver status %s, D = %.6g %s): the best fit may lie at an edge of the %s model, where a parameter runs off to 0 or infinity. Treat the reported D = %.6g %s with care, or compare models with --model auto.",
