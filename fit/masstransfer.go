@@ -146,6 +146,9 @@ func (MassTransfer) Diagnose(r *Result) {
 	switch {
 	case math.IsInf(b.Value, 1):
 		bound := "the data give no lower bound either"
+		if r.CIMethod != "profile" {
+			bound = "--ci profile gives its lower bound"
+		}
 		if finite(b.CI.Lo) {
 			bound = fmt.Sprintf("the data only bound it from below, beta > %.3g %s", b.CI.Lo, b.Unit)
 		}

@@ -99,6 +99,30 @@ func TestNestedSurfaceFast(t *testing.T) {
 			t.Errorf("seed %d: beta held at its lower bound gives τ = %.6f, want %.6f", seed, tau, q)
 		}
 	}
+	// The other interval methods at the limit: β has no interval, the rest
+	// have finite ones; bootstrap refits that reach the same limit count.
+	p := nestedProfile(1)
+	for _, o := range []Options{{Model: "masstransfer", CI: "wald"},
+		{Model: "masstransfer", CI: "bootstrap", Bootstrap: BootstrapOptions{Resamples: 200, Seed: 5}}} {
+		r, err := Fit(p, o)
+		if err != nil {
+			t.Fatalf("%s: %v", o.CI, err)
+		}
+		if !math.IsInf(r.Param("beta").Value, 1) {
+			t.Fatalf("seed 1 is no longer at the limit (beta = %g)", r.Param("beta").Value)
+		}
+		for _, e := range r.Params {
+			if open := e.CI.Open(); open != (e.Name == "beta") {
+				t.Errorf("%s: %s interval %v", r.CIMethod, e.Name, e.CI)
+			}
+		}
+		if hasWarning(r, "bootstrap-failures", "") {
+			t.Errorf("%s: %v", r.CIMethod, r.Warnings)
+		}
+		if _, err := json.Marshal(r); err != nil {
+			t.Errorf("%s: JSON: %v", r.CIMethod, err)
+		}
+	}
 	if atLimit < 6 {
 		t.Errorf("only %d of 24 seeds put beta at its limit: the test sees too little", atLimit)
 	}

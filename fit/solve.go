@@ -164,11 +164,11 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 		return nil, fmt.Errorf("%w: %d observations for %d free parameters", ErrBadInput, n, k)
 	}
 
-	// One workspace block: p, trial, f, ftrial, jac, jtrial, a (JᵀWJ), two
+	// One workspace block: p, trial, prev, f, ftrial, jac, jtrial, a (JᵀWJ), two
 	// factors, g, diag, delta, u, v. Trial points are evaluated with their
 	// Jacobian: most trials are accepted, and the Jacobian costs little
 	// beyond the values.
-	size := 2*np + 2*n + 2*n*np + 3*k*k + 5*k
+	size := 3*np + 2*n + 2*n*np + 3*k*k + 5*k
 	bp, _ := workPool.Get().(*[]float64)
 	if bp == nil || cap(*bp) < size {
 		fresh := make([]float64, size)
@@ -179,7 +179,7 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 	whole := buf
 	take := func(m int) []float64 { v := buf[:m:m]; buf = buf[m:]; return v }
 	st := lmState{y: pr.Y, wts: pr.W, n: n, np: np, k: k}
-	p, trial := take(np), take(np)
+	p, trial, prev := take(np), take(np), take(np)
 	// The model values and Jacobians at p and at the trial point live
 	// apart from st, which holds the caller's data: only they are handed
 	// to the model function.
@@ -206,10 +206,21 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 	reason := ""
 	fresh := false // a and g belong to p
 	iter := 1
+	hasPrev, prevS := false, 0.0
 	for ; iter <= set.MaxIter; iter++ {
 		st.normal(&ev, idx)
 		fresh = true
 		if !allFinite(st.a) || !allFinite(st.g) {
+			if hasPrev {
+				// The last step landed where the model has values but no
+				// finite Jacobian (a parameter overflowed): take it back
+				// and damp harder.
+				copy(p, prev)
+				ev.swap()
+				cur, hasPrev, fresh = prevS, false, false
+				lambda = 16 * math.Max(lambda, lambda0)
+				continue
+			}
 			status, reason = NotFinite, "the Jacobian is not finite at the current parameters"
 			break
 		}
@@ -220,7 +231,7 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 			// asymptote while S allows, so that every such run-off ends as
 			// Asymptote, not at an arbitrary point of the plateau.
 			if next, moved := st.push(pr.Func, &ev, p, trial, idx, cur); moved {
-				cur = next
+				cur, hasPrev = next, false
 				lambda = lambda0
 				fresh = false
 				continue
@@ -249,6 +260,8 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 			polish := lambda <= lambda0 && pred <= floorS && next <= cur+floorS
 			if next < cur || polish {
 				rho := (cur - next) / math.Max(pred, tiny)
+				copy(prev, p)
+				hasPrev, prevS = true, cur
 				copy(p, trial)
 				ev.swap()
 				cur = next
@@ -276,7 +289,7 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 			// A parameter running off towards an asymptote makes the
 			// quadratic model useless along it: move it on directly.
 			if next, moved := st.push(pr.Func, &ev, p, trial, idx, cur); moved {
-				cur = next
+				cur, hasPrev = next, false
 				lambda = lambda0
 				fresh = false
 				continue
