@@ -137,10 +137,21 @@ const lambda0 = 1e-3
 // accepted (Gauss–Newton polishing), so that the certificate can be met
 // where S itself no longer resolves the progress.
 //
+// Two moves leave the quadratic model aside. A free parameter whose
+// column has decayed below 1e-3 of its largest norm (it runs off towards
+// an asymptote, where the model is useless along it) is moved on directly,
+// by max(|pⱼ|, 1) and doubling, while S does not rise above rounding; this
+// happens when the solver stalls and before a certificate is accepted, so
+// that every run-off ends at the asymptote. And a step that lands where the
+// model has values but no finite Jacobian is taken back with 16 times the
+// damping.
+//
 // A point where the free parameters are not identified (condition number of
 // the scaled JᵀWJ above Settings.CondMax) or where a free parameter ran off
-// to an asymptote is returned with Converged false: it is not a minimum
-// worth reporting.
+// to an asymptote (Stuck; its whole-size change, at least 1 in its internal
+// unit, moves the model by less than 1e-9 of the spread of the data) is
+// returned with Converged false: it is not a minimum worth reporting.
+// FirstOrder still tells whether the certificate held there.
 func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 	set := s.withDefaults()
 	n, np := len(pr.Y), len(p0)
