@@ -73,3 +73,20 @@ func BenchmarkFitErfBootstrap(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkFitFailurePath: a profile whose model start gives no answer
+// (the hump of TestHumpNoConfidentAnswer: ln D runs off), so the whole
+// failure path runs — multi-start, levels from the data — before a
+// certified optimum is found. Only such fits pay this; Wald intervals.
+func BenchmarkFitFailurePath(b *testing.B) {
+	p := failShape("hump", 14, 1.4, func(x float64) float64 {
+		return 0.5 + 0.3*math.Exp(-math.Pow((x-0.7)/0.2, 2))
+	})
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Fit(p, Options{CI: "wald"}); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Microseconds())/float64(b.N), "µs/fit")
+}
