@@ -46,12 +46,14 @@ type robust struct {
 //     Cp, CL, CR) re-derived from the data by least squares with every
 //     other parameter held at the start;
 //
-// and, if still none certifies, the Nelder–Mead simplex of gonum/optimize
-// (derivative-free, so it crosses regions where the model is not finite)
-// on the same residual sum from the model's start and from the lowest end
-// point, each polished by Solve. The certified optimum with the least
-// residual sum is returned; all distinct ones are listed so that the
-// caller can say the starts disagree.
+// and, if still none certifies, a walk along a valley that runs off to a
+// limit of the model (see valleyWalk), then the Nelder–Mead simplex of
+// gonum/optimize (derivative-free, so it crosses regions where the model
+// is not finite) on the same residual sum from the model's start and from
+// the lowest end point, each polished by Solve. The certified optimum (or
+// point at the model's limit, see atLimit) with the least residual sum is
+// returned; all distinct ones are listed so that the caller can say the
+// starts disagree.
 func solveRobust(m Model, d *Data, p0 []float64, free []bool, s *Settings) (robust, error) {
 	// The ordinary fit: one solve. Its problem value does not escape, so
 	// it costs no allocation; the failure path builds its own.
