@@ -23,7 +23,10 @@ func benchProfile() *profile.Profile {
 }
 
 // BenchmarkFitErfWald is the core target: one 50-point, 3-parameter erf fit
-// with Wald intervals and all statistics.
+// with Wald intervals and all statistics. The first-order certificate and
+// the failure path of issue 11 left it where it was: 6 iterations, 14
+// allocations; median CPU time 19.4 µs before, 19.7 µs after (10
+// interleaved runs of 1e5 fits on the shared 2-core machine).
 func BenchmarkFitErfWald(b *testing.B) {
 	p := benchProfile()
 	b.ReportAllocs()
