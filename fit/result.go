@@ -49,6 +49,88 @@ type Estimate struct {
 	StdErrLn float64 `json:"stderr_ln,omitempty"`
 }
 
+// MarshalJSON writes non-finite numbers as null (a parameter at its limit
+// has the value +∞ and no standard error).
+func (e Estimate) MarshalJSON() ([]byte, error) {
+	type plain Estimate
+	return json.Marshal(struct {
+		plain
+		Value    *float64 `json:"value"`
+		StdErr   *float64 `json:"stderr"`
+		StdErrLn *float64 `json:"stderr_ln,omitempty"`
+	}{plain(e), num(e.Value), num(e.StdErr), lnNum(e.StdErrLn)})
+}
+
+// lnNum is num with 0 (a parameter not on the log scale) left out too.
+func lnNum(v float64) *float64 {
+	if v == 0 || !finite(v) {
+		return nil
+	}
+	return &v
+}
+
+// UnmarshalJSON reads null as NaN.
+func (e *Estimate) UnmarshalJSON(b []byte) error {
+	type plain Estimate
+	var v struct {
+		plain
+		Value    *float64 `json:"value"`
+		StdErr   *float64 `json:"stderr"`
+		StdErrLn *float64 `json:"stderr_ln"`
+	}
+	if err := json.Unmarshal(b, &v); err != nil {
+		return err
+	}
+	*e = Estimate(v.plain)
+	e.Value, e.StdErr = val(v.Value), val(v.StdErr)
+	e.StdErrLn = 0
+	if v.StdErrLn != nil {
+		e.StdErrLn = *v.StdErrLn
+	}
+	return nil
+}
+
+// Matrix is a small dense matrix of rows; non-finite entries (undefined,
+// e.g. the correlations of a parameter at its limit) are written as null
+// in JSON and read back as NaN.
+type Matrix [][]float64
+
+// MarshalJSON writes non-finite entries as null.
+func (m Matrix) MarshalJSON() ([]byte, error) {
+	if m == nil {
+		return []byte("null"), nil
+	}
+	rows := make([][]*float64, len(m))
+	for i, row := range m {
+		rows[i] = make([]*float64, len(row))
+		for j, v := range row {
+			rows[i][j] = num(v)
+		}
+	}
+	return json.Marshal(rows)
+}
+
+// UnmarshalJSON reads null entries as NaN.
+func (m *Matrix) UnmarshalJSON(b []byte) error {
+	var rows [][]*float64
+	if err := json.Unmarshal(b, &rows); err != nil {
+		return err
+	}
+	if rows == nil {
+		*m = nil
+		return nil
+	}
+	out := make(Matrix, len(rows))
+	for i, row := range rows {
+		out[i] = make([]float64, len(row))
+		for j, v := range row {
+			out[i][j] = val(v)
+		}
+	}
+	*m = out
+	return nil
+}
+
 // Stats summarises the quality of a fit.
 type Stats struct {
 	N    int     `json:"n"`
@@ -157,8 +239,8 @@ type Result struct {
 	Params []Estimate `json:"params"`
 	// Correlation is the correlation matrix of the free parameters, in the
 	// order of FreeNames (internal scale, ln for Log parameters).
-	FreeNames   []string    `json:"free_names"`
-	Correlation [][]float64 `json:"correlation"`
+	FreeNames   []string `json:"free_names"`
+	Correlation Matrix   `json:"correlation"`
 
 	Stats     Stats      `json:"stats"`
 	Residuals []Residual `json:"residuals"`
@@ -178,9 +260,14 @@ type Result struct {
 	// Internal state for curves, bands and re-fits; not serialised.
 	model Model
 	data  *Data
-	pint  []float64   // all parameters, internal scale
-	free  []bool      // which are free
-	cov   [][]float64 // covariance of free parameters, internal scale
+	pint  []float64 // all parameters, internal scale
+	// lim is 1 + the index of a free log-scale parameter that sits at its
+	// limit (+∞; see atLimit); 0 means none.
+	lim int
+	// p0 is the model's start from the data (internal scale).
+	p0   []float64
+	free []bool      // which are free
+	cov  [][]float64 // covariance of free parameters, internal scale
 }
 
 // MarshalJSON writes the result with its fields' tags, except that a hold
@@ -195,6 +282,9 @@ func (r Result) MarshalJSON() ([]byte, error) {
 	}
 	return jsonx.ZeroAsNull(b, "time_s", "temperature_K")
 }
+
+// limit returns the index of the parameter at its limit, or −1.
+func (r *Result) limit() int { return r.lim - 1 }
 
 // Param returns the estimate with the given name, or nil.
 func (r *Result) Param(name string) *Estimate {
