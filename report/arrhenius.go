@@ -190,8 +190,8 @@ func viewLineText(t viewText, l *arrhenius.Line) {
 	t.line("", head)
 	by := viewByCode(l.Warnings, viewLineTargets)
 
-	t.field("D0", viewD(l.D0(), l.D0CI(), l.Level, "no interval: fewer than three temperatures"))
-	q := viewQ(l.Q, l.QCI(), l.Level)
+	t.field("D0", t.n().viewD(l.D0(), l.D0CI(), l.Level, "no interval: fewer than three temperatures"))
+	q := t.n().viewQ(l.Q, l.QCI(), l.Level)
 	if !l.HasCI {
 		q += " (no interval: fewer than three temperatures)"
 	}
@@ -244,7 +244,7 @@ func viewLineText(t viewText, l *arrhenius.Line) {
 	for _, p := range l.Points {
 		d := math.Exp(p.LnD)
 		ci := p.Interval(l.Level)
-		last := LastDigit(d, ci)
+		last := t.n().lastDigit(d, ci)
 		civ := ""
 		if finite(ci.Lo) || finite(ci.Hi) {
 			civ = IntervalAt(d, ci, last)
@@ -274,13 +274,13 @@ func viewLineText(t viewText, l *arrhenius.Line) {
 		dt := Table{Header: []string{"T", "D (m²/s)", Level(l.Level) + " CI"}, Align: []Align{Left, Right, Left}, Indent: "  "}
 		for _, T := range ts {
 			d, ci := l.DAt(T)
-			last := LastDigit(d, ci)
+			last := t.n().lastDigit(d, ci)
 			civ := ""
 			if l.HasCI {
 				civ = IntervalAt(d, ci, last)
 			}
 			val := Number(d, last)
-			if alt := DAlternative(d, ci); alt != "" {
+			if alt := t.n().dAlternative(d, ci); alt != "" {
 				val += " (" + alt + ")"
 			}
 			dt.Add(Temperature(T, u), val, civ)

@@ -9,6 +9,7 @@ import (
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/profile"
 )
 
 // campaignDoc is results.json. Keys are stable; numbers are SI with the
@@ -26,6 +27,9 @@ type campaignDoc struct {
 	Backcalc        []campaign.Part       `json:"backcalc"`
 	Notes           []string              `json:"notes"`
 	Cautions        []string              `json:"cautions"`
+	// Exclusions are the points and profiles left out by an exclusions
+	// file (omitted without one).
+	Exclusions *profile.Applied `json:"exclusions,omitempty"`
 }
 
 type arrheniusDoc struct {
@@ -46,11 +50,21 @@ func (res *CampaignReport) WriteJSON(w io.Writer) error {
 		Arrhenius:  arrheniusDoc{Method: res.Method, By: res.By, Groups: []arrhenius.Line{}, Failed: nonNil(res.LineErrors)},
 		Comparison: res.Comparison, ComparisonError: res.ComparisonError,
 		Backcalc: nonNil(res.Parts), Notes: nonNil(res.Notes), Cautions: nonNil(res.Cautions),
+		Exclusions: res.excludedDoc(),
 	}
 	if res.Lines != nil {
 		doc.Arrhenius.Groups = nonNil(res.Lines.Lines)
 	}
 	return encodeWithFits(w, doc, res.Results) // the fits one at a time
+}
+
+// excludedDoc is the exclusions key of results.json: nil without an
+// exclusions file, lists (never null) with one.
+func (res *CampaignReport) excludedDoc() *profile.Applied {
+	if res.Excluded == nil {
+		return nil
+	}
+	return &profile.Applied{Points: nonNil(res.Excluded.Points), LeftOut: nonNil(res.Excluded.LeftOut)}
 }
 
 // Arrhenius is the Document of the campaign's Arrhenius lines, as
@@ -78,25 +92,29 @@ func (res *CampaignReport) Backcalc() Backcalc {
 }
 
 // D0Text writes a pre-exponential factor with its interval, in m²/s with cm²/s beside.
-func D0Text(l *arrhenius.Line) string {
+func D0Text(l *arrhenius.Line) string { return numFmt{}.d0Text(l) }
+
+func (n numFmt) d0Text(l *arrhenius.Line) string {
 	ci := l.D0CI()
-	s := Estimate(l.D0(), ci, l.Level, "m2/s")
+	s := n.estimate(l.D0(), ci, l.Level, "m2/s")
 	if !finite(ci.Lo) && !finite(ci.Hi) {
-		s = Sig(l.D0(), 3) + " m²/s (no interval: fewer than three temperatures)"
+		s = n.general(l.D0()) + " m²/s (no interval: fewer than three temperatures)"
 	}
 	return s
 }
 
 // PartText writes a back-calculated result in one line.
-func PartText(p campaign.Part, u TempUnit) string {
+func PartText(p campaign.Part, u TempUnit) string { return numFmt{}.partText(p, u) }
+
+func (n numFmt) partText(p campaign.Part, u TempUnit) string {
 	if p.Solution == nil {
 		return "not back-calculated: " + p.Error
 	}
 	s := p.Solution
 	if p.SolveFor == "time" {
-		return "t = " + DurationEstimate(s.Time.Value, s.Time.CI, s.Level) + " at " + Temperature(s.Temperature.Value, u)
+		return "t = " + n.durationEstimate(s.Time.Value, s.Time.CI, s.Level) + " at " + Temperature(s.Temperature.Value, u)
 	}
-	return "T = " + TemperatureEstimate(s.Temperature.Value, s.Temperature.CI, s.Level, u) + " for " + Duration(s.Time.Value)
+	return "T = " + n.temperatureEstimate(s.Temperature.Value, s.Temperature.CI, s.Level, u) + " for " + Duration(s.Time.Value)
 }
 
 // WriteSummary writes the short text summary for the terminal: a table of
@@ -115,7 +133,7 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 		d := r.Param("D")
 		dv, ci := "", ""
 		if d != nil {
-			last := LastDigit(d.Value, d.CI)
+			last := o.num().lastDigit(d.Value, d.CI)
 			dv, ci = Number(d.Value, last), IntervalAt(d.Value, d.CI, last)
 			if r.Time == 0 {
 				dv += " (Dt, m²)"
@@ -136,7 +154,7 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 		fmt.Fprintf(bw, "\nArrhenius lines (%s, %s CI)\n", res.Method, Level(level))
 		for i := range res.Lines.Lines {
 			l := &res.Lines.Lines[i]
-			writeParts(bw, "  ", []string{groupLabel(*l) + ":", "D0 = " + D0Text(l) + ";", "Q = " + QText(l.Q, l.QCI(), l.Level) + ";",
+			writeParts(bw, "  ", []string{groupLabel(*l) + ":", "D0 = " + o.num().d0Text(l) + ";", "Q = " + o.num().qText(l.Q, l.QCI(), l.Level) + ";",
 				fmt.Sprintf("%d points at %d temperatures;", len(l.Points), l.NTemperatures), "Birge ratio " + Number(l.BirgeRatio, -2)}, " ", o.width())
 			for _, wn := range l.Warnings {
 				writeWrapped(bw, "      ! ", wn.Message, o.width())
@@ -163,7 +181,7 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 			if p.Lot != "" {
 				head += " (lot " + p.Lot + ")"
 			}
-			writeWrapped(bw, head+": ", PartText(p, u), o.width())
+			writeWrapped(bw, head+": ", o.num().partText(p, u), o.width())
 			if p.Solution != nil {
 				for _, wn := range p.Solution.Warnings {
 					writeWrapped(bw, "      ! ", wn.Message, o.width())

@@ -2,7 +2,6 @@ package report
 
 import (
 	"bufio"
-	"encoding/csv"
 	"io"
 	"strconv"
 	"strings"
@@ -104,8 +103,8 @@ func (t *fitTable) appendHeader(buf []byte) []byte { return appendCSVRecord(buf,
 func (t *fitTable) appendRow(buf []byte, r *fit.Result) []byte {
 	buf = appendCSVField(buf, r.ID)
 	buf = appendCSVField(append(buf, ','), r.Lot)
-	buf = appendCSVNumber(append(buf, ','), r.Temperature)
-	buf = appendCSVNumber(append(buf, ','), r.Time)
+	buf = appendCSVGiven(append(buf, ','), r.Temperature)
+	buf = appendCSVGiven(append(buf, ','), r.Time)
 	buf = appendCSVField(append(buf, ','), r.Model)
 	d := r.Param("D")
 	switch {
@@ -173,7 +172,7 @@ func (t *fitTable) appendFailed(buf []byte, fl fit.Failure) []byte {
 	return appendCSVRecord(buf, row)
 }
 
-// appendCSVRecord appends one record as encoding/csv writes it (comma,
+// appendCSVRecord appends one record as newCSVWriter writes it (comma,
 // "\n" line ends).
 func appendCSVRecord(buf []byte, fields []string) []byte {
 	for i, f := range fields {
@@ -185,10 +184,13 @@ func appendCSVRecord(buf []byte, fields []string) []byte {
 	return append(buf, '\n')
 }
 
-// appendCSVField appends one field as encoding/csv's Writer writes it with
-// a comma and without CRLF: quoted when it holds a comma, a quote, '\r' or
-// '\n', starts with white space or is `\.`, quotes doubled.
+// appendCSVField appends one text cell as newCSVWriter writes it: made
+// inert (EscapeText, SafeCell), then as encoding/csv's Writer writes a
+// field with a comma and without CRLF: quoted when it holds a comma, a
+// quote, '\r' or '\n', starts with white space or is `\.`, quotes doubled.
+// (Numbers need neither step: appendCSVNumber writes them directly.)
 func appendCSVField(buf []byte, s string) []byte {
+	s = SafeCell(EscapeText(s))
 	if !csvNeedsQuotes(s) {
 		return append(buf, s...)
 	}
@@ -228,12 +230,20 @@ func appendCSVNumber(buf []byte, v float64) []byte {
 	return strconv.AppendFloat(buf, v, 'g', -1, 64)
 }
 
+// appendCSVGiven appends csvGiven(v): nothing when v is 0 (not given).
+func appendCSVGiven(buf []byte, v float64) []byte {
+	if v == 0 {
+		return buf
+	}
+	return appendCSVNumber(buf, v)
+}
+
 // WriteResidualsCSV writes one row per measured point of every fitted
 // profile: id, depth_m, observed, fitted, residual, line (the source line
 // or row; empty when unknown). Observed, fitted and residual are in the
 // profile's value unit, given in value_unit.
 func (f Fits) WriteResidualsCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
+	cw := newCSVWriter(w)
 	if err := cw.Write([]string{"id", "depth_m", "observed", "fitted", "residual", "value_unit", "line"}); err != nil {
 		return err
 	}

@@ -5,11 +5,13 @@ import (
 	"fmt"
 	"html/template"
 	"io"
+	"strconv"
 	"strings"
 
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/profile"
 )
 
 // htmlProfile is one profile's section of the HTML report.
@@ -62,6 +64,7 @@ type htmlView struct {
 	Cautions              []string
 	Inputs                []campaign.InputFile
 	Options               [][2]string
+	Excluded              [][5]string
 	Level                 string
 	TempUnit              string
 	DetailNote            string // which profiles have a section, in a large campaign
@@ -153,11 +156,17 @@ func (res *CampaignReport) WriteHTML(w io.Writer, o CampaignOptions) error {
 
 func (res *CampaignReport) writeHTML(w io.Writer, o CampaignOptions, fs *figureSet) error {
 	v := res.htmlView(o, fs)
-	bw := bufio.NewWriter(w)
+	// Control characters from the inputs are written as visible escapes
+	// (EscapeText): html/template leaves them, and HTML does not allow them.
+	e := newTextEscaper(w)
+	bw := bufio.NewWriter(e)
 	if err := htmlTemplate.Execute(bw, v); err != nil {
 		return fmt.Errorf("writing the HTML report: %w", err)
 	}
-	return bw.Flush()
+	if err := bw.Flush(); err != nil {
+		return err
+	}
+	return e.Close()
 }
 
 func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
@@ -167,6 +176,7 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 		Failed: res.Failed, LineErrors: res.LineErrors, ComparisonError: res.ComparisonError,
 		Notes: res.Notes, Methods: MethodNotes(), Cautions: res.Cautions, Inputs: res.Inputs, Options: auditPairs(res.audit()),
 		PartCautions: arrhenius.Cautions, DetailNote: fs.detail.note()}
+	v.Excluded = excludedRows(res.Excluded)
 	detailed := map[string]bool{}
 	v.Lead = fmt.Sprintf("%d profiles from %d input files; %d fitted with the %s model, %s intervals by %s.",
 		len(res.Profiles), len(res.Inputs), len(res.Results), res.Options.Model, Level(level), CIMethodDescription(fit.CIMethod(res.Options.CIMethod)))
@@ -174,8 +184,9 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 	for _, p := range res.Parts {
 		unknown[p.ID] = true
 	}
+	anchors := profileAnchors(res.Results)
 	for _, r := range res.Results {
-		hp := htmlProfile{ID: r.ID, Anchor: "p-" + fileSafe(r.ID), Lot: r.Lot, Source: r.Source,
+		hp := htmlProfile{ID: r.ID, Anchor: anchors[r.ID], Lot: r.Lot, Source: r.Source,
 			Conditions: conditionsText(r, u), Short: shortConditions(r, u), Model: ModelDescription(r.Model), ModelName: r.Model,
 			Interval: Level(r.CILevel) + " CI by " + CIMethodDescription(r.CIMethod), R2: r2Text(r.Stats.R2),
 			Stats: statsParts(r), Unknown: unknown[r.ID], Detail: fs.detail.shows(r)}
@@ -188,7 +199,7 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 			}
 		}
 		for _, e := range r.Params {
-			pt := formatParam(e)
+			pt := formatParam(e, numFmt{})
 			if e.Name == "D" && r.Time == 0 {
 				pt.Name = "Dt"
 			}
@@ -240,7 +251,7 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 		}
 	}
 	for _, p := range res.Parts {
-		hp := htmlPart{ID: p.ID, Anchor: "p-" + fileSafe(p.ID), Lot: p.Lot, Result: PartText(p, u), Failed: p.Solution == nil,
+		hp := htmlPart{ID: p.ID, Anchor: anchors[p.ID], Lot: p.Lot, Result: PartText(p, u), Failed: p.Solution == nil,
 			Detail: detailed[p.ID]}
 		if p.Solution != nil {
 			for _, wn := range p.Solution.Warnings {
@@ -251,6 +262,28 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 		v.Facts = append(v.Facts, [2]string{"Back-calculated " + p.ID, hp.Result})
 	}
 	return v
+}
+
+// profileAnchors gives every profile an anchor of its own: "p-" and the id
+// made safe for a URL fragment, with "-2", "-3"… added where two ids come
+// out alike ("A 1", "A_1" and "A/1" all give "p-A_1"), compared without
+// case. Ids are unique, so the map is keyed by id.
+func profileAnchors(rs []*fit.Result) map[string]string {
+	out := make(map[string]string, len(rs))
+	used := map[string]bool{}
+	for _, r := range rs {
+		if _, done := out[r.ID]; done {
+			continue
+		}
+		base := "p-" + fileSafe(r.ID)
+		a := base
+		for k := 2; used[strings.ToLower(a)]; k++ {
+			a = fmt.Sprintf("%s-%d", base, k)
+		}
+		used[strings.ToLower(a)] = true
+		out[r.ID] = a
+	}
+	return out
 }
 
 var htmlTemplate = template.Must(template.New("report").Funcs(template.FuncMap{
@@ -371,7 +404,7 @@ footer { margin-top: 3rem; font-size: .8rem; color: var(--muted); border-top: 1p
 <h2>Back-calculated parts</h2>
 <p>Profiles marked <em>unknown</em> are left out of the calibration; their temperature (or time) is solved from the Arrhenius line of their group.</p>
 <table><thead><tr><th>part</th><th>lot</th><th>result</th></tr></thead>
-<tbody>{{range .Parts}}<tr><td>{{if .Detail}}<a href="#{{.Anchor}}">{{.ID}}</a>{{else}}{{.ID}}{{end}}</td><td>{{.Lot}}</td><td>{{.Result}}{{if .Warnings}}<ul class="warn">{{range .Warnings}}<li>{{.}}</li>{{end}}</ul>{{end}}</td></tr>{{end}}</tbody></table>
+<tbody>{{range .Parts}}<tr><td>{{if and .Anchor .Detail}}<a href="#{{.Anchor}}">{{.ID}}</a>{{else}}{{.ID}}{{end}}</td><td>{{.Lot}}</td><td>{{.Result}}{{if .Warnings}}<ul class="warn">{{range .Warnings}}<li>{{.}}</li>{{end}}</ul>{{end}}</td></tr>{{end}}</tbody></table>
 <div class="caution"><h3>Before acting on a back-calculated number</h3><ol>{{range .PartCautions}}<li>{{.}}</li>{{end}}</ol></div>
 </section>
 {{end}}
@@ -408,6 +441,8 @@ footer { margin-top: 3rem; font-size: .8rem; color: var(--muted); border-top: 1p
 <tbody>{{range .Inputs}}<tr><td class="mono">{{.Name}}</td><td class="mono">{{.SHA256}}</td><td class="num">{{.Bytes}}</td></tr>{{end}}</tbody></table>
 <table><thead><tr><th>option</th><th>value</th></tr></thead>
 <tbody>{{range .Options}}<tr><td>{{index . 0}}</td><td>{{index . 1}}</td></tr>{{end}}</tbody></table>
+{{if .Excluded}}<table><thead><tr><th>excluded (profile)</th><th>file, line</th><th>depth (µm)</th><th>value</th><th>reason</th></tr></thead>
+<tbody>{{range .Excluded}}<tr><td>{{index . 0}}</td><td class="mono">{{index . 1}}</td><td class="num">{{index . 2}}</td><td class="num">{{index . 3}}</td><td>{{index . 4}}</td></tr>{{end}}</tbody></table>{{end}}
 </section>
 
 <footer>Written by fickfit {{.Version}}. The same inputs and options give the same numbers; the SHA-256 sums identify the input files.</footer>
@@ -415,6 +450,28 @@ footer { margin-top: 3rem; font-size: .8rem; color: var(--muted); border-top: 1p
 </body>
 </html>
 `
+
+// excludedRows lists the exclusions for the audit trail: profile, file
+// and line, depth in µm, value, reason; a profile left out of the
+// Arrhenius lines has "whole profile" for its depth.
+func excludedRows(a *profile.Applied) [][5]string {
+	if a == nil {
+		return nil
+	}
+	var out [][5]string
+	for _, e := range a.Points {
+		where := e.File
+		if e.Line > 0 {
+			where += fmt.Sprintf(":%d", e.Line)
+		}
+		// As written in the files (six significant digits at most), not rounded to an uncertainty.
+		out = append(out, [5]string{e.Profile, where, strconv.FormatFloat(e.Depth*1e6, 'g', 6, 64), strconv.FormatFloat(e.Value, 'g', 6, 64), e.Reason})
+	}
+	for _, l := range a.LeftOut {
+		out = append(out, [5]string{l.Profile, l.File, "whole profile (left out of the Arrhenius lines)", "", l.Reason})
+	}
+	return out
+}
 
 // shortConditions writes "880 °C, 5 h" for summary tables.
 func shortConditions(r *fit.Result, u TempUnit) string {

@@ -119,24 +119,24 @@ func viewPredictionText(t viewText, p *arrhenius.Prediction) {
 		var tm string
 		switch {
 		case q.Method == "" && !finite(q.CI.Lo) && !finite(q.CI.Hi):
-			tm = viewDurationPlain(q.Value) + ", no interval"
+			tm = t.n().viewDurationPlain(q.Value) + ", no interval"
 		case viewZeroWidth(q.CI):
-			tm = viewDurationPlain(q.Value) + ", " + viewZeroWidthText
+			tm = t.n().viewDurationPlain(q.Value) + ", " + viewZeroWidthText
 		default:
-			tm = DurationEstimate(q.Value, q.CI, p.Level) + "; " + viewCIMethod(q.Method, nil)
+			tm = t.n().durationEstimate(q.Value, q.CI, p.Level) + "; " + viewCIMethod(q.Method, nil)
 		}
 		t.field("hold time", tm)
 		t.warn(by["Dt"])
-		t.field("Dt needed", Sig(p.Dt.Value, DefaultDigits)+" m² (√Dt "+Depth(math.Sqrt(p.Dt.Value))+")")
+		t.field("Dt needed", t.n().general(p.Dt.Value)+" m² (√Dt "+Depth(math.Sqrt(p.Dt.Value))+")")
 	} else {
 		d := p.Dt
 		var s string
 		if !finite(d.CI.Lo) && !finite(d.CI.Hi) {
-			s = Sig(d.Value, DefaultDigits) + " m², no band"
+			s = t.n().general(d.Value) + " m², no band"
 		} else if viewZeroWidth(d.CI) {
-			s = Sig(d.Value, DefaultDigits) + " m², band of zero width"
+			s = t.n().general(d.Value) + " m², band of zero width"
 		} else {
-			last := LastDigit(d.Value, d.CI)
+			last := t.n().lastDigit(d.Value, d.CI)
 			s = Number(d.Value, last) + " m², " + Level(p.Level) + " CI " + IntervalAt(d.Value, d.CI, last) + " m²"
 		}
 		t.field("Dt", s+" (√Dt "+Depth(math.Sqrt(d.Value))+")")
@@ -144,7 +144,7 @@ func viewPredictionText(t viewText, p *arrhenius.Prediction) {
 	}
 	t.field("levels", "surface Cs "+viewGiven(p.Cs)+", base C0 "+viewGiven(p.C0)+" (in the unit they were given in); erf solution, semi-infinite body")
 	if cd := p.CaseDepth; cd != nil && p.Kind != "time-to-depth" {
-		t.field("case depth", viewLength(cd.Value, cd.CI, p.Level)+" at level "+viewGiven(p.Threshold))
+		t.field("case depth", t.n().viewLength(cd.Value, cd.CI, p.Level)+" at level "+viewGiven(p.Threshold))
 	}
 	t.calibration(p.Calibration, by["calibration"])
 	t.warn(by[""])
@@ -166,9 +166,9 @@ func viewProfileTable(t viewText, p *arrhenius.Prediction) {
 		}
 	}
 	rng := math.Abs(p.Cs - p.C0)
-	last := SigDigits(rng, DefaultDigits)
+	last := SigDigits(rng, t.n().sig())
 	if hmax > 0 {
-		last = LastDigit(rng, fit.Interval{Lo: rng - hmax, Hi: rng + hmax})
+		last = t.n().lastDigit(rng, fit.Interval{Lo: rng - hmax, Hi: rng + hmax})
 	}
 	f, unit := DepthScale(maxDepth)
 	// Depths with the fewest decimals (at most three) that write them all exactly.

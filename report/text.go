@@ -13,16 +13,24 @@ import (
 )
 
 // TextOptions control the text views. The zero value writes temperatures
-// in °C with kelvin beside, wraps at 100 columns and ends with the cautions.
+// in °C with kelvin beside, numbers without an interval to three
+// significant digits, wraps at 100 columns and ends with the cautions.
 type TextOptions struct {
 	// TempUnit is the user's temperature unit; "" means °C.
 	TempUnit TempUnit
+	// Digits is the number of significant digits of a number written
+	// without an interval (a value with an interval keeps the digits the
+	// interval supports); 0 means DefaultDigits.
+	Digits int
 	// Width is the column at which warnings and cautions wrap; 0 means 100.
 	Width int
 	// NoCautions leaves the cautions out (for a caller that writes them once
 	// at the end of a longer output).
 	NoCautions bool
 }
+
+// num is the number formatter of the options' digits.
+func (o TextOptions) num() numFmt { return numFmt{o.Digits} }
 
 func (o TextOptions) width() int {
 	if o.Width <= 0 {
@@ -39,7 +47,7 @@ type paramText struct {
 // formatParam writes a parameter: value with unit (D also in µm²/s or
 // cm²/s), standard error with two significant digits, interval with the
 // value's digits; lengths in µm or mm.
-func formatParam(e fit.Estimate) paramText {
+func formatParam(e fit.Estimate, n numFmt) paramText {
 	pt := paramText{Name: e.Name}
 	v, iv, se, unit := e.Value, e.CI, e.StdErr, e.Unit
 	switch unit {
@@ -56,19 +64,13 @@ func formatParam(e fit.Estimate) paramText {
 			v, se, iv, unit = v/f, se/f, fit.Interval{Lo: iv.Lo / f, Hi: iv.Hi / f}, u
 		}
 	}
-	last := LastDigit(v, iv)
-	if e.Fixed {
-		last = SigDigits(v, DefaultDigits)
-		if v == 0 {
-			last = 0
-		}
-	}
+	last := n.paramLast(v, iv, e.Fixed)
 	pt.Value = Number(v, last)
 	if u := PrettyUnit(unit); u != "" {
 		pt.Value += " " + u
 	}
 	if unit == "m2/s" {
-		if alt := DAlternative(v, iv); alt != "" {
+		if alt := n.dAlternative(v, iv); alt != "" {
 			pt.Value += " (" + alt + ")"
 		}
 	}
@@ -81,6 +83,23 @@ func formatParam(e fit.Estimate) paramText {
 	}
 	pt.CI = IntervalAt(v, iv, last)
 	return pt
+}
+
+// paramLast is the decimal place of the last digit shown of a parameter's
+// value: the interval's (LastDigit), or DefaultDigits significant digits
+// for a fixed parameter (0 for a fixed 0). The text views, the HTML report
+// and the workbook's number formats all take it from here.
+func paramLast(v float64, iv fit.Interval, fixed bool) int { return numFmt{}.paramLast(v, iv, fixed) }
+
+// paramLast is paramLast with n's digits for a value without an interval.
+func (n numFmt) paramLast(v float64, iv fit.Interval, fixed bool) int {
+	if !fixed {
+		return n.lastDigit(v, iv)
+	}
+	if v == 0 {
+		return 0
+	}
+	return SigDigits(v, n.sig())
 }
 
 // statsParts lists the statistics of a fit, each "name value".
@@ -198,7 +217,7 @@ func writeResultText(w *bufio.Writer, r *fit.Result, o TextOptions) {
 	}
 	tb := Table{Header: []string{"", "estimate", "SE", Level(r.CILevel) + " CI"}, Indent: "  ", Align: []Align{Left, Left, Right, Left}}
 	for _, e := range r.Params {
-		p := formatParam(e)
+		p := formatParam(e, o.num())
 		if e.Name == "D" && r.Time == 0 {
 			p.Name = "Dt" // the time is unknown: the fitted quantity is Dt in m²
 		}
@@ -240,7 +259,7 @@ func writeDepthText(w *bufio.Writer, r *fit.Result, e *fit.DepthEstimate, o Text
 	}
 	fitted := "not reached by the fitted curve"
 	if finite(e.Depth) {
-		fitted = DepthInterval(e.Depth, e.CI, e.CILevel) + " from the fitted curve"
+		fitted = o.num().depthInterval(e.Depth, e.CI, e.CILevel) + " from the fitted curve"
 	}
 	data := "not reached by the measured points"
 	if finite(e.FromData) {
@@ -248,7 +267,7 @@ func writeDepthText(w *bufio.Writer, r *fit.Result, e *fit.DepthEstimate, o Text
 	}
 	level := ""
 	if finite(e.Level) {
-		level = fmt.Sprintf(" (level %s %s)", Sig(e.Level, 3), e.Unit)
+		level = fmt.Sprintf(" (level %s %s)", o.num().general(e.Level), e.Unit)
 	}
 	writeWrapped(w, "  ", fmt.Sprintf("%s at %s%s: %s; %s.", name, e.Threshold, level, fitted, data), o.width())
 	said := map[string]bool{}
@@ -265,9 +284,13 @@ func writeDepthText(w *bufio.Writer, r *fit.Result, e *fit.DepthEstimate, o Text
 // DepthInterval writes a depth with its interval in one unit ("0.82 mm,
 // 95 % CI 0.79–0.85 mm"); open ends are said in words.
 func DepthInterval(d float64, ci fit.Interval, level float64) string {
+	return numFmt{}.depthInterval(d, ci, level)
+}
+
+func (n numFmt) depthInterval(d float64, ci fit.Interval, level float64) string {
 	f, unit := DepthScale(d)
 	scaled := fit.Interval{Lo: ci.Lo / f, Hi: ci.Hi / f}
-	return Estimate(d/f, scaled, level, unit)
+	return n.estimate(d/f, scaled, level, unit)
 }
 
 // writeSelectionText writes the model comparison of --model auto.

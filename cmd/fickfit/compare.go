@@ -44,10 +44,11 @@ temperature with its confidence interval and a plain verdict with the p-value.`,
 				}
 				o.TemperatureSigma = v
 			}
-			results, _, err := fittedInputs(args, &ff)
+			results, _, err := fittedInputs(args, &ff, c.ErrOrStderr())
 			if err != nil {
 				return err
 			}
+			results = ff.leaveOut(results)
 			pts, err := arrhenius.PointsFromResults(results)
 			if err != nil {
 				return err

@@ -53,6 +53,9 @@ highest temperature), exact when D does not depend on concentration.`,
 			if err != nil {
 				return err
 			}
+			if err := ff.excludePoints(ps, c.ErrOrStderr()); err != nil {
+				return err
+			}
 			if err := ff.override(ps); err != nil {
 				return err
 			}
@@ -73,7 +76,7 @@ highest temperature), exact when D does not depend on concentration.`,
 			}
 			for _, e := range errs {
 				if e != nil && e != worst {
-					fmt.Fprintln(c.ErrOrStderr(), "fickfit:", e)
+					fmt.Fprintln(c.ErrOrStderr(), "fickfit:", report.EscapeText(e.Error()))
 				}
 			}
 			return worst

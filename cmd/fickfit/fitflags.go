@@ -2,7 +2,7 @@ package main
 
 import (
 	"fmt"
-	"strconv"
+	"io"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -30,6 +30,9 @@ type fitFlags struct {
 	cal                          *profile.Calibration
 	dc, dcTable                  string
 	surface                      string
+	exclude                      string
+	excl                         *profile.Exclusions
+	applied                      *profile.Applied
 }
 
 func (f *fitFlags) register(c *cobra.Command) {
@@ -42,7 +45,7 @@ func (f *fitFlags) register(c *cobra.Command) {
 	fl.StringSliceVar(&f.free, "free", nil, "fit a parameter that is fixed by default, e.g. --free x0")
 	fl.Float64Var(&f.level, "level", 0.95, "confidence level of the intervals")
 	fl.StringVar(&f.ci, "ci", "profile", "interval method: profile, wald or bootstrap")
-	fl.IntVar(&f.resamples, "resamples", 2000, "bootstrap resamples (with --ci bootstrap)")
+	fl.IntVar(&f.resamples, "resamples", 2000, "bootstrap resamples (with --ci bootstrap; at most 100000)")
 	fl.Uint64Var(&f.seed, "seed", 1, "bootstrap random seed: the same seed gives the same interval")
 	fl.BoolVar(&f.cases, "cases", false, "bootstrap whole points (case resampling) instead of residuals")
 	fl.BoolVar(&f.percentile, "percentile", false, "plain percentile bootstrap intervals instead of BCa")
@@ -54,6 +57,7 @@ func (f *fitFlags) register(c *cobra.Command) {
 	fl.StringVar(&f.dcTable, "dc-table", "", "numeric model with --dc table: CSV of D against concentration (e.g. C_wt%,D_m2/s); its shape is kept and its scale fitted")
 	fl.StringVar(&f.surface, "surface", "fixed", "numeric model: surface condition: fixed (Cs) or masstransfer (beta, Cp)")
 	fl.StringVar(&f.hardnessCal, "hardness-calibration", "", "CSV of hardness–concentration pairs for this material: hardness profiles are converted to concentration before fitting")
+	fl.StringVar(&f.exclude, "exclude", "", "exclusions file (CSV: file, profile, depth_um, line, reason; as fickfit serve saves it): points left out of the fits, profiles without a depth left out of the Arrhenius lines")
 	_ = c.RegisterFlagCompletionFunc("model", fixed(append(fit.ModelNames(), "numeric", "auto")...))
 	_ = c.RegisterFlagCompletionFunc("ci", fixed(fit.CIMethods()...))
 	_ = c.RegisterFlagCompletionFunc("dc", fixed(numeric.Laws()...))
@@ -82,6 +86,9 @@ func (f *fitFlags) options() (fit.Options, error) {
 	}
 	if !(f.level > 0 && f.level < 1) {
 		return o, usagef("--level %g must be between 0 and 1, e.g. 0.95", f.level)
+	}
+	if err := atMost("--resamples", f.resamples, maxResamples); err != nil {
+		return o, err
 	}
 	if f.faces != 1 && f.faces != 2 {
 		return o, usagef("--faces must be 1 or 2, not %d", f.faces)
@@ -137,6 +144,13 @@ func (f *fitFlags) options() (fit.Options, error) {
 		}
 		o.DecarbFraction = f.decarbFraction
 	}
+	if f.exclude != "" && f.excl == nil {
+		x, err := profile.ReadExclusions(f.exclude)
+		if err != nil {
+			return o, err
+		}
+		f.excl = x
+	}
 	if f.hardnessCal != "" {
 		cal, err := profile.ReadCalibration(f.hardnessCal)
 		if err != nil {
@@ -147,29 +161,61 @@ func (f *fitFlags) options() (fit.Options, error) {
 	if len(f.fix) > 0 {
 		o.Fixed = map[string]float64{}
 		for _, s := range f.fix {
-			name, val, ok := strings.Cut(s, "=")
-			if !ok {
-				return o, usagef("--fix %q: write NAME=VALUE, e.g. --fix Cs=1.05", s)
-			}
-			v, err := fixValue(strings.TrimSpace(val))
+			name, v, err := fit.ParseFixed(s)
 			if err != nil {
-				return o, usagef("--fix %s: %v", s, err)
+				return o, usagef("--fix %v", plain(err))
 			}
-			o.Fixed[strings.TrimSpace(name)] = v
+			o.Fixed[name] = v
 		}
 	}
 	return o, nil
 }
 
-// fixValue reads a plain number, or a length with its unit (for x0, xm).
-func fixValue(s string) (float64, error) {
-	if v, err := strconv.ParseFloat(s, 64); err == nil {
-		return v, nil
+// excludePoints takes the points of --exclude out of the profiles
+// (options must have been called) and says on w which rows concern no
+// input profile.
+func (f *fitFlags) excludePoints(ps []profile.Profile, w io.Writer) error {
+	if f.excl == nil {
+		return nil
 	}
-	if v, err := profile.ParseLength(s); err == nil {
-		return v, nil
+	a, err := f.excl.Apply(ps)
+	if err != nil {
+		return err
 	}
-	return 0, fmt.Errorf("%q is not a number (or a length with a unit such as 0.02mm)", s)
+	f.applied = a
+	if len(a.Unused) > 0 {
+		ids := make([]string, len(a.Unused))
+		for i, e := range a.Unused {
+			ids[i] = e.Profile
+		}
+		fmt.Fprintf(w, "fickfit: %s: %d rows concern profiles not among the inputs (%s); they were not used\n",
+			f.exclude, len(ids), strings.Join(ids, ", "))
+	}
+	return nil
+}
+
+// leftOut tells whether --exclude leaves the profile id out of the
+// Arrhenius lines and comparisons (a row without a depth).
+func (f *fitFlags) leftOut(id string) bool {
+	if f.excl != nil {
+		for _, e := range f.excl.Rows {
+			if e.Whole() && e.Profile == id {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+// leaveOut drops the fits of the profiles that --exclude leaves out.
+func (f *fitFlags) leaveOut(rs []*fit.Result) []*fit.Result {
+	var out []*fit.Result
+	for _, r := range rs {
+		if !f.leftOut(r.ID) {
+			out = append(out, r)
+		}
+	}
+	return out
 }
 
 // override applies --temperature, --time and --thickness to every profile,

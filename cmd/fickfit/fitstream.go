@@ -65,7 +65,7 @@ func fitStreamed(c *cobra.Command, args []string, ff *fitFlags, o fit.Options, o
 	worst := firstError(doc.Errs)
 	for _, e := range doc.Errs {
 		if e != worst {
-			fmt.Fprintln(c.ErrOrStderr(), "fickfit:", e)
+			fmt.Fprintln(c.ErrOrStderr(), "fickfit:", report.EscapeText(e.Error()))
 		}
 	}
 	return true, worst
@@ -76,10 +76,13 @@ var noStream bool
 
 // streamable tells whether fitStreamed takes the run: not for bootstrap
 // intervals (their progress counts the profiles in advance), nor with a
-// furnace history, nor when an override flag does not parse (the error is
-// then reported in its usual order, after the reading errors).
+// furnace history or --exclude (applied to the profiles read, reporting
+// the rows that matched none), nor when an override flag does not parse
+// (the error is then reported in its usual order, after the reading
+// errors).
 func streamable(ff *fitFlags, history, qText, tref string) bool {
-	return !noStream && !ff.bootstrap() && history == "" && qText == "" && tref == "" && ff.override(nil) == nil
+	return !noStream && !ff.bootstrap() && history == "" && qText == "" && tref == "" && ff.excl == nil &&
+		ff.override(nil) == nil
 }
 
 // adjuster returns what override does, for one profile at a time.
@@ -104,8 +107,8 @@ func (f *fitFlags) adjuster() func(p *profile.Profile) error {
 // find bad input after writing rows; those rows must not reach a pipe.
 func (o *outFlags) emitWhole(c *cobra.Command, d report.Document) error {
 	write := func(w io.Writer) error { return emit(w, o.fmt, o.textOptions(), d) }
-	if o.path != "" {
-		return report.WriteFileAtomic(o.path, write)
+	if !o.toStdout() {
+		return o.output().WriteFile(o.path, write)
 	}
 	s := &spill{limit: spillLimit}
 	defer s.discard()

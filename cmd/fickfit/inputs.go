@@ -1,6 +1,7 @@
 package main
 
 import (
+	"io"
 	"strings"
 
 	"github.com/fickfit/fickfit/fit"
@@ -8,9 +9,10 @@ import (
 )
 
 // fittedInputs reads the arguments as profiles (fitted here with the fit
-// flags) or as JSON files that 'fickfit fit' wrote. It returns the results
-// and, when profiles were read, the profiles (in the same order).
-func fittedInputs(args []string, ff *fitFlags) ([]*fit.Result, []profile.Profile, error) {
+// flags, less the points of --exclude) or as JSON files that 'fickfit fit'
+// wrote. It returns the results and, when profiles were read, the
+// profiles (in the same order).
+func fittedInputs(args []string, ff *fitFlags, stderr io.Writer) ([]*fit.Result, []profile.Profile, error) {
 	var jsonFiles, profFiles []string
 	for _, a := range args {
 		if strings.EqualFold(fileExt(a), ".json") {
@@ -25,6 +27,9 @@ func fittedInputs(args []string, ff *fitFlags) ([]*fit.Result, []profile.Profile
 		if err != nil {
 			return nil, nil, err
 		}
+		if err := savedFitsExcluded(rs, ff.excl); err != nil {
+			return nil, nil, err
+		}
 		results = append(results, rs...)
 	}
 	var ps []profile.Profile
@@ -34,6 +39,9 @@ func fittedInputs(args []string, ff *fitFlags) ([]*fit.Result, []profile.Profile
 			return nil, nil, err
 		}
 		if ps, err = profile.ReadAll(profFiles); err != nil {
+			return nil, nil, err
+		}
+		if err := ff.excludePoints(ps, stderr); err != nil {
 			return nil, nil, err
 		}
 		if err := ff.override(ps); err != nil {
@@ -46,6 +54,22 @@ func fittedInputs(args []string, ff *fitFlags) ([]*fit.Result, []profile.Profile
 		results = append(results, rs...)
 	}
 	return results, ps, nil
+}
+
+// savedFitsExcluded refuses exclusions of points of a saved fit: the
+// points can only be left out of the profile itself.
+func savedFitsExcluded(rs []*fit.Result, x *profile.Exclusions) error {
+	if x == nil {
+		return nil
+	}
+	for _, r := range rs {
+		for _, e := range x.Rows {
+			if !e.Whole() && e.Profile == r.ID {
+				return usagef("%s:%d: profile %s comes from a saved fit (%s): its points cannot be excluded there; give the profile's file instead", x.Source, e.Row, r.ID, r.Source)
+			}
+		}
+	}
+	return nil
 }
 
 func fileExt(p string) string {

@@ -3,6 +3,7 @@ package parallel
 import (
 	"errors"
 	"runtime"
+	"runtime/debug"
 	"sync"
 )
 
@@ -25,7 +26,9 @@ const orderedBatch = 16
 // When done returns an error, or source does, the pipeline stops: yield
 // returns an error from then on (source should return it), items not yet
 // worked on are skipped, done is not called again, and Ordered returns the
-// first of the two errors (done's) once every goroutine has ended.
+// first of the two errors (done's) once every goroutine has ended. A panic
+// in source, work or done stops it too, and is raised again in the calling
+// goroutine once every goroutine has ended, as a *Panic (as For does).
 func Ordered[T, R any](window int, source func(yield func(T) error) error, work func(T) R, done func(T, R) error) error {
 	workers := runtime.GOMAXPROCS(0)
 	batches := max(window/orderedBatch, workers) // batches between yield and done
@@ -45,9 +48,19 @@ func Ordered[T, R any](window int, source func(yield func(T) error) error, work 
 	var stopOnce sync.Once
 	halt := func() { stopOnce.Do(func() { close(stop) }) }
 
+	var panicOnce sync.Once
+	var first *Panic
+	catch := func() {
+		if r := recover(); r != nil {
+			panicOnce.Do(func() { first = &Panic{Value: r, Stack: debug.Stack()} })
+			halt()
+		}
+	}
+
 	var srcErr error
 	go func() {
 		defer close(jobs)
+		defer catch()
 		seq := 0
 		batch := make([]T, 0, orderedBatch)
 		send := func() error {
@@ -92,11 +105,17 @@ func Ordered[T, R any](window int, source func(yield func(T) error) error, work 
 				if stopped() {
 					continue
 				}
-				res := make([]R, len(j.items))
-				for k, it := range j.items {
-					res[k] = work(it)
+				res, ok := make([]R, len(j.items)), false
+				func() {
+					defer catch()
+					for k, it := range j.items {
+						res[k] = work(it)
+					}
+					ok = true
+				}()
+				if ok {
+					results <- result{job: j, res: res}
 				}
-				results <- result{job: j, res: res}
 			}
 		}()
 	}
@@ -108,10 +127,8 @@ func Ordered[T, R any](window int, source func(yield func(T) error) error, work 
 	ring := make([]result, batches)
 	next := 0
 	var doneErr error
-	for r := range results {
-		if stopped() {
-			continue
-		}
+	collect := func(r result) {
+		defer catch()
 		r.ok = true
 		ring[r.seq%batches] = r
 		for !stopped() {
@@ -130,6 +147,14 @@ func Ordered[T, R any](window int, source func(yield func(T) error) error, work 
 			next++
 			<-slots
 		}
+	}
+	for r := range results {
+		if !stopped() {
+			collect(r)
+		}
+	}
+	if first != nil {
+		panic(first)
 	}
 	if doneErr != nil {
 		return doneErr

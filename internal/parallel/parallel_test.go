@@ -3,6 +3,7 @@ package parallel
 import (
 	"errors"
 	"runtime"
+	"strings"
 	"sync/atomic"
 	"testing"
 	"time"
@@ -130,5 +131,72 @@ func TestOrderedErrors(t *testing.T) {
 	}, func(i int) int { return i }, func(i, _ int) error { calls++; return nil })
 	if err != bad || calls > 10 {
 		t.Errorf("source error: got %v after %d calls", err, calls)
+	}
+}
+
+// Common practice, no source: a panic in a job reaches the caller as a
+// *Panic after the other jobs ran, instead of killing the process from a
+// worker goroutine.
+func TestPanicReachesCaller(t *testing.T) {
+	ran := make([]bool, 50)
+	defer func() {
+		r := recover()
+		p, ok := r.(*Panic)
+		if !ok {
+			t.Fatalf("recovered %v (%T), want *Panic", r, r)
+		}
+		if p.Value != "job 7" || !strings.Contains(p.Error(), "job 7") || len(p.Stack) == 0 {
+			t.Errorf("panic value %v, message %q", p.Value, p.Error())
+		}
+		for i, ok := range ran {
+			if i != 7 && !ok {
+				t.Errorf("job %d did not run", i)
+			}
+		}
+	}()
+	For(len(ran), func(i int) {
+		if i == 7 {
+			panic("job 7")
+		}
+		ran[i] = true
+	}, nil)
+	t.Fatal("For returned normally")
+}
+
+// TestOrderedPanic: a panic in work, source or done reaches the caller as
+// a *Panic once the pipeline has stopped, instead of killing the process
+// from a goroutine (common practice, no source).
+func TestOrderedPanic(t *testing.T) {
+	for _, where := range []string{"work", "source", "done"} {
+		func() {
+			defer func() {
+				p, ok := recover().(*Panic)
+				if !ok || p.Value != where {
+					t.Errorf("%s: recovered %v", where, p)
+				}
+			}()
+			Ordered(32, func(yield func(int) error) error {
+				for i := 0; i < 1000; i++ {
+					if where == "source" && i == 500 {
+						panic("source")
+					}
+					if err := yield(i); err != nil {
+						return err
+					}
+				}
+				return nil
+			}, func(i int) int {
+				if where == "work" && i == 300 {
+					panic("work")
+				}
+				return i
+			}, func(i, _ int) error {
+				if where == "done" && i == 100 {
+					panic("done")
+				}
+				return nil
+			})
+			t.Errorf("%s: Ordered returned normally", where)
+		}()
 	}
 }
