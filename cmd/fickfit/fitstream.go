@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bytes"
 	"errors"
 	"fmt"
 	"io"
@@ -122,24 +121,31 @@ func (o *outFlags) emitWhole(c *cobra.Command, d report.Document) error {
 // on in a temporary file.
 const spillLimit = 32 << 20
 
-// spill holds written bytes in memory up to limit, then in a temporary
-// file.
+// spill holds written bytes in memory up to limit, in chunks (no copy as
+// it grows), then in a temporary file.
 type spill struct {
-	limit int
-	mem   bytes.Buffer
-	file  *os.File
+	limit  int
+	chunks [][]byte
+	held   int
+	file   *os.File
 }
 
+// spillChunk is the size of the chunks spill holds in memory.
+const spillChunk = 256 << 10
+
 func (s *spill) Write(p []byte) (int, error) {
-	if s.file == nil && s.mem.Len()+len(p) > s.limit {
+	if s.file == nil && s.held+len(p) > s.limit {
 		f, err := os.CreateTemp("", "fickfit-output-*")
 		if err != nil {
 			return 0, fmt.Errorf("holding the output in a temporary file: %w", err)
 		}
 		s.file = f
-		if _, err := s.mem.WriteTo(f); err != nil {
-			return 0, fmt.Errorf("holding the output in a temporary file: %w", err)
+		for _, c := range s.chunks {
+			if _, err := f.Write(c); err != nil {
+				return 0, fmt.Errorf("holding the output in a temporary file: %w", err)
+			}
 		}
+		s.chunks = nil
 	}
 	if s.file != nil {
 		n, err := s.file.Write(p)
@@ -148,14 +154,28 @@ func (s *spill) Write(p []byte) (int, error) {
 		}
 		return n, err
 	}
-	return s.mem.Write(p)
+	for rest := p; len(rest) > 0; {
+		if len(s.chunks) == 0 || len(s.chunks[len(s.chunks)-1]) == spillChunk {
+			s.chunks = append(s.chunks, make([]byte, 0, spillChunk))
+		}
+		c := &s.chunks[len(s.chunks)-1]
+		n := copy((*c)[len(*c):spillChunk], rest)
+		*c = (*c)[:len(*c)+n]
+		rest = rest[n:]
+	}
+	s.held += len(p)
+	return len(p), nil
 }
 
 // commit copies everything written to w.
 func (s *spill) commit(w io.Writer) error {
 	if s.file == nil {
-		_, err := s.mem.WriteTo(w)
-		return err
+		for _, c := range s.chunks {
+			if _, err := w.Write(c); err != nil {
+				return err
+			}
+		}
+		return nil
 	}
 	if _, err := s.file.Seek(0, io.SeekStart); err != nil {
 		return err

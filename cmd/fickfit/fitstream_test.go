@@ -140,31 +140,41 @@ func TestFitStreamedSameAsWhole(t *testing.T) {
 	}
 }
 
-// TestSpill: output held beyond the memory limit goes through a temporary
-// file and comes out whole.
+// TestSpill: output held in chunks comes out whole; beyond the memory
+// limit it goes through a temporary file, removed afterwards.
 func TestSpill(t *testing.T) {
-	s := &spill{limit: 100}
-	var want strings.Builder
-	for i := 0; i < 50; i++ {
-		line := fmt.Sprintf("row %d\n", i)
-		want.WriteString(line)
-		if _, err := s.Write([]byte(line)); err != nil {
+	for _, limit := range []int{100, 1 << 30} {
+		s := &spill{limit: limit}
+		var want strings.Builder
+		for i := 0; i < 50; i++ {
+			line := fmt.Sprintf("row %d\n", i)
+			if i == 20 {
+				line = strings.Repeat("x", spillChunk+17) + "\n" // across chunks
+			}
+			want.WriteString(line)
+			if _, err := s.Write([]byte(line)); err != nil {
+				t.Fatal(err)
+			}
+		}
+		if (s.file != nil) != (limit == 100) {
+			t.Fatalf("limit %d: spilled to a file: %v", limit, s.file != nil)
+		}
+		name := ""
+		if s.file != nil {
+			name = s.file.Name()
+		}
+		var got strings.Builder
+		if err := s.commit(&got); err != nil {
 			t.Fatal(err)
 		}
-	}
-	if s.file == nil {
-		t.Fatal("nothing spilled beyond the limit")
-	}
-	name := s.file.Name()
-	var got strings.Builder
-	if err := s.commit(&got); err != nil {
-		t.Fatal(err)
-	}
-	s.discard()
-	if got.String() != want.String() {
-		t.Fatalf("got %q", got.String())
-	}
-	if _, err := os.Stat(name); !os.IsNotExist(err) {
-		t.Errorf("temporary file %s left behind", name)
+		s.discard()
+		if got.String() != want.String() {
+			t.Fatalf("limit %d: output differs (%d bytes, want %d)", limit, got.Len(), want.Len())
+		}
+		if name != "" {
+			if _, err := os.Stat(name); !os.IsNotExist(err) {
+				t.Errorf("temporary file %s left behind", name)
+			}
+		}
 	}
 }
