@@ -55,10 +55,10 @@ func (s *rowScanner) next() (fields [][]byte, raw []byte, line int, err error) {
 			}
 			continue
 		}
-		if bytes.IndexByte(content, '"') >= 0 {
-			return nil, b, s.line, nil
+		if fields := s.split(content); fields != nil {
+			return fields, nil, s.line, nil
 		}
-		return s.split(content), nil, s.line, nil
+		return nil, b, s.line, nil // a quote
 	}
 }
 
@@ -75,18 +75,22 @@ func lineContent(b []byte) []byte {
 	return b[:n]
 }
 
-// split splits the content of a line at the separator.
+// split splits the content of a line at the separator, in one pass (the
+// fields of a table row are short: a loop beats a search per field); nil
+// when the line holds a quote.
 func (s *rowScanner) split(content []byte) [][]byte {
 	fields := s.fields[:0]
-	for {
-		i := bytes.IndexByte(content, s.sep)
-		if i < 0 {
-			fields = append(fields, content)
-			break
+	start := 0
+	for i, c := range content {
+		switch c {
+		case s.sep:
+			fields = append(fields, content[start:i])
+			start = i + 1
+		case '"':
+			return nil
 		}
-		fields = append(fields, content[:i])
-		content = content[i+1:]
 	}
+	fields = append(fields, content[start:])
 	s.fields = fields
 	return fields
 }

@@ -65,7 +65,7 @@ func openText(r io.Reader, name string) (*textReader, error) {
 		}
 		t.header = append([]string(nil), rec...)
 	} else {
-		t.header = t.rows.cells(t.rows.split(lineContent([]byte(header))), nil)
+		t.header = t.rows.cells(t.rows.split(lineContent([]byte(header))), nil) // no quote: split gives the fields
 	}
 	if len(t.header) < 2 {
 		return nil, org.errAt(t.headerLine, -1, "", errorf(ErrColumn,
