@@ -10,6 +10,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/cleanup"
 	"github.com/fickfit/fickfit/profile"
 	"github.com/fickfit/fickfit/report"
 )
@@ -128,6 +129,7 @@ type spill struct {
 	chunks [][]byte
 	held   int
 	file   *os.File
+	forget func() // takes the file off the interrupt's cleanup list
 }
 
 // spillChunk is the size of the chunks spill holds in memory.
@@ -135,11 +137,11 @@ const spillChunk = 256 << 10
 
 func (s *spill) Write(p []byte) (int, error) {
 	if s.file == nil && s.held+len(p) > s.limit {
-		f, err := os.CreateTemp("", "fickfit-output-*")
+		f, forget, err := cleanup.CreateTemp("", "fickfit-output-*") // removed on SIGINT/SIGTERM too
 		if err != nil {
 			return 0, fmt.Errorf("holding the output in a temporary file: %w", err)
 		}
-		s.file = f
+		s.file, s.forget = f, forget
 		for _, c := range s.chunks {
 			if _, err := f.Write(c); err != nil {
 				return 0, fmt.Errorf("holding the output in a temporary file: %w", err)
@@ -189,6 +191,7 @@ func (s *spill) discard() {
 	if s.file != nil {
 		s.file.Close()
 		os.Remove(s.file.Name())
+		s.forget()
 		s.file = nil
 	}
 }
