@@ -1,8 +1,6 @@
 package report
 
 import (
-	"bufio"
-	"encoding/json"
 	"io"
 
 	"github.com/fickfit/fickfit/fit"
@@ -31,7 +29,7 @@ func (f Fits) WriteJSON(w io.Writer) error {
 	}, f.Results)
 }
 
-// encodeWithFits writes doc, whose "fits" array is empty, as encodeJSON
+// encodeWithFits writes doc, whose "fits" array is empty, as jsonx.Encode
 // would write it holding the results rs: the results, the bulk of the
 // document, are encoded one at a time (jsonx.EncodeWithArray).
 func encodeWithFits(w io.Writer, doc any, rs []*fit.Result) error {
@@ -63,16 +61,4 @@ func nonNil[T any](s []T) []T {
 		return []T{}
 	}
 	return s
-}
-
-// encodeJSON writes v indented, without HTML escaping, ending in a newline.
-func encodeJSON(w io.Writer, v any) error {
-	bw := bufio.NewWriter(w)
-	enc := json.NewEncoder(bw)
-	enc.SetEscapeHTML(false)
-	enc.SetIndent("", "  ")
-	if err := enc.Encode(v); err != nil {
-		return errorf("writing JSON: %w", err)
-	}
-	return bw.Flush()
 }
