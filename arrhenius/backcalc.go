@@ -330,7 +330,7 @@ func SolveTemperature(obs Observation, cal Calibration, o *SolveOptions) (*Solut
 	}
 	s.rangeWarnings(T)
 	if T > hotLimit {
-		s.warn("implausible-temperature", fmt.Sprintf("The back-calculated temperature %.0f K is above any heat-treatment temperature: check the time, the profile fit and the calibration.", T))
+		s.warn("implausible-temperature", "The back-calculated temperature "+tk(T)+" is above any heat-treatment temperature: check the time, the profile fit and the calibration.")
 	}
 	return s, nil
 }
@@ -452,7 +452,7 @@ func (s *Solution) warn(code, msg string) {
 func (s *Solution) rangeWarnings(T float64) {
 	c := s.Calibration
 	if c.TMin > 0 && c.TMax > 0 && (T < c.TMin-1e-9 || T > c.TMax+1e-9) {
-		s.warn("extrapolation", fmt.Sprintf("%.1f K (%.1f °C) lies outside the calibration's %.1f–%.1f K: the result is an extrapolation of the Arrhenius line and assumes no change of mechanism or phase.", T, celsius(T), c.TMin, c.TMax))
+		s.warn("extrapolation", tk(T)+" lies outside the calibration's range "+tk(c.TMin)+" to "+tk(c.TMax)+": the result is an extrapolation of the Arrhenius line and assumes no change of mechanism or phase.")
 	}
 }
 

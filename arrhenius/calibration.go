@@ -1,6 +1,7 @@
 package arrhenius
 
 import (
+	"github.com/fickfit/fickfit/internal/tempfmt"
 	"math"
 
 	"github.com/fickfit/fickfit/internal/phys"
@@ -171,5 +172,6 @@ func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 var nan = math.NaN()
 
-// celsius converts K to °C for messages only.
-func celsius(T float64) float64 { return T - 273.15 }
+// tk marks an absolute temperature (K) in a message; the writer renders
+// it in the reader's unit (package internal/tempfmt).
+func tk(T float64) string { return tempfmt.Mark(T) }

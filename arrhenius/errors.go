@@ -5,6 +5,7 @@ import (
 	"strings"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 )
 
 // Error is an error from this package. It says what it concerns (file,
@@ -38,8 +39,16 @@ func (e *Error) Error() string {
 		fmt.Fprintf(&b, ": %s", e.Field)
 	}
 	b.WriteString(": ")
-	b.WriteString(e.Msg)
+	b.WriteString(tempfmt.Plain(e.Msg))
 	return b.String()
+}
+
+// Render is Error with the temperatures of the message written by f
+// (the reader's unit) instead of in kelvin.
+func (e *Error) Render(f func(kelvin float64) string) string {
+	c := *e
+	c.Msg = tempfmt.Render(e.Msg, f)
+	return c.Error()
 }
 
 // Unwrap returns the error kind (fit.ErrBadInput or fit.ErrNoAnswer).

@@ -1,6 +1,7 @@
 package arrhenius
 
 import (
+	"github.com/fickfit/fickfit/internal/tempfmt"
 	"math"
 	"strconv"
 
@@ -33,7 +34,7 @@ func checkHistory(h *profile.History) error {
 			return at(i, "time", "time %g is not a number", h.Time[i])
 		}
 		if !finite(h.Temp[i]) || h.Temp[i] <= 0 {
-			return at(i, "temperature", "temperature %g K is not a positive number of kelvin", h.Temp[i])
+			return at(i, "temperature", "temperature %s is not a positive number of kelvin", tempfmt.Kelvin(h.Temp[i]))
 		}
 		if i > 0 && !(h.Time[i] > h.Time[i-1]) {
 			return at(i, "time", "time %g s is not later than the previous row's %g s: the log must be in increasing time order without repeats (sort it, or remove the duplicate row)", h.Time[i], h.Time[i-1])
@@ -209,7 +210,7 @@ func EquivalentTime(h *profile.History, Q, Tref float64) (float64, error) {
 		return 0, badInput("", "Q", "Q = %g J/mol must be a positive number", Q)
 	}
 	if !(Tref > 0) || !finite(Tref) {
-		return 0, badInput("", "reference temperature", "Tref = %g K must be a positive number of kelvin", Tref)
+		return 0, badInput("", "reference temperature", "Tref = %s must be a positive number of kelvin", tempfmt.Kelvin(Tref))
 	}
 	e := integrateLog(h, 0, Q, Shift, 0)
 	return math.Exp(e.lnI + Q/(R*Tref)), nil
@@ -252,7 +253,7 @@ func (e Exposure) lnDt(c Calibration) (lnDt, variance, x float64, err error) {
 			return 0, 0, 0, badInput("", "time", "time %g s must be > 0", e.Time)
 		}
 		if !(e.Temperature > 0) || !finite(e.Temperature) {
-			return 0, 0, 0, badInput("", "temperature", "temperature %g K must be a positive number of kelvin", e.Temperature)
+			return 0, 0, 0, badInput("", "temperature", "temperature %s must be a positive number of kelvin", tempfmt.Kelvin(e.Temperature))
 		}
 		x = 1 / (R * e.Temperature)
 		lnDt = c.LnD0 - c.Q*x + math.Log(e.Time)

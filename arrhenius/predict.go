@@ -1,7 +1,6 @@
 package arrhenius
 
 import (
-	"fmt"
 	"math"
 
 	"github.com/fickfit/fickfit/fit"
@@ -165,7 +164,7 @@ func newPrediction(kind string, cal Calibration, e Exposure, cs, c0 float64, o *
 	}
 	T := p.Temperature.Value
 	if cal.TMin > 0 && cal.TMax > 0 && (T < cal.TMin-1e-9 || T > cal.TMax+1e-9) {
-		p.warn("extrapolation", fmt.Sprintf("%.1f K (%.1f °C) lies outside the calibration's %.1f–%.1f K: the prediction extrapolates the Arrhenius line and assumes no change of mechanism or phase.", T, celsius(T), cal.TMin, cal.TMax))
+		p.warn("extrapolation", tk(T)+" lies outside the calibration's range "+tk(cal.TMin)+" to "+tk(cal.TMax)+": the prediction extrapolates the Arrhenius line and assumes no change of mechanism or phase.")
 	}
 	p.warn("mean-line-band", "The band is that of the mean Arrhenius line (calibration uncertainty); a single part also varies about the line.")
 	return p, lnDt, se, nil

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 	"gonum.org/v1/gonum/stat/distuv"
 )
 
@@ -73,17 +74,17 @@ func checkTemperatures(ids []string, srcs []string, T []float64, coldOK bool) er
 	var cold []string
 	for i, t := range T {
 		if !finite(t) || t <= 0 {
-			e := badInput(ids[i], "temperature", "temperature %g K is not a positive number of kelvin", t)
+			e := badInput(ids[i], "temperature", "temperature %s is not a positive number of kelvin", tempfmt.Kelvin(t))
 			e.Source = srcs[i]
 			return e
 		}
 		if t > hotLimit {
-			e := badInput(ids[i], "temperature", "temperature %g K is above %g K: check the unit (°F read as K?)", t, float64(hotLimit))
+			e := badInput(ids[i], "temperature", "temperature %s is above %s: check the unit (°F read as K?)", tk(t), tempfmt.Kelvin(hotLimit))
 			e.Source = srcs[i]
 			return e
 		}
 		if t < coldLimit && !coldOK {
-			cold = append(cold, fmt.Sprintf("%s (%g)", ids[i], t))
+			cold = append(cold, fmt.Sprintf("%s (%s)", ids[i], tempfmt.Kelvin(t)))
 		}
 	}
 	if len(cold) > 0 {
@@ -279,7 +280,7 @@ func TwoStage(pts []Point, o *Options) (*Line, error) {
 	}
 	nT := distinctTemperatures(T)
 	if nT < 2 {
-		return nil, badInput("", "temperature", "all %d points are at one temperature (%g K); an Arrhenius line needs D at 2 or more distinct temperatures (3 or more for a confidence interval)", n, T[0])
+		return nil, badInput("", "temperature", "all %d points are at one temperature (%s); an Arrhenius line needs D at 2 or more distinct temperatures (3 or more for a confidence interval)", n, tk(T[0]))
 	}
 
 	f := fitEffectiveVariance(x, y, v, T, sT, opt.MaxIter, opt.Tol)

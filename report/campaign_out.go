@@ -139,7 +139,7 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 			writeParts(bw, "  ", []string{groupLabel(*l) + ":", "D0 = " + D0Text(l) + ";", "Q = " + QText(l.Q, l.QCI(), l.Level) + ";",
 				fmt.Sprintf("%d points at %d temperatures;", len(l.Points), l.NTemperatures), "Birge ratio " + Number(l.BirgeRatio, -2)}, " ", o.width())
 			for _, wn := range l.Warnings {
-				writeWrapped(bw, "      ! ", wn.Message, o.width())
+				writeWrapped(bw, "      ! ", warnText(wn, u), o.width())
 			}
 		}
 	}
@@ -148,7 +148,11 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 	}
 	if c := res.Comparison; c != nil {
 		fmt.Fprintf(bw, "\nLot comparison by %s\n", c.By)
-		writeWrapped(bw, "  ", c.Verdict, o.width())
+		writeWrapped(bw, "  ", Temps(c.Verdict, u), o.width())
+		for _, p := range c.Pairs {
+			writeWrapped(bw, "  ", fmt.Sprintf("%s – %s: D(%s) / D(%s) = %s, p = %s, adjusted p = %s (Holm): %s", p.A, p.B, p.B, p.A,
+				ratioText(p.Ratio, p.CI, c.Level), viewP(p.P), viewP(p.PAdjusted), pairVerdict(p)), o.width())
+		}
 		for _, r := range c.Ratios {
 			writeWrapped(bw, "  ", fmt.Sprintf("D(%s) / D(%s) at %s = %s, p = %s", r.Group, r.Reference, Temperature(r.TRef, u),
 				ratioText(r.Value, r.CI, c.Level), Sig(r.P, 2)), o.width())
@@ -166,7 +170,7 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 			writeWrapped(bw, head+": ", PartText(p, u), o.width())
 			if p.Solution != nil {
 				for _, wn := range p.Solution.Warnings {
-					writeWrapped(bw, "      ! ", wn.Message, o.width())
+					writeWrapped(bw, "      ! ", warnText(wn, u), o.width())
 				}
 			}
 		}

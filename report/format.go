@@ -382,8 +382,16 @@ func (u TempUnit) FromKelvin(k float64) float64 { return u.scale().FromKelvin(k)
 // ToKelvin converts a temperature in the unit to K.
 func (u TempUnit) ToKelvin(t float64) float64 { return u.scale().ToKelvin(t) }
 
-// trimmed writes v with at most dec decimals and no trailing zeros.
+// trimmed writes v with at most dec decimals and no trailing zeros; a
+// number beyond 10⁶ in magnitude with three significant digits in powers
+// of ten, and one that is not finite as "n/a" (never "+Inf").
 func trimmed(v float64, dec int) string {
+	if !finite(v) {
+		return "n/a"
+	}
+	if math.Abs(v) >= 1e6 {
+		return Sig(v, DefaultDigits)
+	}
 	s := strconv.FormatFloat(roundAt(v, -dec), 'f', dec, 64)
 	if strings.Contains(s, ".") {
 		s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
@@ -397,7 +405,8 @@ func trimmed(v float64, dec int) string {
 // Temperature writes a given temperature (K) in the user's unit with kelvin
 // beside: "925 °C (1198.15 K)"; in kelvin alone when the unit is K. Values
 // are written to at most two decimals without trailing zeros. 0 (not given)
-// is written "not given".
+// is written "not given"; a temperature beyond 10⁶ K (no solid, a sign of
+// a wrong number) in kelvin alone, "1.00 × 10³⁰⁸ K".
 func Temperature(k float64, u TempUnit) string {
 	if k == 0 {
 		return "not given"
@@ -405,16 +414,20 @@ func Temperature(k float64, u TempUnit) string {
 	if !finite(k) {
 		return "n/a"
 	}
-	if u == Kelvin {
+	if u == Kelvin || math.Abs(k) >= 1e6 {
 		return trimmed(k, 2) + " K"
 	}
 	return trimmed(u.FromKelvin(k), 2) + " " + u.Symbol() + " (" + trimmed(k, 2) + " K)"
 }
 
-// TemperatureShort writes a temperature in the user's unit only: "925 °C".
+// TemperatureShort writes a temperature in the user's unit only: "925 °C"
+// (beyond 10⁶ K in kelvin, as Temperature).
 func TemperatureShort(k float64, u TempUnit) string {
 	if k == 0 {
 		return "not given"
+	}
+	if !finite(k) || math.Abs(k) >= 1e6 {
+		return Temperature(k, Kelvin)
 	}
 	return trimmed(u.FromKelvin(k), 1) + " " + u.Symbol()
 }
@@ -423,6 +436,10 @@ func TemperatureShort(k float64, u TempUnit) string {
 // digits following the interval, in the user's unit with kelvin beside:
 // "931 °C (1204 K), 95 % CI 918–944 °C".
 func TemperatureEstimate(k float64, iv fit.Interval, level float64, u TempUnit) string {
+	if !finite(k) || math.Abs(k) >= 1e6 {
+		// No solid: a wrong number; kelvin alone, in powers of ten.
+		return Estimate(k, iv, level, "K")
+	}
 	// The digits are decided on the kelvin interval; a °F step is smaller,
 	// which the scale factor allows for.
 	last := LastDigit(k, iv)

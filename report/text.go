@@ -210,16 +210,16 @@ func writeResultText(w *bufio.Writer, r *fit.Result, o TextOptions) {
 		w.WriteString(l + "\n")
 		if k := i - 2; k >= 0 && k < len(r.Params) {
 			for _, wn := range byTarget[r.Params[k].Name] {
-				writeWrapped(w, "      ! ", wn.Message, o.width())
+				writeWrapped(w, "      ! ", warnText(wn, o.TempUnit), o.width())
 			}
 		}
 	}
 	writeParts(w, "  ", statsParts(r), " · ", o.width())
 	for _, wn := range byTarget["stats"] {
-		writeWrapped(w, "      ! ", wn.Message, o.width())
+		writeWrapped(w, "      ! ", warnText(wn, o.TempUnit), o.width())
 	}
 	for _, wn := range byTarget[""] {
-		writeWrapped(w, "  ! ", wn.Message, o.width())
+		writeWrapped(w, "  ! ", warnText(wn, o.TempUnit), o.width())
 	}
 	for _, e := range []*fit.DepthEstimate{r.CaseDepth, r.DecarbDepth} {
 		if e != nil {

@@ -11,10 +11,21 @@ import (
 
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 )
 
 // Helpers shared by the text and CSV views of the decision results
 // (arrhenius, backcalc, predict, compare, reference, matano).
+
+// Temps renders the temperature marks of a sentence written by the
+// science packages (internal/tempfmt) in the reader's unit, as
+// Temperature writes them: "925 °C (1198.15 K)".
+func Temps(s string, u TempUnit) string {
+	return tempfmt.Render(s, func(k float64) string { return Temperature(k, u) })
+}
+
+// warnText is a warning's message for people, in the reader's unit.
+func warnText(w fit.Warning, u TempUnit) string { return Temps(w.Message, u) }
 
 // viewLabel is the width of the label column of the text views.
 const viewLabel = 15
@@ -118,7 +129,7 @@ func (t viewText) field(label, text string) {
 // warn writes warnings under the line they concern.
 func (t viewText) warn(ws []fit.Warning) {
 	for _, w := range ws {
-		writeWrapped(t.w, "      ! ", w.Message, t.o.width())
+		writeWrapped(t.w, "      ! ", warnText(w, t.o.TempUnit), t.o.width())
 	}
 }
 

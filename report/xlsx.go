@@ -281,7 +281,7 @@ func (x *xlWriter) summarySheet(res *CampaignReport, u TempUnit) {
 		x.set(s, 16, row, r.Stats.N, x.st.int0)
 		var ws []string
 		for _, w := range r.Warnings {
-			ws = append(ws, w.Message)
+			ws = append(ws, warnText(w, u))
 		}
 		x.set(s, 17, row, strings.Join(ws, "\n"), x.st.text)
 		x.set(s, 18, row, r.Source, 0)
@@ -358,7 +358,7 @@ func (x *xlWriter) profileSheet(s string, r *fit.Result, u TempUnit) {
 	if len(r.Warnings) > 0 {
 		x.set(s, 1, wr, "warnings", x.st.bold)
 		for i, w := range r.Warnings {
-			x.set(s, 1, wr+1+i, w.Message, x.st.note)
+			x.set(s, 1, wr+1+i, warnText(w, u), x.st.note)
 			if x.err == nil {
 				x.err = x.f.MergeCell(s, cell(1, wr+1+i), cell(7, wr+1+i))
 			}
@@ -526,7 +526,7 @@ func (x *xlWriter) arrheniusSheet(res *CampaignReport, u TempUnit) {
 func (x *xlWriter) lotsSheet(res *CampaignReport, u TempUnit) {
 	s := SheetLots
 	c := res.Comparison
-	x.set(s, 1, 1, "Lot comparison by "+c.By+": "+c.Verdict, x.st.title)
+	x.set(s, 1, 1, "Lot comparison by "+c.By+": "+Temps(c.Verdict, u), x.st.title)
 	x.header(s, 3, "test", "description", "F", "df1", "df2", "p")
 	for i, t := range c.Tests {
 		row := 4 + i
@@ -551,6 +551,25 @@ func (x *xlWriter) lotsSheet(res *CampaignReport, u TempUnit) {
 		x.set(s, 7, row, r.CI.Hi, x.st.fixed4)
 		x.set(s, 8, row, r.P, x.st.sci)
 		x.set(s, 9, row, r.Model, 0)
+	}
+	if len(c.Pairs) > 0 {
+		pr := rr + len(c.Ratios) + 2
+		x.header(s, pr, "group A", "group B", "T ("+u.Symbol()+")", "T (K)", "D ratio B/A", "ratio "+level+" CI low", "ratio "+level+" CI high",
+			"p", "p adjusted (Holm)", "differ", "model")
+		for i, p := range c.Pairs {
+			row := pr + 1 + i
+			x.set(s, 1, row, p.A, 0)
+			x.set(s, 2, row, p.B, 0)
+			x.set(s, 3, row, u.FromKelvin(p.TRef), x.st.temp)
+			x.set(s, 4, row, p.TRef, x.st.fixed2)
+			x.set(s, 5, row, p.Ratio, x.st.fixed4)
+			x.set(s, 6, row, p.CI.Lo, x.st.fixed4)
+			x.set(s, 7, row, p.CI.Hi, x.st.fixed4)
+			x.set(s, 8, row, p.P, x.st.sci)
+			x.set(s, 9, row, p.PAdjusted, x.st.sci)
+			x.set(s, 10, row, pairVerdict(p), 0)
+			x.set(s, 11, row, p.Model, 0)
+		}
 	}
 	x.widths(s, 24, 60, 10, 8, 10, 14, 14, 10, 16)
 }
@@ -584,7 +603,7 @@ func (x *xlWriter) partsSheet(res *CampaignReport, u TempUnit) {
 			x.set(s, 12, row, sol.Calibration.Source, x.st.text)
 			var ws []string
 			for _, w := range sol.Warnings {
-				ws = append(ws, w.Message)
+				ws = append(ws, warnText(w, u))
 			}
 			x.set(s, 13, row, strings.Join(ws, "\n"), x.st.text)
 		} else {
