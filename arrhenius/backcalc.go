@@ -125,18 +125,23 @@ type Quantity struct {
 	Method string
 	// Given is true for an input, not a result.
 	Given bool
+	// PI is the prediction interval of a single new part (predictions
+	// only; nil when there is none): CI is the band of the mean line.
+	PI *fit.Interval
 }
 
-// MarshalJSON writes {"value","unit","ci","ci_method"} or {"value","unit","given":true}.
+// MarshalJSON writes {"value","unit","ci","ci_method"} (with
+// "prediction_interval" when there is one) or {"value","unit","given":true}.
 func (q Quantity) MarshalJSON() ([]byte, error) {
 	type out struct {
 		Value  *float64      `json:"value"`
 		Unit   string        `json:"unit"`
 		CI     *fit.Interval `json:"ci,omitempty"`
 		Method string        `json:"ci_method,omitempty"`
+		PI     *fit.Interval `json:"prediction_interval,omitempty"`
 		Given  bool          `json:"given,omitempty"`
 	}
-	o := out{Value: num(q.Value), Unit: q.Unit, Given: q.Given}
+	o := out{Value: num(q.Value), Unit: q.Unit, Given: q.Given, PI: q.PI}
 	if !q.Given {
 		ci := q.CI
 		o.CI, o.Method = &ci, q.Method
@@ -200,14 +205,6 @@ func (s Solution) MarshalJSON() ([]byte, error) {
 		Unit     string   `json:"unit"`
 		StdErrLn *float64 `json:"stderr_ln"`
 	}
-	type cal struct {
-		Method string        `json:"method"`
-		Source string        `json:"source"`
-		D0     float64       `json:"D0"`
-		Q      float64       `json:"Q"`
-		Cov    [2][2]float64 `json:"cov_lnD0_Q"`
-		DOF    int           `json:"dof"`
-	}
 	type adj struct {
 		Mode   string       `json:"mode"`
 		Value  float64      `json:"value"`
@@ -222,8 +219,8 @@ func (s Solution) MarshalJSON() ([]byte, error) {
 		Time        Quantity      `json:"time_s"`
 		Dt          dt            `json:"Dt"`
 		Level       float64       `json:"ci_level"`
-		Calibration cal           `json:"calibration"`
-		MonteCarlo  *MonteCarlo   `json:"monte_carlo,omitempty"`
+		Calibration CalibrationJSON `json:"calibration"`
+		MonteCarlo  *MonteCarlo     `json:"monte_carlo,omitempty"`
 		Adjustment  *adj          `json:"level_adjustment,omitempty"`
 		Warnings    []fit.Warning `json:"warnings"`
 		Cautions    []string      `json:"cautions"`
@@ -231,8 +228,7 @@ func (s Solution) MarshalJSON() ([]byte, error) {
 	o := out{SolveFor: s.SolveFor, ID: s.ID, Temperature: s.Temperature, Time: s.Time,
 		Dt:    dt{Value: math.Exp(s.LnDt), Unit: "m2", StdErrLn: num(math.Sqrt(s.VarLnDt))},
 		Level: s.Level, MonteCarlo: s.MonteCarlo, Warnings: s.Warnings, Cautions: s.Cautions,
-		Calibration: cal{Method: s.Calibration.Method, Source: s.Calibration.Source, D0: s.Calibration.D0(),
-			Q: s.Calibration.Q, Cov: s.Calibration.Cov, DOF: s.Calibration.DOF}}
+		Calibration: s.Calibration.JSON()}
 	if s.Adjustment != nil {
 		a := s.Adjustment
 		o.Adjustment = &adj{Mode: s.AdjustMode, Value: a.Value, Unit: a.Unit, CI: a.CI, Method: a.Method}
@@ -297,6 +293,7 @@ func SolveTemperature(obs Observation, cal Calibration, o *SolveOptions) (*Solut
 		return nil, badInput(obs.ID, "time", "time %g s must be > 0", t)
 	}
 	s := newSolution("temperature", obs, cal, opt)
+	obs.VarLnDt += cal.ExcessVar // a single part scatters about the line as the coupons did
 	s.Time = Quantity{Value: t, Unit: "s", Given: true}
 	y := obs.LnDt - math.Log(t) // ln D of the part
 	xc, b, vb, vq := cal.centered()
@@ -383,6 +380,7 @@ func SolveTime(obs Observation, cal Calibration, o *SolveOptions) (*Solution, er
 		return nil, badInput(obs.ID, "temperature uncertainty", "σ_T = %g K must be a number ≥ 0", sT)
 	}
 	s := newSolution("time", obs, cal, opt)
+	obs.VarLnDt += cal.ExcessVar // a single part scatters about the line as the coupons did
 	s.Temperature = Quantity{Value: T, Unit: "K", Given: true}
 	if obs.Time > 0 {
 		s.warn("time-already-known", fmt.Sprintf("The profile states a hold time of %g s; the solved time ignores it and uses only ln(Dt).", obs.Time))
@@ -440,6 +438,9 @@ func newSolution(what string, obs Observation, cal Calibration, opt SolveOptions
 	}
 	if obs.VarLnDt == 0 {
 		s.warn("observation-without-uncertainty", "The part's Dt carries no uncertainty: the interval covers only the calibration.")
+	}
+	if cal.ExcessVar > 0 {
+		s.warn("part-scatter", fmt.Sprintf("The calibration coupons scatter about their line more than their own profile fits explain (by a standard deviation of %.2g in ln D); a single part is taken to scatter as much, and the interval includes it.", math.Sqrt(cal.ExcessVar)))
 	}
 	return s
 }
@@ -544,6 +545,7 @@ func SolveHistoryLevel(obs Observation, cal Calibration, h *profile.History, mod
 		return nil, noAnswer(obs.ID, "level", "no %s of this log makes ∫D dt equal the measured Dt = %.3g m² within 0–10 000 K: check the log, the profile fit and the calibration", mode, math.Exp(obs.LnDt))
 	}
 	s := newSolution("hold-temperature", obs, cal, opt)
+	obs.VarLnDt += cal.ExcessVar // a single part scatters about the line as the coupons did
 	s.AdjustMode = mode.String()
 	unit := "K"
 	if mode == Scale {

@@ -285,6 +285,12 @@ func TwoStage(pts []Point, o *Options) (*Line, error) {
 
 	f := fitEffectiveVariance(x, y, v, T, sT, opt.MaxIter, opt.Tol)
 	if err := checkQ(f.q, T); err != nil {
+		// Name the point that most likely caused it.
+		if e, ok := err.(*Error); ok && n >= 4 {
+			if ss := suspects(ids, T, y, f.w, influence(x, y, f.w), 1-opt.Level); len(ss) > 0 {
+				e.Msg += ". " + strings.Join(ss, " ")
+			}
+		}
 		return nil, err
 	}
 	l := &Line{Method: "two-stage", Q: f.q, Level: opt.Level, DOF: n - 2, NTemperatures: nT, Iterations: f.iter}
@@ -358,13 +364,13 @@ func (l *Line) standardWarnings(opt Options) []fit.Warning {
 	if l.NTemperatures == 2 {
 		w = append(w, fit.Warning{Code: "two-temperatures", Message: "Only two distinct temperatures: D0 and Q are determined but carry no confidence interval, and the straight line cannot be checked. Measure at a third temperature (3 or more are needed for an interval)."})
 	}
-	if l.Scaled && !opt.Unweighted {
+	if l.Scaled && !opt.Unweighted && l.ChiSqP < 1-l.Level {
 		w = append(w, fit.Warning{Code: "scatter-exceeds-errors", Message: fmt.Sprintf("The points scatter more about the line than their stated errors allow (Birge ratio %.3g, χ² p = %.2g); the intervals were widened by that ratio. Look for a mislabelled temperature, a wrong time, or lot-to-lot differences.", l.BirgeRatio, l.ChiSqP)})
 	}
-	if opt.NoBirge && l.BirgeRatio > 1 {
+	if opt.NoBirge && l.BirgeRatio > 1 && !(l.ChiSqP >= 1-l.Level) {
 		w = append(w, fit.Warning{Code: "scatter-not-scaled", Message: fmt.Sprintf("The points scatter more than their stated errors (Birge ratio %.3g) but the intervals were not widened on request: they are too narrow.", l.BirgeRatio)})
 	}
-	return w
+	return append(w, l.lineDiagnostics()...)
 }
 
 // newBudget splits Var(Q) into temperature and profile parts from the

@@ -116,6 +116,8 @@ var viewSolutionTargets = map[string]string{
 	"observation-without-uncertainty": "Dt",
 	"calibration-without-uncertainty": "calibration",
 	"independent-D0-Q":                "calibration",
+	"part-scatter":                    "calibration",
+	"reference-literature":            "calibration",
 }
 
 func viewSolutionsText(w *bufio.Writer, ss []*arrhenius.Solution, o TextOptions) {

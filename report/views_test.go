@@ -283,7 +283,7 @@ func TestViewTextPredict(t *testing.T) {
 		"Cautions:", arrhenius.Cautions[2])
 	rows := 0
 	for _, line := range strings.Split(out, "\n") {
-		if f := strings.Fields(line); len(f) == 3 && f[0] == "2.00" {
+		if f := strings.Fields(line); len(f) == 4 && f[0] == "2.00" {
 			rows++
 		}
 	}

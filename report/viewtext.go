@@ -239,6 +239,28 @@ func viewLength(m float64, ci fit.Interval, level float64) string {
 	return out
 }
 
+// viewLengthInterval writes an interval of a length (m) in the unit of
+// its value, "0.70–1.02 mm", with the digits the interval supports.
+func viewLengthInterval(m float64, iv fit.Interval) string {
+	f, unit := DepthScale(math.Max(math.Abs(m), math.Abs(iv.Hi)))
+	v, s := m/f, fit.Interval{Lo: iv.Lo / f, Hi: iv.Hi / f}
+	return IntervalAt(v, s, LastDigit(v, s)) + " " + unit
+}
+
+// viewDurationInterval writes an interval of a time (s) in the unit of
+// its value, "5.8–6.7 h".
+func viewDurationInterval(t float64, iv fit.Interval) string {
+	f, unit := 3600.0, "h"
+	switch {
+	case math.Abs(t) < 120:
+		f, unit = 1, "s"
+	case math.Abs(t) < 7200:
+		f, unit = 60, "min"
+	}
+	v, s := t/f, fit.Interval{Lo: iv.Lo / f, Hi: iv.Hi / f}
+	return IntervalAt(v, s, LastDigit(v, s)) + " " + unit
+}
+
 // viewGiven writes a number given by the user (or a table) with the
 // fewest significant digits, at most six, that give it back to a relative
 // 10⁻¹² (so that 2.3e-5 recovered through exp(ln 2.3e-5) is still "2.3").
