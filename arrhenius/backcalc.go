@@ -213,17 +213,17 @@ func (s Solution) MarshalJSON() ([]byte, error) {
 		Method string       `json:"ci_method,omitempty"`
 	}
 	type out struct {
-		SolveFor    string        `json:"solve_for"`
-		ID          string        `json:"id,omitempty"`
-		Temperature Quantity      `json:"temperature_K"`
-		Time        Quantity      `json:"time_s"`
-		Dt          dt            `json:"Dt"`
-		Level       float64       `json:"ci_level"`
+		SolveFor    string          `json:"solve_for"`
+		ID          string          `json:"id,omitempty"`
+		Temperature Quantity        `json:"temperature_K"`
+		Time        Quantity        `json:"time_s"`
+		Dt          dt              `json:"Dt"`
+		Level       float64         `json:"ci_level"`
 		Calibration CalibrationJSON `json:"calibration"`
 		MonteCarlo  *MonteCarlo     `json:"monte_carlo,omitempty"`
-		Adjustment  *adj          `json:"level_adjustment,omitempty"`
-		Warnings    []fit.Warning `json:"warnings"`
-		Cautions    []string      `json:"cautions"`
+		Adjustment  *adj            `json:"level_adjustment,omitempty"`
+		Warnings    []fit.Warning   `json:"warnings"`
+		Cautions    []string        `json:"cautions"`
 	}
 	o := out{SolveFor: s.SolveFor, ID: s.ID, Temperature: s.Temperature, Time: s.Time,
 		Dt:    dt{Value: math.Exp(s.LnDt), Unit: "m2", StdErrLn: num(math.Sqrt(s.VarLnDt))},

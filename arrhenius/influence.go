@@ -212,7 +212,6 @@ func suspects(ids []string, T, y, w []float64, inf []Influence, alpha float64) [
 	return out
 }
 
-
 // lineDiagnostics fills the points' influence and returns the warnings on
 // suspect points, an unusual Q and an interval of Q reaching below zero.
 func (l *Line) lineDiagnostics() []fit.Warning {

@@ -76,20 +76,20 @@ type Prediction struct {
 //	 "warnings":[…],"cautions":[…]}
 func (p Prediction) MarshalJSON() ([]byte, error) {
 	out := struct {
-		Kind        string         `json:"kind"`
-		Temperature Quantity       `json:"temperature_K"`
-		Time        Quantity       `json:"time_s"`
-		History     string         `json:"history,omitempty"`
-		Dt          Quantity       `json:"Dt"`
-		Cs          float64        `json:"Cs"`
-		C0          float64        `json:"C0"`
-		Threshold   *float64       `json:"threshold,omitempty"`
-		CaseDepth   *Quantity      `json:"case_depth_m,omitempty"`
-		Profile     []ProfilePoint `json:"profile,omitempty"`
-		Level       float64        `json:"ci_level"`
+		Kind        string          `json:"kind"`
+		Temperature Quantity        `json:"temperature_K"`
+		Time        Quantity        `json:"time_s"`
+		History     string          `json:"history,omitempty"`
+		Dt          Quantity        `json:"Dt"`
+		Cs          float64         `json:"Cs"`
+		C0          float64         `json:"C0"`
+		Threshold   *float64        `json:"threshold,omitempty"`
+		CaseDepth   *Quantity       `json:"case_depth_m,omitempty"`
+		Profile     []ProfilePoint  `json:"profile,omitempty"`
+		Level       float64         `json:"ci_level"`
 		Calibration CalibrationJSON `json:"calibration"`
-		Warnings    []fit.Warning  `json:"warnings"`
-		Cautions    []string       `json:"cautions"`
+		Warnings    []fit.Warning   `json:"warnings"`
+		Cautions    []string        `json:"cautions"`
 	}{Kind: p.Kind, Temperature: p.Temperature, Time: p.Time, History: p.HistorySource, Dt: p.Dt,
 		Cs: p.Cs, C0: p.C0, CaseDepth: p.CaseDepth, Profile: p.Profile, Level: p.Level,
 		Calibration: p.Calibration.JSON(),
