@@ -430,6 +430,9 @@ func newSolution(what string, obs Observation, cal Calibration, opt SolveOptions
 	if cal.NoInterval {
 		s.warn("no-interval", "The calibration rests on only two temperatures: the result carries no interval. Calibrate at a third temperature.")
 	}
+	if cal.Method == "reference" {
+		s.warn("reference-literature", ReferenceNote)
+	}
 	if !cal.hasCov() && !cal.NoInterval {
 		s.warn("calibration-without-uncertainty", "The calibration carries no uncertainty (reference or explicit values without one): the interval covers only the part's profile fit and is too narrow.")
 	}

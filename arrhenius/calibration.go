@@ -81,7 +81,7 @@ type CalibrationJSON struct {
 // JSON returns the calibration's wire form.
 func (c Calibration) JSON() CalibrationJSON {
 	return CalibrationJSON{Method: c.Method, Source: c.Source, D0: c.D0(), Q: c.Q, Cov: c.Cov, DOF: c.DOF,
-		PartVar: c.PartVar, ExcessVar: c.ExcessVar, Spread: c.Spread}
+		PartVar: c.PartVar, ExcessVar: c.ExcessVar, Spread: tempfmt.Plain(c.Spread)}
 }
 
 // LnD returns ln D at temperature T (K) and its variance from the

@@ -137,6 +137,9 @@ func newPrediction(kind string, cal Calibration, e Exposure, cs, c0 float64, o *
 	}
 	p := &Prediction{Kind: kind, Cs: cs, C0: c0, Level: level, Calibration: cal,
 		Cautions: append([]string(nil), Cautions...), Warnings: []fit.Warning{}, Threshold: nan}
+	if cal.Method == "reference" {
+		p.warn("reference-literature", ReferenceNote)
+	}
 	if e.History != nil {
 		p.HistorySource = e.History.Source
 		p.Temperature = Quantity{Value: tEffOf(x), Unit: "K", Given: true}

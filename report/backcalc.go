@@ -134,6 +134,9 @@ func viewSolutionText(t viewText, s *arrhenius.Solution) {
 	if s.ID != "" {
 		head += ": part " + s.ID
 	}
+	if s.Calibration.Method == "reference" {
+		head += " — from literature values, not this laboratory's calibration"
+	}
 	t.line("", head)
 	by := viewByCode(s.Warnings, viewSolutionTargets)
 	solvedT := s.SolveFor != "time"

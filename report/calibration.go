@@ -105,7 +105,7 @@ func (t viewText) calibration(cal arrhenius.Calibration, ws []fit.Warning) {
 	}
 	writeParts(t.w, strings.Repeat(" ", viewLabel+2), parts, "; ", t.o.width())
 	if cal.Spread != "" {
-		writeWrapped(t.w, strings.Repeat(" ", viewLabel+2), cal.Spread, t.o.width())
+		writeWrapped(t.w, strings.Repeat(" ", viewLabel+2), Temps(cal.Spread, t.o.TempUnit), t.o.width())
 	}
 	t.warn(ws)
 }

@@ -87,6 +87,7 @@ var viewPredictionTargets = map[string]string{
 	"no-interval":                     "Dt",
 	"calibration-without-uncertainty": "calibration",
 	"mean-line-band":                  "Dt",
+	"reference-literature":            "calibration",
 }
 
 func viewPredictionsText(w *bufio.Writer, ps []*arrhenius.Prediction, o TextOptions) {
@@ -114,6 +115,9 @@ func viewPredictionText(t viewText, p *arrhenius.Prediction) {
 		t.line("", "Hold time to reach a case depth at "+hold)
 	default:
 		t.line("", "Prediction ("+p.Kind+"): "+hold)
+	}
+	if p.Calibration.Method == "reference" {
+		t.line("", "  (from literature values, not this laboratory's calibration)")
 	}
 	t.warn(by["hold"])
 	if p.Kind == "time-to-depth" {
