@@ -110,7 +110,8 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 		res.Version, len(res.Profiles), nfiles, len(res.Results), len(res.Failed))
 	level := res.Options.Level
 	tb := Table{Header: []string{"id", "lot", "T", "t", "model", "D (m²/s)", Level(level) + " CI", "R²", "warnings"},
-		Align: []Align{Left, Left, Right, Right, Left, Right, Left, Right, Left}, Indent: "  "}
+		Align: []Align{Left, Left, Right, Right, Left, Right, Left, Right, Left, Left}, Indent: "  "}
+	caseCol := false
 	for _, r := range res.Results {
 		d := r.Param("D")
 		dv, ci := "", ""
@@ -126,6 +127,18 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 			codes = append(codes, wn.Code)
 		}
 		tb.Add(r.ID, r.Lot, TemperatureShort(r.Temperature, u), Duration(r.Time), r.Model, dv, ci, r2Text(r.Stats.R2), strings.Join(codes, ", "))
+		if r.CaseDepth != nil {
+			caseCol = true
+			tb.Rows[len(tb.Rows)-1] = append(tb.Rows[len(tb.Rows)-1], depthShort(r.CaseDepth)+" at "+r.CaseDepth.Threshold)
+		}
+	}
+	if caseCol {
+		tb.Header = append(tb.Header, "case depth, "+Level(level)+" CI")
+		for i := range tb.Rows {
+			for len(tb.Rows[i]) < len(tb.Header) {
+				tb.Rows[i] = append(tb.Rows[i], "")
+			}
+		}
 	}
 	bw.WriteString("Profiles\n")
 	tb.WriteTo(bw)

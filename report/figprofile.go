@@ -111,7 +111,9 @@ func ProfileFigure(r *fit.Result, o FigureOptions) (*Figure, error) {
 	top.Y.Label.Text = valueLabel(r)
 	dataGlyph := draw.GlyphStyle{Color: colData, Radius: 2.6, Shape: ringGlyph{}}
 	fitLine := draw.LineStyle{Color: colFit, Width: 1.4}
+	dmarks := depthMarks(r, f)
 	top.Add(rules{}, plotFunc(func(c draw.Canvas, p *plot.Plot) {
+		drawDepthMarks(c, p, dmarks)
 		if haveBand {
 			band(c, p, sgx, glo, ghi, colBand)
 		}
@@ -180,6 +182,7 @@ func ProfileFigure(r *fit.Result, o FigureOptions) (*Figure, error) {
 	if haveBand {
 		entries = append(entries, legendEntry{level + " confidence band of the curve", bandSymbol(colBand, &fitLine)})
 	}
+	entries = append(entries, depthLegend(dmarks, level)...)
 
 	fig := &Figure{
 		Name:   "profile-" + fileSafe(r.ID),

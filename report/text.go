@@ -234,6 +234,18 @@ func writeResultText(w *bufio.Writer, r *fit.Result, o TextOptions) {
 // writeDepthText writes a case or decarburization depth: from the fitted
 // curve with its interval, and from the points.
 func writeDepthText(w *bufio.Writer, r *fit.Result, e *fit.DepthEstimate, o TextOptions) {
+	head, notes := depthSentence(r, e)
+	writeWrapped(w, "  ", head, o.width())
+	for _, n := range notes {
+		writeWrapped(w, "      · ", n, o.width())
+	}
+}
+
+// depthSentence says a case or decarburization depth in one sentence —
+// the criterion as given and the level it means, the depth from the fitted
+// curve with its interval, and from the points — and returns the notes
+// that go with it (those not already among the profile's warnings).
+func depthSentence(r *fit.Result, e *fit.DepthEstimate) (string, []string) {
 	name := "case depth"
 	if e.Kind == "decarburization" {
 		name = "decarburization depth"
@@ -250,16 +262,36 @@ func writeDepthText(w *bufio.Writer, r *fit.Result, e *fit.DepthEstimate, o Text
 	if finite(e.Level) {
 		level = fmt.Sprintf(" (level %s %s)", Sig(e.Level, 3), e.Unit)
 	}
-	writeWrapped(w, "  ", fmt.Sprintf("%s at %s%s: %s; %s.", name, e.Threshold, level, fitted, data), o.width())
 	said := map[string]bool{}
 	for _, wn := range r.Warnings {
 		said[wn.Message] = true
 	}
+	var notes []string
 	for _, n := range e.Notes {
 		if !said[n] { // the proxy note is already among the warnings
-			writeWrapped(w, "      · ", n, o.width())
+			notes = append(notes, n)
 		}
 	}
+	return fmt.Sprintf("%s at %s%s: %s; %s.", name, e.Threshold, level, fitted, data), notes
+}
+
+// depthShort writes a depth with its interval for a table cell:
+// "0.82 mm (0.79–0.85)", "not reached".
+func depthShort(e *fit.DepthEstimate) string {
+	if e == nil {
+		return ""
+	}
+	if !finite(e.Depth) {
+		return "not reached"
+	}
+	f, unit := DepthScale(math.Max(e.Depth, e.CI.Hi))
+	v, iv := e.Depth/f, fit.Interval{Lo: e.CI.Lo / f, Hi: e.CI.Hi / f}
+	last := LastDigit(v, iv)
+	s := Number(v, last) + " " + unit
+	if finite(iv.Lo) || finite(iv.Hi) {
+		s += " (" + IntervalAt(v, iv, last) + ")"
+	}
+	return s
 }
 
 // DepthInterval writes a depth with its interval in one unit ("0.82 mm,

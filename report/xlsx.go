@@ -249,6 +249,7 @@ func (x *xlWriter) summarySheet(res *CampaignReport, u TempUnit) {
 		"R²", "RMSE", "n", "warnings", "source"}
 	x.header(s, 1, cols...)
 	row := 2
+	hasCase := false
 	for _, r := range res.Results {
 		x.set(s, 1, row, r.ID, 0)
 		x.set(s, 2, row, r.Lot, 0)
@@ -285,7 +286,21 @@ func (x *xlWriter) summarySheet(res *CampaignReport, u TempUnit) {
 		}
 		x.set(s, 17, row, strings.Join(ws, "\n"), x.st.text)
 		x.set(s, 18, row, r.Source, 0)
+		if e := r.CaseDepth; e != nil {
+			hasCase = true
+			x.set(s, 19, row, e.Depth*1e3, x.st.fixed4)
+			x.set(s, 20, row, e.CI.Lo*1e3, x.st.fixed4)
+			x.set(s, 21, row, e.CI.Hi*1e3, x.st.fixed4)
+			x.set(s, 22, row, e.FromData*1e3, x.st.fixed4)
+			x.set(s, 23, row, e.Threshold, 0)
+		}
 		row++
+	}
+	if hasCase {
+		for i, h := range []string{"case depth (mm)", "case depth " + level + " CI low (mm)", "case depth " + level + " CI high (mm)",
+			"case depth from the points (mm)", "case threshold"} {
+			x.set(s, 19+i, 1, h, x.st.header)
+		}
 	}
 	for _, fl := range res.Failed {
 		x.set(s, 1, row, fl.ID, 0)
@@ -353,6 +368,23 @@ func (x *xlWriter) profileSheet(s string, r *fit.Result, u TempUnit) {
 		{"AICc", st.AICc}, {"χ²red", st.Chi2Red}, {"runs test p", st.RunsP}, {"condition number", st.Cond}} {
 		x.set(s, 1, sr+1+i, kv[0], 0)
 		x.set(s, 2, sr+1+i, kv[1], x.st.sci)
+	}
+	for i, e := range []*fit.DepthEstimate{r.CaseDepth, r.DecarbDepth} {
+		if e == nil {
+			continue
+		}
+		name := "case depth"
+		if e.Kind == "decarburization" {
+			name = "decarburization depth"
+		}
+		c := 4 + 2*i
+		x.set(s, c, sr, name+" at "+e.Threshold, x.st.bold)
+		for k, kv := range [][2]any{{"level (" + e.Unit + ")", e.Level}, {"depth (mm)", e.Depth * 1e3},
+			{Level(e.CILevel) + " CI low (mm)", e.CI.Lo * 1e3}, {Level(e.CILevel) + " CI high (mm)", e.CI.Hi * 1e3},
+			{"from the points (mm)", e.FromData * 1e3}} {
+			x.set(s, c, sr+1+k, kv[0], 0)
+			x.set(s, c+1, sr+1+k, kv[1], x.st.fixed4)
+		}
 	}
 	wr := sr + 11
 	if len(r.Warnings) > 0 {

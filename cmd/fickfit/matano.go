@@ -85,12 +85,30 @@ Near the end compositions the method is ill-conditioned and says so.`,
 	return c
 }
 
-// writeMatanoFigures draws each analysis to path (SVG or PNG by extension).
-func writeMatanoFigures(path string, results []*matano.Result, ps []profile.Profile) error {
-	ext := strings.ToLower(filepath.Ext(path))
-	if ext != ".svg" && ext != ".png" {
+// figureExt refuses a --figure path that is not .svg or .png.
+func figureExt(path string) error {
+	if ext := strings.ToLower(filepath.Ext(path)); ext != ".svg" && ext != ".png" {
 		return usagef("--figure %s: name an .svg or .png file", path)
 	}
+	return nil
+}
+
+// writeFigure writes f to path, SVG or PNG by extension, whole or not at all.
+func writeFigure(path string, f *report.Figure) error {
+	return report.WriteFileAtomic(path, func(w io.Writer) error {
+		if strings.EqualFold(filepath.Ext(path), ".png") {
+			return f.WritePNG(w, 0)
+		}
+		return f.WriteSVG(w)
+	})
+}
+
+// writeMatanoFigures draws each analysis to path (SVG or PNG by extension).
+func writeMatanoFigures(path string, results []*matano.Result, ps []profile.Profile) error {
+	if err := figureExt(path); err != nil {
+		return err
+	}
+	ext := strings.ToLower(filepath.Ext(path))
 	for i, r := range results {
 		f, err := report.MatanoFigure(r, &ps[i], report.FigureOptions{})
 		if err != nil {
