@@ -144,6 +144,11 @@ func run(ps []profile.Profile, audit []InputFile, opts Options) (*Result, error)
 		}
 		if u != "" {
 			parts = append(parts, partIdx{i, u})
+			if u == "time" && rs[i] != nil {
+				// The time is what the campaign back-calculates: the fit's
+				// "time missing" warning would only repeat the question.
+				rs[i].Warnings = dropWarning(rs[i].Warnings, "time-missing")
+			}
 			continue
 		}
 		if rs[i] == nil {
@@ -273,6 +278,17 @@ func lineFor(p *profile.Profile, res *Result) (*arrhenius.Line, string, error) {
 		}
 	}
 	return nil, "", fmt.Errorf("there is no Arrhenius line for %s %s (its calibration profiles are missing or could not be fitted)", res.By, g)
+}
+
+// dropWarning returns ws without the warnings of the given code.
+func dropWarning(ws []fit.Warning, code string) []fit.Warning {
+	out := ws[:0:0]
+	for _, w := range ws {
+		if w.Code != code {
+			out = append(out, w)
+		}
+	}
+	return out
 }
 
 // plainError returns an error's message (empty for nil).

@@ -7,6 +7,7 @@ import (
 
 	"github.com/fickfit/fickfit/internal/jsonx"
 	"github.com/fickfit/fickfit/internal/tempfmt"
+	"github.com/fickfit/fickfit/profile"
 )
 
 // Interval is a confidence interval. An open end is NaN (or ±Inf) and is
@@ -184,6 +185,10 @@ type Result struct {
 	// Selection records the model comparison when the model was chosen
 	// automatically (--model auto).
 	Selection *Selection `json:"selection,omitempty"`
+	// BelowLimit lists the values the profile gave as below a detection
+	// limit, left out of the fit (profile.BelowLimit); a warning says so.
+	BelowLimit []profile.BelowLimit `json:"below_limit,omitempty"`
+
 	// CaseDepth and DecarbDepth are filled when asked for (--case-threshold,
 	// --decarb-fraction).
 	CaseDepth   *DepthEstimate `json:"case_depth,omitempty"`

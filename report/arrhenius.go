@@ -15,6 +15,9 @@ import (
 // (arrhenius.LineJSON) or {"by", "groups": […]}.
 type Arrhenius struct {
 	Report *arrhenius.Report
+	// NotUsed are the inputs the lines were fitted without (--keep-going);
+	// written as "not_used" (JSON), a not_used table (CSV) and a list (text).
+	NotUsed []NotUsed
 }
 
 func (a Arrhenius) report() *arrhenius.Report {
@@ -32,23 +35,31 @@ func (a Arrhenius) WriteJSON(w io.Writer) error {
 		return writeJSON(w, struct {
 			envelope
 			arrhenius.LineJSON
-		}{head, r.Lines[0].JSON()})
+			NotUsed []NotUsed `json:"not_used,omitempty"`
+		}{head, r.Lines[0].JSON(), a.NotUsed})
 	}
 	return writeJSON(w, struct {
 		envelope
-		By     string           `json:"by,omitempty"`
-		Groups []arrhenius.Line `json:"groups"`
-	}{head, r.By, nonNil(r.Lines)})
+		By      string           `json:"by,omitempty"`
+		Groups  []arrhenius.Line `json:"groups"`
+		NotUsed []NotUsed        `json:"not_used,omitempty"`
+	}{head, r.By, nonNil(r.Lines), a.NotUsed})
 }
 
 // WriteCSV writes the tables line, point and d_on_line.
 func (a Arrhenius) WriteCSV(w io.Writer) error {
-	return writeCSVTables(w, func(c *viewCSV) { viewReportCSV(c, a.report()) })
+	return writeCSVTables(w, func(c *viewCSV) {
+		viewReportCSV(c, a.report())
+		viewNotUsedCSV(c, a.NotUsed)
+	})
 }
 
 // WriteText writes each line for people, then the cautions of Arrhenius lines.
 func (a Arrhenius) WriteText(w io.Writer, o TextOptions) error {
-	return writeTextWithCautions(w, o, viewLineCautions, false, func(bw *bufio.Writer) { viewReportText(bw, a.report(), o) })
+	return writeTextWithCautions(w, o, viewLineCautions, false, func(bw *bufio.Writer) {
+		viewReportText(bw, a.report(), o)
+		writeNotUsedText(bw, "Not used:", a.NotUsed, o.width())
+	})
 }
 
 // viewLineCautions accompany every Arrhenius line.

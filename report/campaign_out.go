@@ -20,6 +20,7 @@ type campaignDoc struct {
 	Options         campaign.AuditOptions `json:"options"`
 	Fits            []*fit.Result         `json:"fits"`
 	Failed          []fit.Failure         `json:"failed"`
+	NotRead         []NotUsed             `json:"not_read,omitempty"`
 	Arrhenius       arrheniusDoc          `json:"arrhenius"`
 	Comparison      *arrhenius.Comparison `json:"lot_comparison"`
 	ComparisonError string                `json:"lot_comparison_error,omitempty"`
@@ -42,7 +43,7 @@ type arrheniusDoc struct {
 func (res *CampaignReport) WriteJSON(w io.Writer) error {
 	doc := campaignDoc{
 		Version: res.Version, Inputs: nonNil(res.Inputs), Options: res.audit(),
-		Fits: jsonResults(res.Results), Failed: nonNil(res.Failed),
+		Fits: jsonResults(res.Results), Failed: nonNil(res.Failed), NotRead: NotUsedFromSkipped(res.NotRead),
 		Arrhenius:  arrheniusDoc{Method: res.Method, By: res.By, Groups: []arrhenius.Line{}, Failed: nonNil(res.LineErrors)},
 		Comparison: res.Comparison, ComparisonError: res.ComparisonError,
 		Backcalc: nonNil(res.Parts), Notes: nonNil(res.Notes), Cautions: nonNil(res.Cautions),
@@ -98,6 +99,25 @@ func PartText(p campaign.Part, u TempUnit) string {
 	}
 	return "T = " + TemperatureEstimate(s.Temperature.Value, s.Temperature.CI, s.Level, u) + " for " + Duration(s.Time.Value)
 }
+
+// NotUsed lists everything the campaign's results were computed without:
+// inputs not read, profiles not fitted, profiles left out of the
+// calibration (from the notes) and parts not back-calculated.
+func (res *CampaignReport) NotUsed() []NotUsed {
+	out := NotUsedFromSkipped(res.NotRead)
+	out = append(out, NotUsedFromFailures(res.Failed)...)
+	for _, p := range res.Parts {
+		if p.Solution == nil {
+			out = append(out, NotUsed{ID: p.ID, Reason: "not back-calculated: " + p.Error})
+		}
+	}
+	return out
+}
+
+// LeftOut counts the inputs the results were computed without (not read,
+// not fitted, parts not back-calculated): the exit status of a campaign
+// run with --keep-going says whether there were any.
+func (res *CampaignReport) LeftOut() int { return len(res.NotUsed()) }
 
 // WriteSummary writes the short text summary for the terminal: a table of
 // the profiles, the Arrhenius lines, the lot comparison, the back-calculated
@@ -188,6 +208,7 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 			}
 		}
 	}
+	writeNotUsedText(bw, "Not read (left out)", NotUsedFromSkipped(res.NotRead), o.width())
 	if len(res.Notes) > 0 {
 		bw.WriteString("\nNotes\n")
 		for _, n := range res.Notes {

@@ -13,6 +13,8 @@ import (
 // JSON is the comparison's wire form (arrhenius.ComparisonJSON).
 type Comparison struct {
 	Comparison *arrhenius.Comparison
+	// NotUsed are the inputs the comparison was made without (--keep-going).
+	NotUsed []NotUsed
 }
 
 func (c Comparison) comparison() *arrhenius.Comparison {
@@ -27,17 +29,24 @@ func (c Comparison) WriteJSON(w io.Writer) error {
 	return writeJSON(w, struct {
 		envelope
 		arrhenius.ComparisonJSON
-	}{envelope{versionOr("")}, c.comparison().JSON()})
+		NotUsed []NotUsed `json:"not_used,omitempty"`
+	}{envelope{versionOr("")}, c.comparison().JSON(), c.NotUsed})
 }
 
 // WriteCSV writes the tables comparison, test and ratio.
 func (c Comparison) WriteCSV(w io.Writer) error {
-	return writeCSVTables(w, func(t *viewCSV) { viewComparisonCSV(t, c.comparison()) })
+	return writeCSVTables(w, func(t *viewCSV) {
+		viewComparisonCSV(t, c.comparison())
+		viewNotUsedCSV(t, c.NotUsed)
+	})
 }
 
 // WriteText writes the comparison for people, then its cautions.
 func (c Comparison) WriteText(w io.Writer, o TextOptions) error {
-	return writeTextWithCautions(w, o, viewCompareCautions, false, func(bw *bufio.Writer) { viewComparisonText(bw, c.comparison(), o) })
+	return writeTextWithCautions(w, o, viewCompareCautions, false, func(bw *bufio.Writer) {
+		viewComparisonText(bw, c.comparison(), o)
+		writeNotUsedText(bw, "Not used:", c.NotUsed, o.width())
+	})
 }
 
 // viewCompareCautions accompany every lot comparison.

@@ -128,6 +128,22 @@ func (f Fits) WriteCSV(w io.Writer) error {
 			return err
 		}
 	}
+	// Inputs not read (--keep-going): no id, the file as source.
+	for _, n := range f.NotRead {
+		row := make([]string, len(header))
+		row[0] = n.ID
+		for i, h := range header {
+			switch h {
+			case "source":
+				row[i] = n.where()
+			case "error":
+				row[i] = "not read: " + n.Reason
+			}
+		}
+		if err := cw.Write(row); err != nil {
+			return err
+		}
+	}
 	cw.Flush()
 	return cw.Error()
 }

@@ -39,6 +39,8 @@ type htmlLine struct {
 
 type htmlRatio struct{ Text string }
 
+type htmlNotUsed struct{ What, Why string }
+
 type htmlPart struct {
 	ID, Anchor, Lot, Result string
 	Warnings                []string
@@ -61,6 +63,7 @@ type htmlView struct {
 	PairHead              string
 	ComparisonError       string
 	Parts                 []htmlPart
+	NotUsed               []htmlNotUsed
 	PartCautions          []string
 	Notes                 []string
 	Methods               []MethodNote
@@ -255,6 +258,12 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 			}
 		}
 	}
+	for _, n := range res.NotUsed() {
+		v.NotUsed = append(v.NotUsed, htmlNotUsed{n.where(), n.Reason})
+	}
+	for _, n := range res.Notes {
+		v.NotUsed = append(v.NotUsed, htmlNotUsed{"calibration", Temps(n, u)})
+	}
 	for _, p := range res.Parts {
 		hp := htmlPart{ID: p.ID, Anchor: "p-" + fileSafe(p.ID), Lot: p.Lot, Result: PartText(p, u), Failed: p.Solution == nil}
 		if p.Solution != nil {
@@ -339,7 +348,7 @@ footer { margin-top: 3rem; font-size: .8rem; color: var(--muted); border-top: 1p
 <header class="top">
 <h1>{{.Title}}</h1>
 <p class="lead">{{.Lead}}</p>
-<nav class="toc"><a href="#summary">Summary</a>{{if .Lines}}<a href="#arrhenius">Arrhenius</a>{{end}}{{if .Verdict}}<a href="#lots">Lots</a>{{end}}{{if .Parts}}<a href="#parts">Back-calculation</a>{{end}}<a href="#profiles">Profiles</a><a href="#methods">Methods</a><a href="#cautions">Cautions</a><a href="#audit">Audit trail</a></nav>
+<nav class="toc"><a href="#summary">Summary</a>{{if .Lines}}<a href="#arrhenius">Arrhenius</a>{{end}}{{if .Verdict}}<a href="#lots">Lots</a>{{end}}{{if .Parts}}<a href="#parts">Back-calculation</a>{{end}}<a href="#profiles">Profiles</a>{{if .NotUsed}}<a href="#not-used">Not used</a>{{end}}<a href="#methods">Methods</a><a href="#cautions">Cautions</a><a href="#audit">Audit trail</a></nav>
 </header>
 
 <section id="summary">
@@ -407,6 +416,15 @@ footer { margin-top: 3rem; font-size: .8rem; color: var(--muted); border-top: 1p
 </article>
 {{end}}
 </section>
+
+{{if .NotUsed}}
+<section id="not-used">
+<h2>Not used</h2>
+<p>What the results above were computed without, with where and why.</p>
+<table><thead><tr><th>input</th><th>why</th></tr></thead>
+<tbody>{{range .NotUsed}}<tr><td class="mono">{{.What}}</td><td>{{.Why}}</td></tr>{{end}}</tbody></table>
+</section>
+{{end}}
 
 <section id="methods" class="notes">
 <h2>Methods and sources</h2>

@@ -161,6 +161,7 @@ func (f Fits) WriteText(w io.Writer, o TextOptions) error {
 			writeWrapped(bw, "  "+fl.ID+": ", fl.Error, o.width())
 		}
 	}
+	writeNotUsedText(bw, "Not read:", f.NotRead, o.width())
 	if !o.NoCautions {
 		bw.WriteString("\n")
 		writeCautions(bw, fit.Cautions, o.width())

@@ -26,6 +26,7 @@ type campaignFlags struct {
 	tsigma     string
 	refs       []string
 	noPNG      bool
+	keepGoing  bool
 	output     outFlags
 }
 
@@ -62,7 +63,7 @@ func (cf *campaignFlags) options(c *cobra.Command) (campaign.Options, report.Cam
 	progress := stageProgress()
 	ro = report.CampaignOptions{TempUnit: cf.output.unit, Force: cf.force, NoPNG: cf.noPNG, Progress: progress}
 	o = campaign.Options{
-		Fit: fo, By: cf.by, Method: cf.method, References: cf.refs, Version: fickfit.Version, Progress: progress,
+		Fit: fo, By: cf.by, Method: cf.method, References: cf.refs, Version: fickfit.Version, Progress: progress, KeepGoing: cf.keepGoing,
 		Adjust: func(p *profile.Profile) error {
 			ps := []profile.Profile{*p}
 			if err := cf.ff.override(ps); err != nil {
@@ -137,10 +138,17 @@ A rerun with the same inputs gives byte-identical JSON and CSV.`,
 			if err != nil {
 				return err
 			}
-			return finishCampaign(c.OutOrStdout(), cf.out, res, ro)
+			if err := finishCampaign(c.OutOrStdout(), cf.out, res, ro); err != nil {
+				return err
+			}
+			if n := (&report.CampaignReport{Result: res}).LeftOut(); cf.keepGoing && n > 0 {
+				return partialError{n}
+			}
+			return nil
 		},
 	}
 	cf.register(c, "fickfit-report")
+	registerKeepGoing(c, &cf.keepGoing)
 	return c
 }
 

@@ -55,7 +55,10 @@ func usagef(format string, args ...any) error {
 // are 1, everything the user can fix in the input or the command is 2.
 func exitCode(err error) int {
 	var pe *profile.Error
+	var partial partialError
 	switch {
+	case errors.As(err, &partial):
+		return exitPartial
 	case errors.Is(err, fit.ErrNoAnswer):
 		return exitNoAnswer
 	case errors.As(err, &pe), errors.Is(err, fit.ErrBadInput):
