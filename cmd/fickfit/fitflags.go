@@ -156,7 +156,12 @@ func (f *fitFlags) options() (fit.Options, error) {
 		if err != nil {
 			return o, err
 		}
+		if err := cal.SetMargin(f.calMargin); err != nil {
+			return o, usagef("--calibration-margin: %v", err)
+		}
 		f.cal, o.Calibration = cal, cal
+	} else if f.calMargin != "" {
+		return o, usagef("--calibration-margin goes with --hardness-calibration")
 	}
 	if len(f.fix) > 0 {
 		o.Fixed = map[string]float64{}
