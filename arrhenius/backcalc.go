@@ -548,6 +548,7 @@ func SolveHistoryLevel(obs Observation, cal Calibration, h *profile.History, mod
 		return nil, noAnswer(obs.ID, "level", "no %s of this log makes ∫D dt equal the measured Dt = %.3g m² within 0–10 000 K: check the log, the profile fit and the calibration", mode, math.Exp(obs.LnDt))
 	}
 	s := newSolution("hold-temperature", obs, cal, opt)
+	s.Warnings = append(s.Warnings, spikeWarnings(h, cal.Q)...)
 	obs.VarLnDt += cal.ExcessVar // a single part scatters about the line as the coupons did
 	s.AdjustMode = mode.String()
 	unit := "K"

@@ -1,11 +1,11 @@
 package arrhenius
 
 import (
-	"github.com/fickfit/fickfit/internal/tempfmt"
 	"math"
 
 	"github.com/fickfit/fickfit/internal/phys"
 	"github.com/fickfit/fickfit/internal/stats"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 )
 
 // R is the molar gas constant in J mol⁻¹ K⁻¹ (CODATA 2018; exact in the SI

@@ -1,10 +1,12 @@
 package arrhenius
 
 import (
-	"github.com/fickfit/fickfit/internal/tempfmt"
+	"fmt"
 	"math"
 	"strconv"
 
+	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -293,5 +295,82 @@ func WithHistory(p profile.Profile, h *profile.History, Q, Tref float64) (profil
 	out.Meta["history"] = h.Source
 	out.Meta["history_Q_J_per_mol"] = strconv.FormatFloat(Q, 'g', -1, 64)
 	out.Meta["equivalent_time_s"] = strconv.FormatFloat(teq, 'g', -1, 64)
+	out.Notes = append([]profile.Note(nil), p.Notes...)
+	for _, w := range spikeWarnings(h, Q) {
+		out.Notes = append(out.Notes, profile.Note{Code: w.Code, Message: w.Message})
+	}
 	return out, nil
+}
+
+// Spike is a single reading of a log that departs from both neighbours in
+// the same direction by far more than they differ from each other — a
+// thermocouple glitch or a typing error, rarely a real excursion.
+// Expected is the temperature interpolated from the neighbours (K).
+type Spike struct {
+	Index, Line int
+	T, Expected float64
+}
+
+// Thresholds of Spikes (common practice, no source): a controlled furnace
+// does not leave and regain its set point within one logging interval by
+// tens of kelvin while both neighbours agree.
+const (
+	spikeMin    = 30 // K: least departure from the interpolated value
+	spikeFactor = 5  // times the neighbours' own difference
+)
+
+// Spikes finds the single-sample spikes of a log: an interior row whose
+// temperature lies on the same side of both neighbours and departs from
+// the value interpolated between them (linearly in time) by more than
+// spikeMin and more than spikeFactor times the neighbours' own difference.
+// The first and last rows are not judged (a ramp starts and ends there).
+func Spikes(h *profile.History) []Spike {
+	var out []Spike
+	for i := 1; i+1 < len(h.Time); i++ {
+		t0, t1, t2 := h.Time[i-1], h.Time[i], h.Time[i+1]
+		a, b, c := h.Temp[i-1], h.Temp[i], h.Temp[i+1]
+		exp := a + (c-a)*(t1-t0)/(t2-t0)
+		dev := b - exp
+		same := (b-a)*(b-c) > 0
+		if same && math.Abs(dev) > spikeMin && math.Abs(dev) > spikeFactor*math.Abs(c-a) {
+			s := Spike{Index: i, T: b, Expected: exp}
+			if i < len(h.Line) {
+				s.Line = h.Line[i]
+			}
+			out = append(out, s)
+		}
+	}
+	return out
+}
+
+// spikeWarnings says of each spike of the log where it is, what it reads
+// and, for activation energy q (J/mol; none when q ≤ 0), how much it
+// changes ∫D dt against the row replaced by its neighbours' interpolation.
+func spikeWarnings(h *profile.History, q float64) []fit.Warning {
+	sp := Spikes(h)
+	if len(sp) == 0 {
+		return nil
+	}
+	var ws []fit.Warning
+	for _, s := range sp {
+		where := fmt.Sprintf("row %d", s.Index+1)
+		if s.Line > 0 {
+			where = fmt.Sprintf("line %d", s.Line)
+		}
+		msg := fmt.Sprintf("The log %s reads %s at %s, between %s and %s: a single-sample spike (a thermocouple glitch or a typing error?).",
+			h.Source, tk(s.T), where, tk(h.Temp[s.Index-1]), tk(h.Temp[s.Index+1]))
+		if q > 0 && finite(q) {
+			fixed := *h
+			fixed.Temp = append([]float64(nil), h.Temp...)
+			fixed.Temp[s.Index] = s.Expected
+			with := integrateLog(h, 0, q, Shift, 0)
+			without := integrateLog(&fixed, 0, q, Shift, 0)
+			if r := math.Exp(with.lnI - without.lnI); finite(r) {
+				msg += fmt.Sprintf(" With it, ∫D dt is %.3g times what it is with the row interpolated from its neighbours;", r)
+			}
+		}
+		msg += " check the log, and correct or remove the row if the furnace did not do this."
+		ws = append(ws, fit.Warning{Code: "history-spike", Message: msg})
+	}
+	return ws
 }

@@ -141,6 +141,7 @@ func newPrediction(kind string, cal Calibration, e Exposure, cs, c0 float64, o *
 		p.warn("reference-literature", ReferenceNote)
 	}
 	if e.History != nil {
+		p.Warnings = append(p.Warnings, spikeWarnings(e.History, cal.Q)...)
 		p.HistorySource = e.History.Source
 		p.Temperature = Quantity{Value: tEffOf(x), Unit: "K", Given: true}
 		p.Time = Quantity{Value: e.History.Time[len(e.History.Time)-1] - e.History.Time[0], Unit: "s", Given: true}

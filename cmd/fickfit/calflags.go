@@ -27,9 +27,9 @@ func (c *calFlags) register(cmd *cobra.Command) {
 	fl := cmd.Flags()
 	fl.StringVar(&c.file, "calibration", "", "Arrhenius result written by 'fickfit arrhenius --format json' (FILE or FILE:GROUP for one lot)")
 	fl.StringVar(&c.d0, "D0", "", "pre-exponential factor D0 in m²/s (with --Q)")
-	fl.StringVar(&c.q, "Q", "", "activation energy Q: J/mol, or with a unit: 148kJ/mol, 1.53eV")
+	fl.StringVar(&c.q, "Q", "", "activation energy Q with its unit: 148kJ/mol, 148000J/mol, 1.53eV")
 	fl.StringVar(&c.d0u, "D0-stderr", "", "standard uncertainty of D0 in m²/s (optional)")
-	fl.StringVar(&c.qu, "Q-stderr", "", "standard uncertainty of Q (optional, same units as --Q)")
+	fl.StringVar(&c.qu, "Q-stderr", "", "standard uncertainty of Q with its unit (optional, e.g. 5kJ/mol)")
 	fl.Float64Var(&c.corr, "corr", 0, "correlation of ln D0 and Q (optional, with both uncertainties)")
 	fl.StringVar(&c.reference, "reference", "", "a row of the built-in table (see 'fickfit reference')")
 	fl.Float64Var(&c.refSpread, "reference-spread", arrhenius.DefaultSpreadFactor, "with --reference: D of the row known within this factor (one standard uncertainty; 1 = taken as exact)")
@@ -86,6 +86,9 @@ func (c *calFlags) calibration() (arrhenius.Calibration, error) {
 		return arrhenius.Calibration{}, usagef("--D0 %q is not a number (m²/s)", c.d0)
 	}
 	q, err := arrhenius.ParseEnergy(c.q)
+	if err == nil {
+		err = arrhenius.CheckActivationEnergy(q)
+	}
 	if err != nil {
 		return arrhenius.Calibration{}, usagef("--Q: %v", err)
 	}

@@ -99,6 +99,9 @@ func applyHistory(ps []profile.Profile, history, qText, tref string) error {
 		return usagef("--history needs the activation energy --Q to weigh the log's temperatures")
 	}
 	q, err := arrhenius.ParseEnergy(qText)
+	if err == nil {
+		err = arrhenius.CheckActivationEnergy(q)
+	}
 	if err != nil {
 		return usagef("--Q: %v", err)
 	}
