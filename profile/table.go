@@ -218,7 +218,8 @@ func (t *table) depthHint() string {
 		}
 		if _, u := splitHeader(c.name); u != "" {
 			if _, err := LengthUnit(u); err == nil {
-				return fmt.Sprintf("rename %s to %s (the depth column is named depth_<unit> or distance_<unit>)", quote(c.name), quote("depth_"+u))
+				return fmt.Sprintf("rename %s to %s for a depth measured from the surface, or to %s for a position across a diffusion couple's interface (which may be negative)",
+					quote(c.name), quote("depth_"+u), quote("position_"+u))
 			}
 		}
 	}

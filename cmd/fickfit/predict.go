@@ -31,7 +31,7 @@ level Cs, D independent of concentration, a semi-infinite part, the
 calibration's temperature range). Verify by metallography on the first
 parts, let the applicable specifications decide, and defer to local codes
 and licensed engineering judgement.`,
-		Example: `  fickfit predict --calibration line.json:HV-2291 --temperature 925C --time 5h --Cs 1.0 --C0 0.2 --case-threshold 0.35wt% --figure plan.svg
+		Example: `  fickfit predict --calibration line.json:BAR-2291 --temperature 925C --time 5h --Cs 1.0 --C0 0.2 --case-threshold 0.35wt% --figure plan.svg
   fickfit predict --reference C-in-gamma-Fe --temperature 925C --Cs 1.0 --C0 0.2 --case-threshold 0.35wt% --target-depth 0.9mm`,
 		Args: cobra.NoArgs,
 		RunE: func(c *cobra.Command, args []string) error {
