@@ -377,10 +377,13 @@ func LotsFigure(cmp *arrhenius.Comparison, lines []arrhenius.Line, o FigureOptio
 		p.Y.Label.Text = "D / D of " + ref.By + " " + refName + " line"
 	}
 	p.Add(rules{}, plotFunc(func(c draw.Canvas, p *plot.Plot) {
-		_, ty := p.Transforms(&c)
+		tx, ty := p.Transforms(&c)
 		c.StrokeLine2(draw.LineStyle{Color: colMuted, Width: 0.8, Dashes: []vg.Length{4, 2}}, c.Min.X, ty(1), c.Max.X, ty(1))
-		tx, _ := p.Transforms(&c)
-		c.StrokeLine2(draw.LineStyle{Color: colRule, Width: 0.8}, tx(tref), c.Min.Y, tx(tref), c.Max.Y)
+		// The comparison temperature: a dotted line, named at its top.
+		c.StrokeLine2(draw.LineStyle{Color: colRef, Width: 0.7, Dashes: []vg.Length{1.2, 2}}, tx(tref), c.Min.Y, tx(tref), c.Max.Y)
+		ts := textStyle(sizeTick, colMuted, false)
+		ts.XAlign, ts.YAlign = draw.XCenter, draw.YBottom
+		c.FillText(ts, vg.Point{X: tx(tref), Y: c.Max.Y + 2}, TemperatureShort(cmp.Ratios[0].TRef, u))
 	}))
 	var legend []legendEntry
 	offset := 0.012 * span
@@ -398,7 +401,8 @@ func LotsFigure(cmp *arrhenius.Comparison, lines []arrhenius.Line, o FigureOptio
 		}))
 		legend = append(legend, legendEntry{s.name + " (points)", glyphSymbol(g)})
 	}
-	// Estimated ratios at the comparison temperature, bold.
+	// Estimated ratios at the comparison temperature, bold, on its line:
+	// one ratio sits on it, several are set side by side centred on it.
 	for i, r := range cmp.Ratios {
 		gi := 0
 		for k, l := range lines {
@@ -407,9 +411,12 @@ func LotsFigure(cmp *arrhenius.Comparison, lines []arrhenius.Line, o FigureOptio
 			}
 		}
 		col := seriesColor(gi)
-		x := []float64{tref + 0.03*span*float64(i+1)}
+		shift := vg.Length(9) * vg.Length(float64(i)-float64(len(cmp.Ratios)-1)/2)
 		r := r
 		p.Add(plotFunc(func(c draw.Canvas, p *plot.Plot) {
+			// The shift is in drawing units, so that it does not depend on
+			// the temperature span.
+			x := []float64{tref + float64(shift)*(p.X.Max-p.X.Min)/float64(c.Max.X-c.Min.X)}
 			vbars(c, p, x, []float64{r.CI.Lo}, []float64{r.CI.Hi}, draw.LineStyle{Color: col, Width: 2}, 6)
 			marks(c, p, x, []float64{r.Value}, draw.GlyphStyle{Color: col, Radius: 3.6, Shape: diamondGlyph{}})
 		}))
@@ -430,6 +437,7 @@ func LotsFigure(cmp *arrhenius.Comparison, lines []arrhenius.Line, o FigureOptio
 	fig.paint = func(c draw.Canvas) {
 		c = drawTitle(c, "Lot comparison", sub)
 		c = legendBelow(c, legend)
+		c.Max.Y -= 10 // room for the comparison temperature's name
 		p.Draw(c)
 	}
 	return fig, nil

@@ -29,6 +29,11 @@ const (
 	figHeight = 11.5 * vg.Centimeter
 )
 
+// profileBandMin is the least drawn height of a profile's confidence band
+// (points): the fitted line (1.4 pt) with a margin of about 1.5 pt of band
+// on either side, visible on screen and in print.
+const profileBandMin vg.Length = 4.5
+
 // valueLabel is the y-axis label of a profile: "C (wt%)", "hardness (HV0.5)".
 func valueLabel(r *fit.Result) string {
 	q := ""
@@ -112,10 +117,13 @@ func ProfileFigure(r *fit.Result, o FigureOptions) (*Figure, error) {
 	dataGlyph := draw.GlyphStyle{Color: colData, Radius: 2.6, Shape: ringGlyph{}}
 	fitLine := draw.LineStyle{Color: colFit, Width: 1.4}
 	dmarks := depthMarks(r, f)
+	// A band thinner than the curve's line would hide under it: it is drawn
+	// at least profileBandMin tall, and the legend says so when it is.
+	widened := false
 	top.Add(rules{}, plotFunc(func(c draw.Canvas, p *plot.Plot) {
 		drawDepthMarks(c, p, dmarks)
 		if haveBand {
-			band(c, p, sgx, glo, ghi, colBand)
+			widened = bandAtLeast(c, p, sgx, glo, ghi, colBand, profileBandMin)
 		}
 		polyline(c, p, sgx, gy, fitLine)
 		if r.Stats.N > 0 && hasSigma(r) {
@@ -179,10 +187,13 @@ func ProfileFigure(r *fit.Result, o FigureOptions) (*Figure, error) {
 		{"measured", glyphSymbol(dataGlyph)},
 		{"fitted (" + r.Model + ")", lineSymbol(fitLine)},
 	}
-	if haveBand {
-		entries = append(entries, legendEntry{level + " confidence band of the curve", bandSymbol(colBand, &fitLine)})
+	bandEntry := func() legendEntry {
+		label := level + " confidence band of the curve"
+		if widened {
+			label += " (widened to stay visible)"
+		}
+		return legendEntry{label, bandSymbol(colBand, &fitLine)}
 	}
-	entries = append(entries, depthLegend(dmarks, level)...)
 
 	fig := &Figure{
 		Name:   "profile-" + fileSafe(r.ID),
@@ -204,7 +215,12 @@ func ProfileFigure(r *fit.Result, o FigureOptions) (*Figure, error) {
 		ct, cb = alignPair(top, bot, ct, cb)
 		top.Draw(ct)
 		bot.Draw(cb)
-		drawLegend(top.DataCanvas(ct), entries, farHigh, false)
+		legend := entries
+		if haveBand {
+			legend = append(legend[:len(legend):len(legend)], bandEntry())
+		}
+		legend = append(legend[:len(legend):len(legend)], depthLegend(dmarks, level)...)
+		drawLegend(top.DataCanvas(ct), legend, farHigh, false)
 	}
 	return fig, nil
 }

@@ -43,27 +43,46 @@ var (
 	colRule  = rgbHex(0xe2e6e9) // grid rules
 	colData  = rgbHex(0x22606c) // measured points
 	colFit   = rgbHex(0xa4452c) // fitted curves
-	colBand  = tint(colFit, 0.2)
+	colBand  = tint(colFit, 0.3)
 	colRef   = rgbHex(0x7d8a94) // reference-table lines
-	// seriesColors tell groups (lots) apart, in order.
-	seriesColors = []color.NRGBA{rgbHex(0x22606c), rgbHex(0xa4452c), rgbHex(0x5b4b8a), rgbHex(0x8c7318), rgbHex(0x3f4f5c), rgbHex(0x9c5673)}
+	// seriesColors tell groups (lots) apart, in order: eight colours that
+	// stay apart for readers with a colour-vision deficiency. The hue
+	// families are those of the colour set of M. Okabe & K. Ito, Color
+	// Universal Design (CUD): how to make figures and presentations that
+	// are friendly to colorblind people, 2008 (blue, vermillion, bluish
+	// green, reddish purple, orange, sky blue, black), darkened so that each
+	// has a contrast of at least 3:1 on white (thin lines and small marks
+	// stay visible) and shifted by us until every pair differs by ΔE*ab ≥ 14
+	// for normal vision and for simulated protanopia, deuteranopia and
+	// tritanopia (Machado, Oliveira & Fernandes 2009; figure_test.go checks
+	// it). The first two are the house teal and copper; the order puts the
+	// pairs that differ most in lightness early.
+	seriesColors = []color.NRGBA{
+		rgbHex(0x22606c), // teal
+		rgbHex(0xa4452c), // copper
+		rgbHex(0x5c4a9e), // violet
+		rgbHex(0xb88a12), // ochre
+		rgbHex(0x4e8fe0), // sky
+		rgbHex(0x169e6a), // green
+		rgbHex(0x5b4636), // umber
+		rgbHex(0xc46a9c), // rose
+	}
 )
 
+// seriesColor is the colour of group i; groups beyond the eighth repeat
+// the colours (their marker shapes still differ from their namesakes'
+// up to the twelfth).
 func seriesColor(i int) color.NRGBA { return seriesColors[i%len(seriesColors)] }
 
-// seriesGlyph gives each group its own marker shape as well as colour, so
-// that groups stay apart in grey print.
-func seriesGlyph(i int) draw.GlyphDrawer {
-	switch i % 4 {
-	case 1:
-		return draw.BoxGlyph{}
-	case 2:
-		return draw.PyramidGlyph{}
-	case 3:
-		return diamondGlyph{}
-	}
-	return draw.CircleGlyph{}
+// seriesGlyphs give each group its own marker shape as well as colour, so
+// that groups stay apart in grey print: filled circle, square, triangle,
+// diamond, inverted triangle, star, pentagon and cross.
+var seriesGlyphs = []draw.GlyphDrawer{
+	draw.CircleGlyph{}, draw.BoxGlyph{}, polyGlyph{n: 3}, diamondGlyph{}, polyGlyph{n: 3, down: true},
+	polyGlyph{n: 5, star: true}, polyGlyph{n: 5}, crossGlyph{},
 }
+
+func seriesGlyph(i int) draw.GlyphDrawer { return seriesGlyphs[i%len(seriesGlyphs)] }
 
 // Font sizes (points).
 const (
@@ -185,23 +204,63 @@ func stepDecimals(step float64) int {
 	return -12
 }
 
-// logTicks label decades "10⁻¹¹" with unlabelled minor ticks at 2…9; when
-// fewer than two decades fall inside the range, 2× and 5× are labelled too.
+// logTicks label every decade ("10⁻¹¹") and, between decades, 2× and 5×,
+// so that at least three labelled ticks fall in each decade the axis spans
+// and a point can be read against labelled values rather than among bare
+// minor ticks; the other integer multiples get unlabelled minor ticks.
+// Under 1.2 decades 3× and 7× are labelled too; under 0.7 decade the
+// labels fall at even steps (narrowLogTicks). Beyond logWideDecades only decades are
+// labelled: more labels would collide on a figure's axis.
 type logTicks struct{}
 
+// logWideDecades is the widest span (decades) labelled at 1, 2 and 5.
+const logWideDecades = 6
+
+// narrowLogTicks label a logarithmic axis of less than 0.7 decade at even
+// steps (1, 2, 2.5 or 5 times a power of ten, three to six labels), written
+// with the digits the step needs: "1.5 × 10⁻¹⁵".
+func narrowLogTicks(min, max float64) []plot.Tick {
+	// A step of at most a third of the range: three labels or more.
+	step, minor := niceStep((max - min) / 6)
+	last := exp10(step)
+	if m := step / math.Pow(10, float64(last)); math.Abs(m-math.Round(m)) > 1e-6 {
+		last-- // 2.5 × 10ᵏ
+	}
+	var ts []plot.Tick
+	start := math.Ceil(min/minor-1e-9) * minor
+	for i := 0; i <= 1000; i++ {
+		v := start + float64(i)*minor
+		if v > max*(1+1e-9) {
+			break
+		}
+		if k := v / step; math.Abs(k-math.Round(k)) < 1e-6 {
+			v = math.Round(k) * step
+			ts = append(ts, plot.Tick{Value: v, Label: Number(v, last)})
+			continue
+		}
+		ts = append(ts, plot.Tick{Value: v})
+	}
+	return ts
+}
+
 func (logTicks) Ticks(min, max float64) []plot.Tick {
-	if !(min > 0 && max > min) {
+	if !(min > 0 && max > min) || !finite(min) || !finite(max) {
 		return nil
 	}
-	lo, hi := int(math.Floor(math.Log10(min))), int(math.Ceil(math.Log10(max)))
-	inside := 0
-	for e := lo; e <= hi; e++ {
-		if v := math.Pow(10, float64(e)); v >= min && v <= max {
-			inside++
-		}
+	span := math.Log10(max / min)
+	if span < 0.7 {
+		return narrowLogTicks(min, max)
 	}
-	// Less than about half a decade: every integer multiple is labelled.
-	narrow := math.Log10(max/min) < 0.45
+	lo, hi := int(math.Floor(math.Log10(min))), int(math.Ceil(math.Log10(max)))
+	labelled := func(k int) bool {
+		switch {
+		case span < 1.2:
+			return k == 1 || k == 2 || k == 3 || k == 5 || k == 7
+		case span <= logWideDecades:
+			return k == 1 || k == 2 || k == 5
+		}
+		return k == 1
+	}
 	var ts []plot.Tick
 	for e := lo; e <= hi; e++ {
 		base := math.Pow(10, float64(e))
@@ -212,9 +271,10 @@ func (logTicks) Ticks(min, max float64) []plot.Tick {
 			}
 			label := ""
 			switch {
+			case !labelled(k):
 			case k == 1:
 				label = "10" + Superscript(e)
-			case narrow || inside < 2 && (k == 2 || k == 3 || k == 5):
+			default:
 				label = fmt.Sprintf("%d × 10%s", k, Superscript(e))
 			}
 			ts = append(ts, plot.Tick{Value: v, Label: label})
@@ -265,6 +325,14 @@ func polyline(c draw.Canvas, p *plot.Plot, xs, ys []float64, sty draw.LineStyle)
 
 // band fills the area between lo and hi over xs, clipped to the data area.
 func band(c draw.Canvas, p *plot.Plot, xs, lo, hi []float64, col color.Color) {
+	bandAtLeast(c, p, xs, lo, hi, col, 0)
+}
+
+// bandAtLeast is band drawn at least minW tall at every x: where the band
+// is thinner it is widened evenly about its middle, so that a band narrower
+// than the line drawn over it still shows as a margin on both sides. It
+// reports whether it widened the band anywhere.
+func bandAtLeast(c draw.Canvas, p *plot.Plot, xs, lo, hi []float64, col color.Color, minW vg.Length) (widened bool) {
 	tx, ty := p.Transforms(&c)
 	var top, bottom []vg.Point
 	flush := func() {
@@ -285,10 +353,17 @@ func band(c draw.Canvas, p *plot.Plot, xs, lo, hi []float64, col color.Color) {
 		}
 		// Keep far-off values finite on the canvas; clipping does the rest.
 		l, h := clampSpan(p.Y, lo[i]), clampSpan(p.Y, hi[i])
-		top = append(top, vg.Point{X: tx(xs[i]), Y: ty(h)})
-		bottom = append(bottom, vg.Point{X: tx(xs[i]), Y: ty(l)})
+		yl, yh := ty(l), ty(h)
+		if d := yh - yl; d < minW && d > -minW {
+			mid := (yl + yh) / 2
+			yl, yh = mid-minW/2, mid+minW/2
+			widened = true
+		}
+		top = append(top, vg.Point{X: tx(xs[i]), Y: yh})
+		bottom = append(bottom, vg.Point{X: tx(xs[i]), Y: yl})
 	}
 	flush()
+	return widened
 }
 
 // clampSpan limits v to the axis range widened by its own span on each side.
@@ -364,6 +439,72 @@ func (diamondGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) 
 	path.Line(vg.Point{X: pt.X + r, Y: pt.Y})
 	path.Line(vg.Point{X: pt.X, Y: pt.Y - r})
 	path.Line(vg.Point{X: pt.X - r, Y: pt.Y})
+	path.Close()
+	c.Fill(path)
+}
+
+// polyGlyph is a filled regular polygon (point up, or down), or a star
+// of n points, of about the area of a circle glyph of the same radius.
+type polyGlyph struct {
+	n          int
+	down, star bool
+}
+
+func (g polyGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	c.SetColor(sty.Color)
+	r := float64(sty.Radius) * 1.3
+	if g.star {
+		r *= 1.25
+	}
+	k, start := g.n, math.Pi/2
+	if g.down {
+		start = -math.Pi / 2
+	}
+	if g.star {
+		k = 2 * g.n
+	}
+	var path vg.Path
+	for i := 0; i < k; i++ {
+		ri := r
+		if g.star && i%2 == 1 {
+			ri = r * 0.45
+		}
+		a := start + 2*math.Pi*float64(i)/float64(k)
+		p := vg.Point{X: pt.X + vg.Length(ri*math.Cos(a)), Y: pt.Y + vg.Length(ri*math.Sin(a))}
+		if i == 0 {
+			path.Move(p)
+		} else {
+			path.Line(p)
+		}
+	}
+	path.Close()
+	c.Fill(path)
+}
+
+// crossGlyph is a filled diagonal cross (an "x" with thick arms).
+type crossGlyph struct{}
+
+func (crossGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	c.SetColor(sty.Color)
+	r, w := float64(sty.Radius)*1.25, float64(sty.Radius)*0.42
+	var path vg.Path
+	for i := 0; i < 4; i++ {
+		a := math.Pi/4 + math.Pi/2*float64(i)
+		cos, sin := math.Cos(a), math.Sin(a)
+		// Each arm: out along a, across by ±w, back to the centre notch.
+		pts := []vg.Point{
+			{X: pt.X + vg.Length(w*math.Cos(a-math.Pi/4)*math.Sqrt2), Y: pt.Y + vg.Length(w*math.Sin(a-math.Pi/4)*math.Sqrt2)},
+			{X: pt.X + vg.Length(r*cos+w*sin), Y: pt.Y + vg.Length(r*sin-w*cos)},
+			{X: pt.X + vg.Length(r*cos-w*sin), Y: pt.Y + vg.Length(r*sin+w*cos)},
+		}
+		for j, p := range pts {
+			if i == 0 && j == 0 {
+				path.Move(p)
+			} else {
+				path.Line(p)
+			}
+		}
+	}
 	path.Close()
 	c.Fill(path)
 }

@@ -56,13 +56,7 @@ func formatParam(e fit.Estimate) paramText {
 			v, se, iv, unit = v/f, se/f, fit.Interval{Lo: iv.Lo / f, Hi: iv.Hi / f}, u
 		}
 	}
-	last := LastDigit(v, iv)
-	if e.Fixed {
-		last = SigDigits(v, DefaultDigits)
-		if v == 0 {
-			last = 0
-		}
-	}
+	last := paramLast(v, iv, e.Fixed)
 	pt.Value = Number(v, last)
 	if u := PrettyUnit(unit); u != "" {
 		pt.Value += " " + u
@@ -81,6 +75,20 @@ func formatParam(e fit.Estimate) paramText {
 	}
 	pt.CI = IntervalAt(v, iv, last)
 	return pt
+}
+
+// paramLast is the decimal place of the last digit shown of a parameter's
+// value: the interval's (LastDigit), or DefaultDigits significant digits
+// for a fixed parameter (0 for a fixed 0). The text views, the HTML report
+// and the workbook's number formats all take it from here.
+func paramLast(v float64, iv fit.Interval, fixed bool) int {
+	if !fixed {
+		return LastDigit(v, iv)
+	}
+	if v == 0 {
+		return 0
+	}
+	return SigDigits(v, DefaultDigits)
 }
 
 // statsParts lists the statistics of a fit, each "name value".

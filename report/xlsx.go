@@ -77,6 +77,8 @@ func colName(col int) string {
 // xlStyles are the workbook's cell styles.
 type xlStyles struct {
 	header, title, note, sci, fixed2, fixed4, int0, text, temp, bold int
+	// byFormat holds the styles made for number formats (numStyle).
+	byFormat map[string]int
 }
 
 func newXLStyles(f *excelize.File) (xlStyles, error) {
@@ -107,6 +109,7 @@ func newXLStyles(f *excelize.File) (xlStyles, error) {
 	s.text = mk(&excelize.Style{Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}})
 	s.temp = mk(&excelize.Style{CustomNumFmt: &t1})
 	s.bold = mk(&excelize.Style{Font: font(true, 11, "1D2A33")})
+	s.byFormat = map[string]int{}
 	return s, err
 }
 
@@ -115,6 +118,9 @@ type xlWriter struct {
 	f   *excelize.File
 	st  xlStyles
 	err error
+	// charts counts the charts added; version is the program's, for footers.
+	charts  int
+	version string
 }
 
 func (x *xlWriter) set(sheet string, col, row int, v any, style int) {
@@ -138,6 +144,14 @@ func (x *xlWriter) set(sheet string, col, row int, v any, style int) {
 func (x *xlWriter) header(sheet string, row int, cols ...string) {
 	for i, c := range cols {
 		x.set(sheet, i+1, row, c, x.st.header)
+	}
+}
+
+// twoLines makes a row two lines tall: header cells wrap, and spreadsheet
+// programs do not all grow a row to fit its wrapped text.
+func (x *xlWriter) twoLines(sheet string, row int) {
+	if x.err == nil {
+		x.err = x.f.SetRowHeight(sheet, row, 30)
 	}
 }
 
@@ -186,7 +200,7 @@ func (res *CampaignReport) WriteWorkbook(w io.Writer, o CampaignOptions) error {
 	if err != nil {
 		return err
 	}
-	x := &xlWriter{f: f, st: st}
+	x := &xlWriter{f: f, st: st, version: res.Version}
 	names := newSheetNamer(SheetSummary, SheetArrhenius, SheetLots, SheetParts, SheetAudit)
 	if err := f.SetSheetName("Sheet1", SheetSummary); err != nil {
 		return err
@@ -248,6 +262,7 @@ func (x *xlWriter) summarySheet(res *CampaignReport, u TempUnit) {
 		"D " + level + " CI low (m²/s)", "D " + level + " CI high (m²/s)", "Dt (m²)", "Cs", "C0", "value unit",
 		"R²", "RMSE", "n", "warnings", "source"}
 	x.header(s, 1, cols...)
+	x.twoLines(s, 1)
 	row := 2
 	hasCase := false
 	for _, r := range res.Results {
@@ -262,23 +277,24 @@ func (x *xlWriter) summarySheet(res *CampaignReport, u TempUnit) {
 		}
 		x.set(s, 6, row, r.Model, 0)
 		if d := r.Param("D"); d != nil {
+			ds := x.dStyle(d.Value, d.CI)
 			if r.Time > 0 {
-				x.set(s, 7, row, d.Value, x.st.sci)
-				x.set(s, 8, row, d.CI.Lo, x.st.sci)
-				x.set(s, 9, row, d.CI.Hi, x.st.sci)
-				x.set(s, 10, row, d.Value*r.Time, x.st.sci)
+				x.set(s, 7, row, d.Value, ds)
+				x.set(s, 8, row, d.CI.Lo, ds)
+				x.set(s, 9, row, d.CI.Hi, ds)
+				x.set(s, 10, row, d.Value*r.Time, ds)
 			} else {
-				x.set(s, 10, row, d.Value, x.st.sci)
+				x.set(s, 10, row, d.Value, ds)
 			}
 		}
 		for k, name := range []string{"Cs", "C0"} {
 			if e := r.Param(name); e != nil {
-				x.set(s, 11+k, row, e.Value, x.st.fixed4)
+				x.set(s, 11+k, row, e.Value, x.num(e.Value, paramLast(e.Value, e.CI, e.Fixed)))
 			}
 		}
 		x.set(s, 13, row, r.ValueUnit, 0)
 		x.set(s, 14, row, r.Stats.R2, x.st.fixed4)
-		x.set(s, 15, row, r.Stats.RMSE, x.st.sci)
+		x.set(s, 15, row, r.Stats.RMSE, x.sig(r.Stats.RMSE, 2))
 		x.set(s, 16, row, r.Stats.N, x.st.int0)
 		var ws []string
 		for _, w := range r.Warnings {
@@ -288,10 +304,11 @@ func (x *xlWriter) summarySheet(res *CampaignReport, u TempUnit) {
 		x.set(s, 18, row, r.Source, 0)
 		if e := r.CaseDepth; e != nil {
 			hasCase = true
-			x.set(s, 19, row, e.Depth*1e3, x.st.fixed4)
-			x.set(s, 20, row, e.CI.Lo*1e3, x.st.fixed4)
-			x.set(s, 21, row, e.CI.Hi*1e3, x.st.fixed4)
-			x.set(s, 22, row, e.FromData*1e3, x.st.fixed4)
+			mm := x.num(e.Depth*1e3, LastDigit(e.Depth*1e3, fit.Interval{Lo: e.CI.Lo * 1e3, Hi: e.CI.Hi * 1e3}))
+			x.set(s, 19, row, e.Depth*1e3, mm)
+			x.set(s, 20, row, e.CI.Lo*1e3, mm)
+			x.set(s, 21, row, e.CI.Hi*1e3, mm)
+			x.set(s, 22, row, e.FromData*1e3, x.sig(e.FromData*1e3, 4))
 			x.set(s, 23, row, e.Threshold, 0)
 		}
 		row++
@@ -309,11 +326,17 @@ func (x *xlWriter) summarySheet(res *CampaignReport, u TempUnit) {
 		x.set(s, 18, row, fl.Source, 0)
 		row++
 	}
-	x.widths(s, 18, 11, 9, 9, 7, 8, 12, 14, 14, 12, 9, 9, 8, 8, 11, 5, 60, 30)
+	x.widths(s, 18, 11, 9, 9, 7, 8, 12, 14, 14, 12, 9, 9, 8, 8, 11, 5, 48, 28)
 	x.freeze(s, 1)
 	if x.err == nil && row > 2 {
 		x.err = x.f.AutoFilter(s, "A1:"+cell(len(cols), row-1), nil)
 	}
+	// After the filter, which rewrites the sheet's properties.
+	lastCol := len(cols)
+	if hasCase {
+		lastCol = 23
+	}
+	x.pageSetup(s, lastCol, max(row-1, 1), true, 0, 1)
 }
 
 func (x *xlWriter) profileSheet(s string, r *fit.Result, u TempUnit) {
@@ -338,37 +361,69 @@ func (x *xlWriter) profileSheet(s string, r *fit.Result, u TempUnit) {
 		}
 		x.set(s, 2, 2+i, m[1], style)
 	}
-	// Parameters.
+	// Depths of the sheet (data columns, positions among the parameters).
+	xmax := 0.0
+	for _, p := range r.Residuals {
+		xmax = math.Max(xmax, p.Depth)
+	}
+	f, du := DepthScale(xmax * 1.05)
+
+	// Parameters, with the digits the text and HTML reports give them:
+	// D and Dt scientific, positions in the sheet's depth unit, levels and
+	// the rest fixed or scientific as their intervals allow.
 	pr := 10
 	x.header(s, pr, "parameter", "value", "unit", "std. error", Level(r.CILevel)+" CI low", Level(r.CILevel)+" CI high", "fixed")
 	for i, e := range r.Params {
 		row := pr + 1 + i
-		style := x.st.fixed4
-		if e.Unit == "m2/s" || e.Unit == "m2" || e.Unit == "m" || e.Unit == "m/s" {
-			style = x.st.sci
+		v, iv, se, unit := e.Value, e.CI, e.StdErr, PrettyUnit(e.Unit)
+		if e.Unit == "m" {
+			v, iv, se, unit = v/f, fit.Interval{Lo: iv.Lo / f, Hi: iv.Hi / f}, se/f, du
+		}
+		style := x.num(v, paramLast(v, iv, e.Fixed))
+		if e.Unit == "m2/s" || e.Unit == "m2" {
+			style = x.dStyle(v, iv)
 		}
 		name := e.Name
 		if name == "D" && r.Time == 0 {
 			name = "Dt"
 		}
 		x.set(s, 1, row, name, 0)
-		x.set(s, 2, row, e.Value, style)
-		x.set(s, 3, row, PrettyUnit(e.Unit), 0)
+		x.set(s, 2, row, v, style)
+		x.set(s, 3, row, unit, 0)
 		if !e.Fixed {
-			x.set(s, 4, row, e.StdErr, style)
-			x.set(s, 5, row, e.CI.Lo, style)
-			x.set(s, 6, row, e.CI.Hi, style)
+			x.set(s, 4, row, se, x.sig(se, 2))
+			x.set(s, 5, row, iv.Lo, style)
+			x.set(s, 6, row, iv.Hi, style)
 		}
-		x.set(s, 7, row, e.Fixed, 0)
+		fixed := "no"
+		if e.Fixed {
+			fixed = "yes"
+		}
+		x.set(s, 7, row, fixed, 0)
 	}
 	st := r.Stats
 	sr := pr + len(r.Params) + 2
 	x.set(s, 1, sr, "statistics", x.st.bold)
-	for i, kv := range [][2]any{{"n", float64(st.N)}, {"dof", float64(st.DOF)}, {"RSS", st.RSS}, {"RMSE", st.RMSE}, {"R²", st.R2},
-		{"AICc", st.AICc}, {"χ²red", st.Chi2Red}, {"runs test p", st.RunsP}, {"condition number", st.Cond}} {
-		x.set(s, 1, sr+1+i, kv[0], 0)
-		x.set(s, 2, sr+1+i, kv[1], x.st.sci)
+	// Counts as integers; the rest with the digits of the HTML report.
+	type statRow struct {
+		name  string
+		v     any
+		style int
 	}
+	stats := []statRow{
+		{"n", st.N, x.st.int0}, {"dof", st.DOF, x.st.int0}, {"iterations", st.Iterations, x.st.int0},
+		{"RSS", st.RSS, x.sig(st.RSS, 2)}, {"RMSE", st.RMSE, x.sig(st.RMSE, 2)}, {"R²", st.R2, x.st.fixed4},
+		{"AICc", st.AICc, x.num(st.AICc, -1)}, {"χ²red", st.Chi2Red, x.sig(st.Chi2Red, 2)},
+	}
+	if finite(st.Chi2P) {
+		stats = append(stats, statRow{"P(χ²)", st.Chi2P, x.sig(st.Chi2P, 2)})
+	}
+	stats = append(stats, statRow{"runs test p", st.RunsP, x.sig(st.RunsP, 2)}, statRow{"condition number", st.Cond, x.sig(st.Cond, 2)})
+	for i, kv := range stats {
+		x.set(s, 1, sr+1+i, kv.name, 0)
+		x.set(s, 2, sr+1+i, kv.v, kv.style)
+	}
+	wr := sr + len(stats) + 2
 	for i, e := range []*fit.DepthEstimate{r.CaseDepth, r.DecarbDepth} {
 		if e == nil {
 			continue
@@ -386,7 +441,6 @@ func (x *xlWriter) profileSheet(s string, r *fit.Result, u TempUnit) {
 			x.set(s, c+1, sr+1+k, kv[1], x.st.fixed4)
 		}
 	}
-	wr := sr + 11
 	if len(r.Warnings) > 0 {
 		x.set(s, 1, wr, "warnings", x.st.bold)
 		for i, w := range r.Warnings {
@@ -401,11 +455,6 @@ func (x *xlWriter) profileSheet(s string, r *fit.Result, u TempUnit) {
 	}
 
 	// Data columns beside the block: depth, observed, fitted, residual.
-	xmax := 0.0
-	for _, p := range r.Residuals {
-		xmax = math.Max(xmax, p.Depth)
-	}
-	f, du := DepthScale(xmax * 1.05)
 	vu := r.ValueUnit
 	if vu == "" {
 		vu = "value"
@@ -417,14 +466,23 @@ func (x *xlWriter) profileSheet(s string, r *fit.Result, u TempUnit) {
 			x.set(s, dc+i, 1, h, x.st.header)
 		}
 	}
+	// Measured depths and values with the decimals they were recorded with;
+	// computed values (fitted, residual, curve, band) with one more.
+	n := len(r.Residuals)
+	depths, obs := make([]float64, n), make([]float64, n)
+	for i, p := range r.Residuals {
+		depths[i], obs[i] = p.Depth/f, p.Observed
+	}
+	dDec, vDec := dataDecimals(depths, 4), dataDecimals(obs, 5)
+	depthSt, obsSt := x.numStyle(fixedFmt(dDec)), x.numStyle(fixedFmt(vDec))
+	calcSt, gridSt := x.numStyle(fixedFmt(vDec+1)), x.numStyle(fixedFmt(dDec+1))
 	for i, p := range r.Residuals {
 		row := 2 + i
-		x.set(s, dc, row, p.Depth/f, x.st.fixed4)
-		x.set(s, dc+1, row, p.Observed, x.st.fixed4)
-		x.set(s, dc+2, row, p.Fitted, x.st.fixed4)
-		x.set(s, dc+3, row, p.Residual, x.st.sci)
+		x.set(s, dc, row, depths[i], depthSt)
+		x.set(s, dc+1, row, p.Observed, obsSt)
+		x.set(s, dc+2, row, p.Fitted, calcSt)
+		x.set(s, dc+3, row, p.Residual, calcSt)
 	}
-	n := len(r.Residuals)
 	const m = 61
 	gx := make([]float64, m)
 	for i := range gx {
@@ -433,46 +491,65 @@ func (x *xlWriter) profileSheet(s string, r *fit.Result, u TempUnit) {
 	gy, lo, hi, cerr := r.Curve(gx)
 	if cerr == nil {
 		for i := range gx {
-			x.set(s, dc+5, 2+i, gx[i]/f, x.st.fixed4)
-			x.set(s, dc+6, 2+i, gy[i], x.st.fixed4)
-			x.set(s, dc+7, 2+i, lo[i], x.st.fixed4)
-			x.set(s, dc+8, 2+i, hi[i], x.st.fixed4)
+			x.set(s, dc+5, 2+i, gx[i]/f, gridSt)
+			x.set(s, dc+6, 2+i, gy[i], calcSt)
+			x.set(s, dc+7, 2+i, lo[i], calcSt)
+			x.set(s, dc+8, 2+i, hi[i], calcSt)
 		}
 	}
 	x.widths(s, 20, 26, 10, 12, 12, 12, 8, 2, 12, 14, 14, 14, 2, 14, 16, 14, 14)
+	chartRow := wr + len(r.Warnings) + 2
+	// Printed: the sheet's block, its chart and the measured data (columns
+	// A–L) on one page; the curve's grid (N–Q) is the chart's source and is
+	// left out. A long profile runs on over further pages, the chart kept
+	// whole on the first.
+	last := max(chartRow+chartPrintRows(profileChartPx), n+1)
+	tall := 1
+	if last > profileOnePageRows {
+		tall = 0
+		x.pageBreakAfter(s, chartRow+chartPrintRows(profileChartPx))
+	}
+	x.pageSetup(s, dc+3, last, true, tall, 1)
 	if x.err != nil || n == 0 {
 		return
 	}
 	// Series names refer to header cells: a literal name would be stored
-	// as a formula, which spreadsheet programs reject.
+	// as a formula, which spreadsheet programs reject. Every series states
+	// its marker and line in full: spreadsheet programs differ in what they
+	// assume for what is left out (LibreOffice draws a marker in its fill
+	// colour only, so a white-filled "open" marker vanishes).
 	name := func(col int) string { return fmt.Sprintf("%s!$%s$1", quoteSheet(s), colName(col)) }
+	noMarker := excelize.ChartMarker{Symbol: "none"}
 	series := []excelize.ChartSeries{{
 		Name: name(dc + 1), Categories: rng(s, dc, 2, n+1), Values: rng(s, dc+1, 2, n+1),
-		Marker: excelize.ChartMarker{Symbol: "circle", Size: 5, Fill: solid("FFFFFF"), Border: excelize.LineOptions{Type: excelize.LineSolid, Fill: solid(xlHex(colData)), Width: 1}},
-		Line:   excelize.LineOptions{Type: excelize.LineNone}, Fill: solid(xlHex(colData)),
+		Marker: excelize.ChartMarker{Symbol: "circle", Size: 6, Fill: solid(xlHex(colData)),
+			Border: excelize.LineOptions{Type: excelize.LineSolid, Fill: solid(xlHex(colData)), Width: 0.75}},
+		Line: excelize.LineOptions{Type: excelize.LineNone}, Fill: solid(xlHex(colData)),
 	}}
 	if cerr == nil {
+		// The band's ends over the curve, thin and dark enough to be seen
+		// where the band is narrower than the curve's line.
+		bandLine := excelize.LineOptions{Type: excelize.LineSolid, Width: 1, Dash: excelize.LineDashDash}
 		series = append(series,
 			excelize.ChartSeries{Name: name(dc + 6), Categories: rng(s, dc+5, 2, m+1), Values: rng(s, dc+6, 2, m+1),
-				Marker: excelize.ChartMarker{Symbol: "none"}, Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 1.75, Smooth: true}, Fill: solid(xlHex(colFit))},
+				Marker: noMarker, Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 1.5}, Fill: solid(xlHex(colFit))},
 			excelize.ChartSeries{Name: name(dc + 7), Categories: rng(s, dc+5, 2, m+1), Values: rng(s, dc+7, 2, m+1),
-				Marker: excelize.ChartMarker{Symbol: "none"}, Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 0.75, Dash: excelize.LineDashDash, Smooth: true}, Fill: solid(xlHex(tint(colFit, 0.55)))},
+				Marker: noMarker, Line: bandLine, Fill: solid(xlHex(colBandLine))},
 			excelize.ChartSeries{Name: name(dc + 8), Categories: rng(s, dc+5, 2, m+1), Values: rng(s, dc+8, 2, m+1),
-				Marker: excelize.ChartMarker{Symbol: "none"}, Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 0.75, Dash: excelize.LineDashDash, Smooth: true}, Fill: solid(xlHex(tint(colFit, 0.55)))},
+				Marker: noMarker, Line: bandLine, Fill: solid(xlHex(colBandLine))},
 		)
 	} else {
 		series = append(series, excelize.ChartSeries{Name: name(dc + 2), Categories: rng(s, dc, 2, n+1), Values: rng(s, dc+2, 2, n+1),
-			Marker: excelize.ChartMarker{Symbol: "none"}, Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 1.75}, Fill: solid(xlHex(colFit))})
+			Marker: noMarker, Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 1.5}, Fill: solid(xlHex(colFit))})
 	}
 	zero := 0.0
-	x.err = x.f.AddChart(s, cell(1, wr+len(r.Warnings)+2), &excelize.Chart{
+	x.addChart(s, cell(1, chartRow), &excelize.Chart{
 		Type: excelize.Scatter, Series: series,
-		Title:     excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: r.ID + " — " + valueLabel(r) + " against depth"}}},
-		Legend:    excelize.ChartLegend{Position: "bottom"},
-		XAxis:     excelize.ChartAxis{Minimum: &zero, Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "depth (" + du + ")"}}}},
-		YAxis:     excelize.ChartAxis{MajorGridLines: true, Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: valueLabel(r)}}}},
-		Dimension: excelize.ChartDimension{Width: 640, Height: 380},
-	})
+		Title:     chartText(r.ID+" — "+valueLabel(r)+" against depth", 11, true),
+		XAxis:     chartAxis("depth ("+du+")", &zero, false),
+		YAxis:     chartAxis(valueLabel(r), nil, true),
+		Dimension: excelize.ChartDimension{Width: 640, Height: profileChartPx},
+	}, editTickMarks, editAxisLines)
 }
 
 func (x *xlWriter) arrheniusSheet(res *CampaignReport, u TempUnit) {
@@ -482,27 +559,35 @@ func (x *xlWriter) arrheniusSheet(res *CampaignReport, u TempUnit) {
 	x.set(s, 1, 1, "Arrhenius lines ("+res.Method+"), ln D = ln D0 − Q/(RT), R = 8.314462618 J/(mol·K)", x.st.title)
 	x.header(s, 2, "group", "D0 (m²/s)", "D0 "+level+" CI low", "D0 "+level+" CI high", "Q (kJ/mol)", "Q "+level+" CI low", "Q "+level+" CI high",
 		"corr(ln D0, Q)", "points", "temperatures", "dof", "Birge ratio", "scaled")
+	x.twoLines(s, 2)
 	for i, l := range lines {
 		row := 3 + i
 		d0 := l.D0CI()
 		q := l.QCI()
+		d0s := x.dStyle(l.D0(), d0)
+		qs := x.num(l.Q/1e3, LastDigit(l.Q/1e3, fit.Interval{Lo: q.Lo / 1e3, Hi: q.Hi / 1e3}))
 		x.set(s, 1, row, groupLabel(l), 0)
-		x.set(s, 2, row, l.D0(), x.st.sci)
-		x.set(s, 3, row, d0.Lo, x.st.sci)
-		x.set(s, 4, row, d0.Hi, x.st.sci)
-		x.set(s, 5, row, l.Q/1e3, x.st.fixed2)
-		x.set(s, 6, row, q.Lo/1e3, x.st.fixed2)
-		x.set(s, 7, row, q.Hi/1e3, x.st.fixed2)
+		x.set(s, 2, row, l.D0(), d0s)
+		x.set(s, 3, row, d0.Lo, d0s)
+		x.set(s, 4, row, d0.Hi, d0s)
+		x.set(s, 5, row, l.Q/1e3, qs)
+		x.set(s, 6, row, q.Lo/1e3, qs)
+		x.set(s, 7, row, q.Hi/1e3, qs)
 		x.set(s, 8, row, l.Corr(), x.st.fixed4)
 		x.set(s, 9, row, len(l.Points), x.st.int0)
 		x.set(s, 10, row, l.NTemperatures, x.st.int0)
 		x.set(s, 11, row, l.DOF, x.st.int0)
 		x.set(s, 12, row, l.BirgeRatio, x.st.fixed2)
-		x.set(s, 13, row, l.Scaled, 0)
+		scaled := "no"
+		if l.Scaled {
+			scaled = "yes"
+		}
+		x.set(s, 13, row, scaled, 0)
 	}
 	pr := 4 + len(lines)
 	x.header(s, pr, "group", "id", "T ("+u.Symbol()+")", "T (K)", "10⁴/T (1/K)", "D (m²/s)", "D CI low (m²/s)", "D CI high (m²/s)",
 		"ln D", "ln D on line", "residual (ln D)", "chart series")
+	x.twoLines(s, pr)
 	row := pr + 1
 	type span struct{ r0, r1 int }
 	var spans []span
@@ -516,10 +601,11 @@ func (x *xlWriter) arrheniusSheet(res *CampaignReport, u TempUnit) {
 			x.set(s, 2, row, p.ID, 0)
 			x.set(s, 3, row, u.FromKelvin(p.T), x.st.temp)
 			x.set(s, 4, row, p.T, x.st.fixed2)
+			ds := x.dStyle(math.Exp(p.LnD), fit.Interval{Lo: lo, Hi: hi})
 			x.set(s, 5, row, invT(p.T), x.st.fixed4)
-			x.set(s, 6, row, math.Exp(p.LnD), x.st.sci)
-			x.set(s, 7, row, lo, x.st.sci)
-			x.set(s, 8, row, hi, x.st.sci)
+			x.set(s, 6, row, math.Exp(p.LnD), ds)
+			x.set(s, 7, row, lo, ds)
+			x.set(s, 8, row, hi, ds)
 			x.set(s, 9, row, p.LnD, x.st.fixed4)
 			x.set(s, 10, row, p.Fitted, x.st.fixed4)
 			x.set(s, 11, row, p.Residual, x.st.fixed4)
@@ -528,6 +614,9 @@ func (x *xlWriter) arrheniusSheet(res *CampaignReport, u TempUnit) {
 		spans = append(spans, span{r0, row - 1})
 	}
 	x.widths(s, 16, 18, 10, 10, 12, 12, 14, 14, 10, 12, 14, 16, 8)
+	// The chart below the tables, so that the sheet prints one page wide.
+	chartRow := row + 1
+	x.pageSetup(s, 13, chartRow+chartPrintRows(arrheniusChartPx), true, 0, 0)
 	if x.err != nil {
 		return
 	}
@@ -540,19 +629,19 @@ func (x *xlWriter) arrheniusSheet(res *CampaignReport, u TempUnit) {
 		}
 		series = append(series,
 			excelize.ChartSeries{Name: fmt.Sprintf("%s!$L$%d", quoteSheet(s), sp.r0), Categories: rng(s, 5, sp.r0, sp.r1), Values: rng(s, 9, sp.r0, sp.r1),
-				Marker: excelize.ChartMarker{Symbol: []string{"circle", "square", "triangle", "diamond"}[i%4], Size: 6, Fill: solid(col), Border: excelize.LineOptions{Type: excelize.LineSolid, Fill: solid(col)}},
-				Line:   excelize.LineOptions{Type: excelize.LineNone}, Fill: solid(col)},
+				Marker: excelize.ChartMarker{Symbol: chartMarkers[i%len(chartMarkers)], Size: 6, Fill: solid(col),
+					Border: excelize.LineOptions{Type: excelize.LineSolid, Fill: solid(col), Width: 0.75}},
+				Line: excelize.LineOptions{Type: excelize.LineNone}, Fill: solid(col)},
 			excelize.ChartSeries{Name: fmt.Sprintf("%s!$L$%d", quoteSheet(s), sp.r0+1), Categories: rng(s, 5, sp.r0, sp.r1), Values: rng(s, 10, sp.r0, sp.r1),
 				Marker: excelize.ChartMarker{Symbol: "none"}, Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 1.5}, Fill: solid(col)})
 	}
-	x.err = x.f.AddChart(s, cell(14, pr), &excelize.Chart{
+	x.addChart(s, cell(1, chartRow), &excelize.Chart{
 		Type: excelize.Scatter, Series: series,
-		Title:     excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Arrhenius plot: ln D against 10⁴/T"}}},
-		Legend:    excelize.ChartLegend{Position: "bottom"},
-		XAxis:     excelize.ChartAxis{Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "10⁴/T (1/K)"}}}},
-		YAxis:     excelize.ChartAxis{MajorGridLines: true, Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "ln(D / (m²/s))"}}}},
-		Dimension: excelize.ChartDimension{Width: 640, Height: 400},
-	})
+		Title:     chartText("Arrhenius plot: ln D against 10⁴/T", 11, true),
+		XAxis:     chartAxis("10⁴/T (1/K)", nil, false),
+		YAxis:     chartAxis("ln(D / (m²/s))", nil, true),
+		Dimension: excelize.ChartDimension{Width: 760, Height: arrheniusChartPx},
+	}, editTickMarks, editAxisLines, editXAxisAtBottom)
 }
 
 func (x *xlWriter) lotsSheet(res *CampaignReport, u TempUnit) {
@@ -564,24 +653,26 @@ func (x *xlWriter) lotsSheet(res *CampaignReport, u TempUnit) {
 		row := 4 + i
 		x.set(s, 1, row, t.Name, 0)
 		x.set(s, 2, row, t.Description, x.st.text)
-		x.set(s, 3, row, t.F, x.st.fixed4)
+		x.set(s, 3, row, t.F, x.st.fixed2)
 		x.set(s, 4, row, t.DF1, x.st.int0)
 		x.set(s, 5, row, t.DF2, x.st.int0)
-		x.set(s, 6, row, t.P, x.st.sci)
+		x.set(s, 6, row, t.P, x.sig(t.P, 2))
 	}
 	rr := 5 + len(c.Tests)
 	level := Level(c.Level)
 	x.header(s, rr, "group", "reference", "T ("+u.Symbol()+")", "T (K)", "D ratio", "ratio "+level+" CI low", "ratio "+level+" CI high", "p", "model")
+	x.twoLines(s, rr)
 	for i, r := range c.Ratios {
 		row := rr + 1 + i
 		x.set(s, 1, row, r.Group, 0)
 		x.set(s, 2, row, r.Reference, 0)
 		x.set(s, 3, row, u.FromKelvin(r.TRef), x.st.temp)
 		x.set(s, 4, row, r.TRef, x.st.fixed2)
-		x.set(s, 5, row, r.Value, x.st.fixed4)
-		x.set(s, 6, row, r.CI.Lo, x.st.fixed4)
-		x.set(s, 7, row, r.CI.Hi, x.st.fixed4)
-		x.set(s, 8, row, r.P, x.st.sci)
+		rs := x.num(r.Value, LastDigit(r.Value, r.CI))
+		x.set(s, 5, row, r.Value, rs)
+		x.set(s, 6, row, r.CI.Lo, rs)
+		x.set(s, 7, row, r.CI.Hi, rs)
+		x.set(s, 8, row, r.P, x.sig(r.P, 2))
 		x.set(s, 9, row, r.Model, 0)
 	}
 	if len(c.Pairs) > 0 {
@@ -594,16 +685,22 @@ func (x *xlWriter) lotsSheet(res *CampaignReport, u TempUnit) {
 			x.set(s, 2, row, p.B, 0)
 			x.set(s, 3, row, u.FromKelvin(p.TRef), x.st.temp)
 			x.set(s, 4, row, p.TRef, x.st.fixed2)
-			x.set(s, 5, row, p.Ratio, x.st.fixed4)
-			x.set(s, 6, row, p.CI.Lo, x.st.fixed4)
-			x.set(s, 7, row, p.CI.Hi, x.st.fixed4)
-			x.set(s, 8, row, p.P, x.st.sci)
-			x.set(s, 9, row, p.PAdjusted, x.st.sci)
+			ps := x.num(p.Ratio, LastDigit(p.Ratio, p.CI))
+			x.set(s, 5, row, p.Ratio, ps)
+			x.set(s, 6, row, p.CI.Lo, ps)
+			x.set(s, 7, row, p.CI.Hi, ps)
+			x.set(s, 8, row, p.P, x.sig(p.P, 2))
+			x.set(s, 9, row, p.PAdjusted, x.sig(p.PAdjusted, 2))
 			x.set(s, 10, row, pairVerdict(p), 0)
 			x.set(s, 11, row, p.Model, 0)
 		}
 	}
 	x.widths(s, 24, 60, 10, 8, 10, 14, 14, 10, 16)
+	lastCol, lastRow := 9, rr+len(c.Ratios)
+	if len(c.Pairs) > 0 {
+		lastCol, lastRow = 11, rr+len(c.Ratios)+2+len(c.Pairs)
+	}
+	x.pageSetup(s, lastCol, lastRow, true, 0, 0)
 }
 
 func (x *xlWriter) partsSheet(res *CampaignReport, u TempUnit) {
@@ -612,6 +709,7 @@ func (x *xlWriter) partsSheet(res *CampaignReport, u TempUnit) {
 	level := Level(res.Options.Level)
 	x.header(s, 3, "id", "lot", "solved for", "T ("+u.Symbol()+")", "T "+level+" CI low", "T "+level+" CI high", "T (K)",
 		"t (h)", "t "+level+" CI low (h)", "t "+level+" CI high (h)", "interval method", "calibration", "error / warnings")
+	x.twoLines(s, 3)
 	for i, p := range res.Parts {
 		row := 4 + i
 		x.set(s, 1, row, p.ID, 0)
@@ -619,17 +717,29 @@ func (x *xlWriter) partsSheet(res *CampaignReport, u TempUnit) {
 		x.set(s, 3, row, p.SolveFor, 0)
 		if sol := p.Solution; sol != nil {
 			T, t := sol.Temperature, sol.Time
-			x.set(s, 4, row, u.FromKelvin(T.Value), x.st.temp)
-			x.set(s, 7, row, T.Value, x.st.fixed2)
-			x.set(s, 8, row, t.Value/3600, x.st.fixed2)
+			// Solved values with the digits of their intervals (to the
+			// degree at least, as TemperatureEstimate writes them); given
+			// ones as before.
+			tU, tK, th := x.st.temp, x.st.fixed2, x.st.fixed2
 			if !T.Given {
-				x.set(s, 5, row, u.FromKelvin(T.CI.Lo), x.st.temp)
-				x.set(s, 6, row, u.FromKelvin(T.CI.Hi), x.st.temp)
+				ivU := fit.Interval{Lo: u.FromKelvin(T.CI.Lo), Hi: u.FromKelvin(T.CI.Hi)}
+				tU = x.num(u.FromKelvin(T.Value), min(0, LastDigit(u.FromKelvin(T.Value), ivU)))
+				tK = x.num(T.Value, min(0, LastDigit(T.Value, T.CI)))
+			}
+			if !t.Given {
+				th = x.num(t.Value/3600, LastDigit(t.Value/3600, fit.Interval{Lo: t.CI.Lo / 3600, Hi: t.CI.Hi / 3600}))
+			}
+			x.set(s, 4, row, u.FromKelvin(T.Value), tU)
+			x.set(s, 7, row, T.Value, tK)
+			x.set(s, 8, row, t.Value/3600, th)
+			if !T.Given {
+				x.set(s, 5, row, u.FromKelvin(T.CI.Lo), tU)
+				x.set(s, 6, row, u.FromKelvin(T.CI.Hi), tU)
 				x.set(s, 11, row, T.Method, 0)
 			}
 			if !t.Given {
-				x.set(s, 9, row, t.CI.Lo/3600, x.st.fixed2)
-				x.set(s, 10, row, t.CI.Hi/3600, x.st.fixed2)
+				x.set(s, 9, row, t.CI.Lo/3600, th)
+				x.set(s, 10, row, t.CI.Hi/3600, th)
 				x.set(s, 11, row, t.Method, 0)
 			}
 			x.set(s, 12, row, sol.Calibration.Source, x.st.text)
@@ -654,6 +764,7 @@ func (x *xlWriter) partsSheet(res *CampaignReport, u TempUnit) {
 		}
 	}
 	x.widths(s, 16, 10, 12, 10, 12, 12, 10, 8, 12, 12, 14, 40, 50)
+	x.pageSetup(s, 13, cr+len(arrhenius.Cautions), true, 0, 0)
 }
 
 func (x *xlWriter) auditSheet(res *CampaignReport) {
@@ -677,7 +788,7 @@ func (x *xlWriter) auditSheet(res *CampaignReport) {
 	row += len(auditPairs(res.audit())) + 2
 	x.set(s, 1, row, "method notes", x.st.bold)
 	for i, n := range MethodNotes() {
-		x.set(s, 1, row+1+i, n.Topic, 0)
+		x.set(s, 1, row+1+i, n.Topic, x.st.text)
 		x.set(s, 2, row+1+i, n.Text+" Source: "+n.Source+".", x.st.note)
 		if x.err == nil {
 			x.err = x.f.SetRowHeight(s, row+1+i, 42)
@@ -692,6 +803,7 @@ func (x *xlWriter) auditSheet(res *CampaignReport) {
 		}
 	}
 	x.widths(s, 34, 100, 10)
+	x.pageSetup(s, 3, row+len(res.Cautions), false, 0, 0)
 }
 
 // auditPairs lists the options as (name, value) for the audit trail.

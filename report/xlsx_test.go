@@ -160,4 +160,46 @@ func TestWorkbook(t *testing.T) {
 	if want := len(res.Results) + 1; charts != want {
 		t.Errorf("%d charts, want %d", charts, want)
 	}
+	// How the charts look where excelize's defaults fail a reader (the
+	// spreadsheet application itself is TestWorkbookInSpreadsheetApp's):
+	// tick labels and titles in ink, points drawn in their colour (not an
+	// open white marker, which LibreOffice shows as nothing), and the
+	// Arrhenius chart's horizontal axis crossing at the minimum of ln D.
+	txPr := regexp.MustCompile(`<txPr>.*?</txPr>`)
+	for _, zf := range zr.File {
+		if !strings.HasPrefix(zf.Name, "xl/charts/chart") {
+			continue
+		}
+		rc, _ := zf.Open()
+		b, _ := io.ReadAll(rc)
+		rc.Close()
+		x := string(b)
+		for _, tp := range txPr.FindAllString(x, -1) {
+			if strings.Contains(tp, "<a:defRPr") && !strings.Contains(tp, `<a:srgbClr val="`+xlHex(colInk)+`">`) {
+				t.Errorf("%s: text not in ink: %s", zf.Name, tp)
+			}
+		}
+		if strings.Contains(x, "<marker><symbol val=\"circle\"></symbol><size val=\"6\"></size><spPr><a:solidFill><a:srgbClr val=\"FFFFFF\">") {
+			t.Errorf("%s: white-filled markers", zf.Name)
+		}
+		if strings.Contains(x, "Arrhenius plot") && !strings.Contains(x, `<crosses val="min"></crosses>`) {
+			t.Errorf("%s: the Arrhenius chart's horizontal axis crosses at ln D = 0 (the top of the chart)", zf.Name)
+		}
+	}
+	// Print setup: every sheet has a print area and fits its width.
+	for _, sheet := range sheets {
+		found := false
+		for _, dn := range f.GetDefinedName() {
+			if dn.Name == "_xlnm.Print_Area" && dn.Scope == sheet {
+				found = true
+			}
+		}
+		if !found {
+			t.Errorf("sheet %s has no print area", sheet)
+		}
+		pl, err := f.GetPageLayout(sheet)
+		if err != nil || pl.FitToWidth == nil || *pl.FitToWidth != 1 {
+			t.Errorf("sheet %s does not print one page wide: %+v %v", sheet, pl, err)
+		}
+	}
 }
