@@ -21,11 +21,10 @@ const exitPartial = 3
 type partialError struct{ n int }
 
 func (e partialError) Error() string {
-	what := "inputs were"
 	if e.n == 1 {
-		what = "input was"
+		return "1 input was left out (--keep-going); it is listed in the output with where and why, and everything else was computed"
 	}
-	return fmt.Sprintf("%d %s left out (--keep-going); they are listed in the output with where and why, and everything else was computed", e.n, what)
+	return fmt.Sprintf("%d inputs were left out (--keep-going); they are listed in the output with where and why, and everything else was computed", e.n)
 }
 
 // registerKeepGoing declares --keep-going on c.
