@@ -291,13 +291,10 @@ func dropWarning(ws []fit.Warning, code string) []fit.Warning {
 	return out
 }
 
-// plainError returns an error's message (empty for nil).
-func plainError(err error) string {
-	if err == nil {
-		return ""
-	}
-	return err.Error()
-}
+// plainError returns an error's message (empty for nil), with the
+// temperatures in it kept as marks (internal/tempfmt): the writers render
+// them in the reader's unit (report) or in kelvin (JSON).
+func plainError(err error) string { return arrhenius.MarkedText(err) }
 
 func copyMeta(m map[string]string) map[string]string {
 	out := make(map[string]string, len(m)+1)

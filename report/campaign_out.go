@@ -9,6 +9,7 @@ import (
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 )
 
 // campaignDoc is results.json. Keys are stable; numbers are SI with the
@@ -41,12 +42,27 @@ type arrheniusDoc struct {
 // Arrhenius lines per group, the lot comparison, the back-calculated parts,
 // notes and cautions.
 func (res *CampaignReport) WriteJSON(w io.Writer) error {
+	// The campaign's sentences may hold temperature marks: kelvin in JSON.
+	lineErrs := []campaign.GroupFailure{}
+	for _, g := range res.LineErrors {
+		g.Error = tempfmt.Plain(g.Error)
+		lineErrs = append(lineErrs, g)
+	}
+	parts := []campaign.Part{}
+	for _, p := range res.Parts {
+		p.Error = tempfmt.Plain(p.Error)
+		parts = append(parts, p)
+	}
+	notes := []string{}
+	for _, n := range res.Notes {
+		notes = append(notes, tempfmt.Plain(n))
+	}
 	doc := campaignDoc{
 		Version: res.Version, Inputs: nonNil(res.Inputs), Options: res.audit(),
 		Fits: jsonResults(res.Results), Failed: nonNil(res.Failed), NotRead: NotUsedFromSkipped(res.NotRead),
-		Arrhenius:  arrheniusDoc{Method: res.Method, By: res.By, Groups: []arrhenius.Line{}, Failed: nonNil(res.LineErrors)},
-		Comparison: res.Comparison, ComparisonError: res.ComparisonError,
-		Backcalc: nonNil(res.Parts), Notes: nonNil(res.Notes), Cautions: nonNil(res.Cautions),
+		Arrhenius:  arrheniusDoc{Method: res.Method, By: res.By, Groups: []arrhenius.Line{}, Failed: lineErrs},
+		Comparison: res.Comparison, ComparisonError: tempfmt.Plain(res.ComparisonError),
+		Backcalc: parts, Notes: notes, Cautions: nonNil(res.Cautions),
 	}
 	if res.Lines != nil {
 		doc.Arrhenius.Groups = nonNil(res.Lines.Lines)
@@ -73,7 +89,7 @@ func (res *CampaignReport) Backcalc() Backcalc {
 			b.Solutions = append(b.Solutions, p.Solution)
 			continue
 		}
-		b.Failed = append(b.Failed, fit.Failure{ID: p.ID, Lot: p.Lot, Kind: p.Kind, Error: p.Error})
+		b.Failed = append(b.Failed, fit.Failure{ID: p.ID, Lot: p.Lot, Kind: p.Kind, Error: tempfmt.Plain(p.Error)})
 	}
 	return b
 }
@@ -91,7 +107,7 @@ func D0Text(l *arrhenius.Line) string {
 // PartText writes a back-calculated result in one line.
 func PartText(p campaign.Part, u TempUnit) string {
 	if p.Solution == nil {
-		return "not back-calculated: " + p.Error
+		return "not back-calculated: " + Temps(p.Error, u)
 	}
 	s := p.Solution
 	if p.SolveFor == "time" {
@@ -177,7 +193,7 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 		}
 	}
 	for _, f := range res.LineErrors {
-		writeWrapped(bw, "  no line for "+f.Group+": ", f.Error, o.width())
+		writeWrapped(bw, "  no line for "+f.Group+": ", Temps(f.Error, u), o.width())
 	}
 	if c := res.Comparison; c != nil {
 		fmt.Fprintf(bw, "\nLot comparison by %s\n", c.By)
@@ -191,7 +207,7 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 				ratioText(r.Value, r.CI, c.Level), Sig(r.P, 2)), o.width())
 		}
 	} else if res.ComparisonError != "" {
-		writeWrapped(bw, "\nLot comparison not possible: ", res.ComparisonError, o.width())
+		writeWrapped(bw, "\nLot comparison not possible: ", Temps(res.ComparisonError, u), o.width())
 	}
 	if len(res.Parts) > 0 {
 		bw.WriteString("\nBack-calculated parts (marked unknown; not used for the calibration)\n")
@@ -212,7 +228,7 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 	if len(res.Notes) > 0 {
 		bw.WriteString("\nNotes\n")
 		for _, n := range res.Notes {
-			writeWrapped(bw, "  - ", n, o.width())
+			writeWrapped(bw, "  - ", Temps(n, u), o.width())
 		}
 	}
 	if !o.NoCautions {

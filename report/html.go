@@ -169,8 +169,7 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 	u := o.TempUnit
 	level := res.Options.Level
 	v := htmlView{Title: "Diffusion campaign report", Version: res.Version, Level: Level(level), TempUnit: u.Symbol(),
-		Failed: res.Failed, LineErrors: res.LineErrors, ComparisonError: res.ComparisonError,
-		Notes: res.Notes, Methods: MethodNotes(), Cautions: res.Cautions, Inputs: res.Inputs, Options: auditPairs(res.audit()),
+		Failed: res.Failed, ComparisonError: Temps(res.ComparisonError, u), Methods: MethodNotes(), Cautions: res.Cautions, Inputs: res.Inputs, Options: auditPairs(res.audit()),
 		PartCautions: arrhenius.Cautions}
 	v.Lead = fmt.Sprintf("%d profiles from %d input files; %d fitted with the %s model, %s intervals by %s.",
 		len(res.Profiles), len(res.Inputs), len(res.Results), res.Options.Model, Level(level), CIMethodDescription(fit.CIMethod(res.Options.CIMethod)))
@@ -258,8 +257,15 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 			}
 		}
 	}
+	for _, g := range res.LineErrors {
+		g.Error = Temps(g.Error, u)
+		v.LineErrors = append(v.LineErrors, g)
+	}
+	for _, n := range res.Notes {
+		v.Notes = append(v.Notes, Temps(n, u))
+	}
 	for _, n := range res.NotUsed() {
-		v.NotUsed = append(v.NotUsed, htmlNotUsed{n.where(), n.Reason})
+		v.NotUsed = append(v.NotUsed, htmlNotUsed{n.where(), Temps(n.Reason, u)})
 	}
 	for _, n := range res.Notes {
 		v.NotUsed = append(v.NotUsed, htmlNotUsed{"calibration", Temps(n, u)})

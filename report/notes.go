@@ -46,7 +46,7 @@ var methodNotes = []MethodNote{
 		"ln D = ln D0 − Q/(RT) with R = 8.314462618 J/(mol·K). Two-stage: weighted least squares of ln Dᵢ on 1/(RTᵢ) with weights 1/Var(ln Dᵢ), covariance scaled by the squared Birge ratio when the points scatter more than their errors allow. Global: one nonlinear fit of all profiles sharing ln D0 and Q.",
 		"CODATA 2018 recommended values (R exact since the 2019 SI); R. T. Birge, Phys. Rev. 40 (1932) 207"},
 	{"Points off the line",
-		"Each point's leverage, studentized (deleted) residual and Cook's distance about the weighted line; a point the outlier test with Bonferroni adjustment flags is named with its distance from the line through the other points, and with the unit slip (°C, K, °F) that would put it back on that line. The prediction interval of a single new part adds the variance of one point about the line to that of the mean line.",
+		"Each point's leverage, studentized (deleted) residual and Cook's distance about the weighted line; a point the outlier test with Bonferroni adjustment flags is named with its distance from the line through the other points, and with the unit slip (Celsius, kelvin or Fahrenheit read as another) that would put it back on that line. The prediction interval of a single new part adds the variance of one point about the line to that of the mean line.",
 		"R. D. Cook & S. Weisberg, Residuals and Influence in Regression, Chapman & Hall, 1982"},
 	{"Lot comparison",
 		"Extra-sum-of-squares F-tests of separate lines against one common line (and common Q with separate D0); the ratio of D between lots at one temperature with a Wald interval on its logarithm. With three or more lots every pair is compared, its p-value adjusted for the number of pairs by Holm's step-down method.",

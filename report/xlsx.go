@@ -749,7 +749,7 @@ func (x *xlWriter) partsSheet(res *CampaignReport, u TempUnit) {
 			}
 			x.set(s, 13, row, strings.Join(ws, "\n"), x.st.text)
 		} else {
-			x.set(s, 13, row, p.Error, x.st.text)
+			x.set(s, 13, row, Temps(p.Error, u), x.st.text)
 		}
 	}
 	cr := 6 + len(res.Parts)

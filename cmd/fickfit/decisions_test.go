@@ -485,3 +485,46 @@ func readZipMember(path, name string) ([]byte, error) {
 	}
 	return nil, fmt.Errorf("%s: no member %s", path, name)
 }
+
+// TestFahrenheitCampaignSentences: a °F campaign in which one lot was
+// treated at a single temperature (1725 °F, 1213.7055… K): no output file
+// writes °C, a raw floating-point kelvin value, +Inf or an unrendered
+// temperature mark; the reasons are said in °F (kelvin in JSON).
+func TestFahrenheitCampaignSentences(t *testing.T) {
+	dir := threeLotCampaign(t)
+	rng := rand.New(rand.NewPCG(14, 7))
+	for rep := 1; rep <= 2; rep++ {
+		erfCoupon(t, dir, fmt.Sprintf("D-1725F-%d", rep), "D", "1725 F", (1725+459.67)*5/9, 4, 1, rng, "")
+	}
+	rep := filepath.Join(t.TempDir(), "rep")
+	code, out, errs := runCLI(t, "campaign", dir, "--out", rep, "--no-png", "--temperature-unit", "F")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if !strings.Contains(out, "one temperature (1725 °F (1213.71 K))") {
+		t.Errorf("summary does not give the lot's temperature in °F:\n%s", out)
+	}
+	filepath.Walk(rep, func(p string, fi os.FileInfo, err error) error {
+		if err != nil || fi.IsDir() {
+			return nil
+		}
+		var b []byte
+		if strings.HasSuffix(p, ".xlsx") {
+			b = []byte(xlsxStrings(t, p))
+		} else {
+			b, _ = os.ReadFile(p)
+		}
+		s := string(b)
+		machine := strings.HasSuffix(p, ".json") || strings.HasSuffix(p, ".csv")
+		for _, bad := range []string{"1213.7055", "⟦", "+Inf"} {
+			// Machine files keep every temperature in full (temperature_K).
+			if strings.Contains(s, bad) && !(machine && bad == "1213.7055") {
+				t.Errorf("%s contains %q", filepath.Base(p), bad)
+			}
+		}
+		if i := strings.Index(s, "°C"); !machine && i >= 0 {
+			t.Errorf("%s writes °C in a °F campaign: …%s…", filepath.Base(p), s[max(0, i-80):i+4])
+		}
+		return nil
+	})
+}
