@@ -159,7 +159,10 @@ type Result struct {
 	// (Options.KeepGoing).
 	NotRead []profile.Skipped
 	// Notes are campaign-level remarks in plain words (profiles left out of
-	// the calibration and why).
+	// the calibration and why). Like the Error texts of GroupFailure and
+	// Part and ComparisonError, they may hold absolute temperatures as
+	// marks of internal/tempfmt, which package report renders in the
+	// reader's unit (kelvin in JSON); tempfmt.Plain renders them in kelvin.
 	Notes    []string
 	Options  AuditOptions
 	Cautions []string
