@@ -70,6 +70,15 @@ type Options struct {
 	// "arrhenius", each once and in that order. It is called from one
 	// goroutine at a time.
 	Progress func(stage string, done, total int)
+	// Exclusions, when not nil, takes points out of the profiles before
+	// they are fitted (after reading, before Adjust) and leaves the
+	// profiles named without a depth out of the Arrhenius lines and the
+	// comparison (profile.Exclusions). Result.Excluded records what was done.
+	Exclusions *profile.Exclusions
+	// Fitter, when not nil, fits the profiles instead of fit.FitAll (a
+	// server that keeps fits of unchanged profiles). It must return what
+	// fit.FitAll would: results and errors in the order of ps.
+	Fitter func(ps []profile.Profile, o fit.Options, progress func(done, total int)) ([]*fit.Result, []error)
 }
 
 func (o Options) progress(stage string, done, total int) {
@@ -166,6 +175,11 @@ type Result struct {
 	Notes    []string
 	Options  AuditOptions
 	Cautions []string
+	// Exclusions is the exclusions file applied (Options.Exclusions) and
+	// Excluded what it did: the points taken out and the profiles left out
+	// of the Arrhenius lines. Both nil without exclusions.
+	Exclusions *profile.Exclusions
+	Excluded   *profile.Applied
 }
 
 // AuditOptions records the options that shaped the results, for the audit trail.
@@ -182,6 +196,12 @@ type AuditOptions struct {
 	TRef          float64  `json:"comparison_temperature_K"`
 	References    []string `json:"references"`
 	SolveMethod   string   `json:"backcalc_method"`
+	// CaseThreshold is the case-depth threshold asked for and
+	// HardnessCalibration the hardness–concentration table's file ("" for none).
+	CaseThreshold       string `json:"case_threshold,omitempty"`
+	HardnessCalibration string `json:"hardness_calibration,omitempty"`
+	// Exclusions names the exclusions file applied ("" for none).
+	Exclusions string `json:"exclusions_file,omitempty"`
 	// TempUnit is the temperature unit of the text and reports; the
 	// writer fills it (report), since it shapes the output, not the numbers.
 	TempUnit string `json:"temperature_unit"`
@@ -194,6 +214,15 @@ func auditOptions(o Options) AuditOptions {
 		SolveMethod: string(o.Solve.Method)}
 	if o.Fit.Custom != nil {
 		a.Model = o.Fit.Custom.Name()
+	}
+	if o.Exclusions != nil {
+		a.Exclusions = FileBase(o.Exclusions.Source)
+	}
+	if o.Fit.CaseThreshold != nil {
+		a.CaseThreshold = o.Fit.CaseThreshold.String()
+	}
+	if o.Fit.Calibration != nil {
+		a.HardnessCalibration = FileBase(o.Fit.Calibration.Source)
 	}
 	if a.Model == "" {
 		a.Model = "erf"
@@ -262,6 +291,16 @@ func Run(inputs []string, opts Options) (*Result, error) {
 	opts.progress("read", len(inputs), len(inputs))
 	return run(ps, audit, opts)
 }
+
+// RunProfiles runs a campaign on profiles already read (a server's
+// uploads); inputs are the audit trail's files. The profiles are not
+// changed (the campaign works on a copy).
+func RunProfiles(ps []profile.Profile, inputs []InputFile, opts Options) (*Result, error) {
+	return run(append([]profile.Profile(nil), ps...), inputs, opts)
+}
+
+// FileBase is a file name without its folder.
+func FileBase(name string) string { return filepath.Base(filepath.ToSlash(name)) }
 
 // RunFS runs a campaign on the profile files in fsys (every .csv,
 // .tsv and .txt file, walked in lexical order; the embedded demo campaign

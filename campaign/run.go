@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"sort"
+	"strconv"
 	"strings"
 
 	"github.com/fickfit/fickfit/arrhenius"
@@ -100,6 +101,14 @@ func run(ps []profile.Profile, audit []InputFile, opts Options) (*Result, error)
 	// (which repeat "verify by metallography" and "specifications decide"
 	// in the words for parts).
 	res.Cautions = append(append([]string{}, fit.Cautions[:2]...), arrhenius.Cautions...)
+	if opts.Exclusions != nil {
+		a, err := opts.Exclusions.Apply(ps)
+		if err != nil {
+			return nil, err
+		}
+		res.Exclusions, res.Excluded = opts.Exclusions, a
+		res.Notes = append(res.Notes, exclusionNotes(a, opts.Exclusions.Source)...)
+	}
 	for i := range ps {
 		p := &ps[i]
 		p.Meta = copyMeta(p.Meta)
@@ -116,7 +125,13 @@ func run(ps []profile.Profile, audit []InputFile, opts Options) (*Result, error)
 	res.Profiles = ps
 
 	fo := opts.Fit
-	rs, errs := fit.FitAll(ps, fo, &fit.BatchOptions{Progress: func(done, total int) { opts.progress("fit", done, total) }})
+	fitAll := func(ps []profile.Profile, o fit.Options, progress func(done, total int)) ([]*fit.Result, []error) {
+		return fit.FitAll(ps, o, &fit.BatchOptions{Progress: progress})
+	}
+	if opts.Fitter != nil {
+		fitAll = opts.Fitter
+	}
+	rs, errs := fitAll(ps, fo, func(done, total int) { opts.progress("fit", done, total) })
 	for i := range ps {
 		switch {
 		case errs[i] != nil:
@@ -152,6 +167,10 @@ func run(ps []profile.Profile, audit []InputFile, opts Options) (*Result, error)
 			continue
 		}
 		if rs[i] == nil {
+			continue
+		}
+		if lo, ok := res.Excluded.IsLeftOut(p.ID); ok {
+			res.Notes = append(res.Notes, fmt.Sprintf("%s is left out of the Arrhenius fit and the comparison by the exclusions file%s", p.ID, because(lo.Reason)))
 			continue
 		}
 		pt, err := arrhenius.PointFromResult(rs[i])
@@ -289,6 +308,36 @@ func dropWarning(ws []fit.Warning, code string) []fit.Warning {
 		}
 	}
 	return out
+}
+
+// exclusionNotes says in words what the exclusions did, for the notes.
+func exclusionNotes(a *profile.Applied, source string) []string {
+	var out []string
+	for _, e := range a.Points {
+		line := ""
+		if e.Line > 0 {
+			line = fmt.Sprintf(", line %d of %s", e.Line, e.File)
+		}
+		out = append(out, fmt.Sprintf("The point of %s at %s µm (value %g%s) is excluded from its fit%s.",
+			e.Profile, strconv.FormatFloat(e.Depth*1e6, 'g', 6, 64), e.Value, line, because(e.Reason)))
+	}
+	if n := len(a.Unused); n > 0 {
+		ids := make([]string, 0, n)
+		for _, e := range a.Unused {
+			ids = append(ids, e.Profile)
+		}
+		out = append(out, fmt.Sprintf("%d rows of the exclusions file %s concern profiles not among the inputs (%s); they were not used.",
+			n, FileBase(source), strings.Join(ids, ", ")))
+	}
+	return out
+}
+
+// because is ": reason" or "".
+func because(reason string) string {
+	if strings.TrimSpace(reason) == "" {
+		return ""
+	}
+	return " (" + reason + ")"
 }
 
 // plainError returns an error's message (empty for nil), with the

@@ -10,6 +10,7 @@ import (
 	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/fit"
 	"github.com/fickfit/fickfit/internal/tempfmt"
+	"github.com/fickfit/fickfit/profile"
 )
 
 // campaignDoc is results.json. Keys are stable; numbers are SI with the
@@ -28,6 +29,9 @@ type campaignDoc struct {
 	Backcalc        []campaign.Part       `json:"backcalc"`
 	Notes           []string              `json:"notes"`
 	Cautions        []string              `json:"cautions"`
+	// Exclusions are the points and profiles left out by an exclusions
+	// file (omitted without one).
+	Exclusions *profile.Applied `json:"exclusions,omitempty"`
 }
 
 type arrheniusDoc struct {
@@ -63,11 +67,21 @@ func (res *CampaignReport) WriteJSON(w io.Writer) error {
 		Arrhenius:  arrheniusDoc{Method: res.Method, By: res.By, Groups: []arrhenius.Line{}, Failed: lineErrs},
 		Comparison: res.Comparison, ComparisonError: tempfmt.Plain(res.ComparisonError),
 		Backcalc: parts, Notes: notes, Cautions: nonNil(res.Cautions),
+		Exclusions: res.excludedDoc(),
 	}
 	if res.Lines != nil {
 		doc.Arrhenius.Groups = nonNil(res.Lines.Lines)
 	}
 	return encodeJSON(w, doc)
+}
+
+// excludedDoc is the exclusions key of results.json: nil without an
+// exclusions file, lists (never null) with one.
+func (res *CampaignReport) excludedDoc() *profile.Applied {
+	if res.Excluded == nil {
+		return nil
+	}
+	return &profile.Applied{Points: nonNil(res.Excluded.Points), LeftOut: nonNil(res.Excluded.LeftOut)}
 }
 
 // Arrhenius is the Document of the campaign's Arrhenius lines, as

@@ -5,11 +5,13 @@ import (
 	"fmt"
 	"html/template"
 	"io"
+	"strconv"
 	"strings"
 
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/profile"
 )
 
 // htmlProfile is one profile's section of the HTML report.
@@ -70,6 +72,7 @@ type htmlView struct {
 	Cautions              []string
 	Inputs                []campaign.InputFile
 	Options               [][2]string
+	Excluded              [][5]string
 	Level                 string
 	TempUnit              string
 	// CaseThreshold is the case-depth criterion when any profile has a
@@ -171,6 +174,7 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 	v := htmlView{Title: "Diffusion campaign report", Version: res.Version, Level: Level(level), TempUnit: u.Symbol(),
 		Failed: res.Failed, ComparisonError: Temps(res.ComparisonError, u), Methods: MethodNotes(), Cautions: res.Cautions, Inputs: res.Inputs, Options: auditPairs(res.audit()),
 		PartCautions: arrhenius.Cautions}
+	v.Excluded = excludedRows(res.Excluded)
 	v.Lead = fmt.Sprintf("%d profiles from %d input files; %d fitted with the %s model, %s intervals by %s.",
 		len(res.Profiles), len(res.Inputs), len(res.Results), res.Options.Model, Level(level), CIMethodDescription(fit.CIMethod(res.Options.CIMethod)))
 	unknown := map[string]bool{}
@@ -449,6 +453,8 @@ footer { margin-top: 3rem; font-size: .8rem; color: var(--muted); border-top: 1p
 <tbody>{{range .Inputs}}<tr><td class="mono">{{.Name}}</td><td class="mono">{{.SHA256}}</td><td class="num">{{.Bytes}}</td></tr>{{end}}</tbody></table>
 <table><thead><tr><th>option</th><th>value</th></tr></thead>
 <tbody>{{range .Options}}<tr><td>{{index . 0}}</td><td>{{index . 1}}</td></tr>{{end}}</tbody></table>
+{{if .Excluded}}<table><thead><tr><th>excluded (profile)</th><th>file, line</th><th>depth (µm)</th><th>value</th><th>reason</th></tr></thead>
+<tbody>{{range .Excluded}}<tr><td>{{index . 0}}</td><td class="mono">{{index . 1}}</td><td class="num">{{index . 2}}</td><td class="num">{{index . 3}}</td><td>{{index . 4}}</td></tr>{{end}}</tbody></table>{{end}}
 </section>
 
 <footer>Written by fickfit {{.Version}}. The same inputs and options give the same numbers; the SHA-256 sums identify the input files.</footer>
@@ -456,6 +462,28 @@ footer { margin-top: 3rem; font-size: .8rem; color: var(--muted); border-top: 1p
 </body>
 </html>
 `
+
+// excludedRows lists the exclusions for the audit trail: profile, file
+// and line, depth in µm, value, reason; a profile left out of the
+// Arrhenius lines has "whole profile" for its depth.
+func excludedRows(a *profile.Applied) [][5]string {
+	if a == nil {
+		return nil
+	}
+	var out [][5]string
+	for _, e := range a.Points {
+		where := e.File
+		if e.Line > 0 {
+			where += fmt.Sprintf(":%d", e.Line)
+		}
+		// As written in the files (six significant digits at most), not rounded to an uncertainty.
+		out = append(out, [5]string{e.Profile, where, strconv.FormatFloat(e.Depth*1e6, 'g', 6, 64), strconv.FormatFloat(e.Value, 'g', 6, 64), e.Reason})
+	}
+	for _, l := range a.LeftOut {
+		out = append(out, [5]string{l.Profile, l.File, "whole profile (left out of the Arrhenius lines)", "", l.Reason})
+	}
+	return out
+}
 
 // shortConditions writes "880 °C, 5 h" for summary tables.
 func shortConditions(r *fit.Result, u TempUnit) string {

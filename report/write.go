@@ -24,6 +24,9 @@ const (
 	FileWorkbook  = "results.xlsx"
 	FileHTML      = "report.html"
 	DirFigures    = "figures"
+	// FileExclusions is the exclusions file applied (written only when
+	// there is one); fickfit reads it back with --exclude.
+	FileExclusions = "exclusions.csv"
 )
 
 // renderedFigure is a figure drawn as SVG (inline and standalone) and PNG.
@@ -109,6 +112,9 @@ func WriteCampaign(dir string, result *campaign.Result, opts CampaignOptions) ([
 	if len(res.Parts) > 0 {
 		add(FileBackcalc, res.Backcalc().WriteCSV)
 	}
+	if res.Exclusions != nil {
+		add(FileExclusions, res.Exclusions.WriteCSV)
+	}
 	to := TextOptions{TempUnit: opts.TempUnit}
 	add(FileSummary, func(w io.Writer) error {
 		if err := res.WriteSummary(w, TextOptions{TempUnit: opts.TempUnit, NoCautions: true}); err != nil {
@@ -174,7 +180,7 @@ func WriteCampaign(dir string, result *campaign.Result, opts CampaignOptions) ([
 // reportNames are the entries a campaign report folder holds.
 var reportNames = map[string]bool{
 	FileJSON: true, FileCSV: true, FileResiduals: true, FileArrhenius: true, FileBackcalc: true,
-	FileSummary: true, FileWorkbook: true, FileHTML: true, DirFigures: true,
+	FileSummary: true, FileWorkbook: true, FileHTML: true, DirFigures: true, FileExclusions: true,
 }
 
 // ForeignEntries lists (up to three) entries of dir that are not part of a

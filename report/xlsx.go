@@ -802,8 +802,19 @@ func (x *xlWriter) auditSheet(res *CampaignReport) {
 			x.err = x.f.SetRowHeight(s, row+1+i, 30)
 		}
 	}
+	last := row + len(res.Cautions)
+	if rows := excludedRows(res.Excluded); len(rows) > 0 {
+		row = last + 2
+		x.header(s, row, "excluded (profile)", "file, line", "depth (µm)", "value", "reason")
+		for i, r := range rows {
+			for j, v := range r {
+				x.set(s, 1+j, row+1+i, v, x.st.text)
+			}
+		}
+		last = row + len(rows)
+	}
 	x.widths(s, 34, 100, 10)
-	x.pageSetup(s, 3, row+len(res.Cautions), false, 0, 0)
+	x.pageSetup(s, 3, last, false, 0, 0)
 }
 
 // auditPairs lists the options as (name, value) for the audit trail.
@@ -824,7 +835,7 @@ func auditPairs(a campaign.AuditOptions) [][2]string {
 	if by == "" {
 		by = "none (one line)"
 	}
-	return [][2]string{
+	return append([][2]string{
 		{"model", a.Model}, {"interval method", a.CIMethod}, {"confidence level", fmt.Sprint(a.Level)},
 		{"σ taken as known (absolute)", fmt.Sprint(a.AbsoluteSigma)}, {"fixed parameters", join(a.Fixed)},
 		{"freed parameters", join(a.Free)}, {"grouped by", by}, {"Arrhenius method", a.Method},
@@ -832,5 +843,18 @@ func auditPairs(a campaign.AuditOptions) [][2]string {
 		{"comparison temperature (K)", f(a.TRef, "where the data are centred")},
 		{"reference lines", join(a.References)}, {"back-calculation interval", a.SolveMethod},
 		{"temperature unit", a.TempUnit},
+	}, exclusionsPair(a)...)
+}
+
+// exclusionsPair lists the options that are written only when used: the
+// case-depth threshold, the hardness calibration and the exclusions file.
+func exclusionsPair(a campaign.AuditOptions) [][2]string {
+	var out [][2]string
+	for _, kv := range [][2]string{{"case-depth threshold", a.CaseThreshold},
+		{"hardness calibration", a.HardnessCalibration}, {"exclusions file", a.Exclusions}} {
+		if kv[1] != "" {
+			out = append(out, kv)
+		}
 	}
+	return out
 }

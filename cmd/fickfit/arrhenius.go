@@ -1,6 +1,8 @@
 package main
 
 import (
+	"slices"
+
 	"github.com/spf13/cobra"
 
 	"github.com/fickfit/fickfit/arrhenius"
@@ -43,7 +45,7 @@ profiles (lot by default when the files give one) and gives one line per group.`
 				}
 				o.TemperatureSigma = v
 			}
-			results, ps, notUsed, err := fittedInputsKeepGoing(args, &ff, keepGoing)
+			results, ps, notUsed, err := fittedInputsKeepGoing(args, &ff, c.ErrOrStderr(), keepGoing)
 			if err != nil {
 				return err
 			}
@@ -52,6 +54,7 @@ profiles (lot by default when the files give one) and gives one line per group.`
 				if len(ps) == 0 || len(ps) != len(results) {
 					return usagef("--global needs the profiles themselves, not saved fits")
 				}
+				ps = slices.DeleteFunc(ps, func(p profile.Profile) bool { return ff.leftOut(p.ID) })
 				fo, err := ff.options()
 				if err != nil {
 					return err
@@ -61,7 +64,7 @@ profiles (lot by default when the files give one) and gives one line per group.`
 					return err
 				}
 			} else {
-				pts, unused, err := pointsKeepGoing(results, keepGoing)
+				pts, unused, err := pointsKeepGoing(ff.leaveOut(results), keepGoing)
 				if err != nil {
 					return err
 				}

@@ -84,7 +84,7 @@ codes and licensed engineering judgement before deciding on parts.`,
 				}
 				so.Temperature = v
 			}
-			results, _, err := fittedInputs(args, &ff)
+			results, _, err := fittedInputs(args, &ff, c.ErrOrStderr())
 			if err != nil {
 				return err
 			}

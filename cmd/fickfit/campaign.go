@@ -74,6 +74,7 @@ func (cf *campaignFlags) options(c *cobra.Command) (campaign.Options, report.Cam
 		},
 	}
 	o.Solve.Seed = cf.ff.seed
+	o.Exclusions = cf.ff.excl
 	if cf.tref != "" {
 		if o.TRef, err = profile.ParseTemperature(cf.tref); err != nil {
 			return o, ro, usagef("--tref: %v", err)

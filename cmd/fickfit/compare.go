@@ -45,11 +45,11 @@ temperature with its confidence interval and a plain verdict with the p-value.`,
 				}
 				o.TemperatureSigma = v
 			}
-			results, _, notUsed, err := fittedInputsKeepGoing(args, &ff, keepGoing)
+			results, _, notUsed, err := fittedInputsKeepGoing(args, &ff, c.ErrOrStderr(), keepGoing)
 			if err != nil {
 				return err
 			}
-			pts, unused, err := pointsKeepGoing(results, keepGoing)
+			pts, unused, err := pointsKeepGoing(ff.leaveOut(results), keepGoing)
 			if err != nil {
 				return err
 			}

@@ -50,6 +50,9 @@ highest temperature), exact when D does not depend on concentration.`,
 			if err := ff.checkBelowLimit(ps); err != nil {
 				return err
 			}
+			if err := ff.excludePoints(ps, c.ErrOrStderr()); err != nil {
+				return err
+			}
 			if err := ff.override(ps); err != nil {
 				return err
 			}

@@ -2,7 +2,7 @@ package main
 
 import (
 	"fmt"
-	"strconv"
+	"io"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -32,6 +32,9 @@ type fitFlags struct {
 	surface                      string
 	belowLimit                   string
 	calMargin                    string
+	exclude                      string
+	excl                         *profile.Exclusions
+	applied                      *profile.Applied
 }
 
 func (f *fitFlags) register(c *cobra.Command) {
@@ -59,6 +62,7 @@ func (f *fitFlags) register(c *cobra.Command) {
 	fl.StringVar(&f.calMargin, "calibration-margin", "", "with --hardness-calibration: readings beyond the calibration's ends by at most this much are clamped to the end value (with a warning), further out they are left out: a hardness (10HV) or a share of the calibrated range (5%, the default)")
 	fl.StringVar(&f.belowLimit, "below-limit", "omit", "values written below a detection limit (<0.01, n.d.): omit (leave the points out, listed, with a warning) or refuse (stop with an error naming the line)")
 	_ = c.RegisterFlagCompletionFunc("below-limit", fixed("omit", "refuse"))
+	fl.StringVar(&f.exclude, "exclude", "", "exclusions file (CSV: file, profile, depth_um, line, reason; as fickfit serve saves it): points left out of the fits, profiles without a depth left out of the Arrhenius lines")
 	_ = c.RegisterFlagCompletionFunc("model", fixed(append(fit.ModelNames(), "numeric", "auto")...))
 	_ = c.RegisterFlagCompletionFunc("ci", fixed(fit.CIMethods()...))
 	_ = c.RegisterFlagCompletionFunc("dc", fixed(numeric.Laws()...))
@@ -151,6 +155,13 @@ func (f *fitFlags) options() (fit.Options, error) {
 		}
 		o.DecarbFraction = f.decarbFraction
 	}
+	if f.exclude != "" && f.excl == nil {
+		x, err := profile.ReadExclusions(f.exclude)
+		if err != nil {
+			return o, err
+		}
+		f.excl = x
+	}
 	if f.hardnessCal != "" {
 		cal, err := profile.ReadCalibration(f.hardnessCal)
 		if err != nil {
@@ -166,15 +177,11 @@ func (f *fitFlags) options() (fit.Options, error) {
 	if len(f.fix) > 0 {
 		o.Fixed = map[string]float64{}
 		for _, s := range f.fix {
-			name, val, ok := strings.Cut(s, "=")
-			if !ok {
-				return o, usagef("--fix %q: write NAME=VALUE, e.g. --fix Cs=1.05", s)
-			}
-			v, err := fixValue(strings.TrimSpace(val))
+			name, v, err := fit.ParseFixed(s)
 			if err != nil {
-				return o, usagef("--fix %s: %v", s, err)
+				return o, usagef("--fix %v", plain(err))
 			}
-			o.Fixed[strings.TrimSpace(name)] = v
+			o.Fixed[name] = v
 		}
 	}
 	return o, nil
@@ -213,15 +220,51 @@ func (f *fitFlags) checkBelowLimit(ps []profile.Profile) error {
 	return nil
 }
 
-// fixValue reads a plain number, or a length with its unit (for x0, xm).
-func fixValue(s string) (float64, error) {
-	if v, err := strconv.ParseFloat(s, 64); err == nil {
-		return v, nil
+// excludePoints takes the points of --exclude out of the profiles
+// (options must have been called) and says on w which rows concern no
+// input profile.
+func (f *fitFlags) excludePoints(ps []profile.Profile, w io.Writer) error {
+	if f.excl == nil {
+		return nil
 	}
-	if v, err := profile.ParseLength(s); err == nil {
-		return v, nil
+	a, err := f.excl.Apply(ps)
+	if err != nil {
+		return err
 	}
-	return 0, fmt.Errorf("%q is not a number (or a length with a unit such as 0.02mm)", s)
+	f.applied = a
+	if len(a.Unused) > 0 {
+		ids := make([]string, len(a.Unused))
+		for i, e := range a.Unused {
+			ids[i] = e.Profile
+		}
+		fmt.Fprintf(w, "fickfit: %s: %d rows concern profiles not among the inputs (%s); they were not used\n",
+			f.exclude, len(ids), strings.Join(ids, ", "))
+	}
+	return nil
+}
+
+// leftOut tells whether --exclude leaves the profile id out of the
+// Arrhenius lines and comparisons (a row without a depth).
+func (f *fitFlags) leftOut(id string) bool {
+	if f.excl != nil {
+		for _, e := range f.excl.Rows {
+			if e.Whole() && e.Profile == id {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+// leaveOut drops the fits of the profiles that --exclude leaves out.
+func (f *fitFlags) leaveOut(rs []*fit.Result) []*fit.Result {
+	var out []*fit.Result
+	for _, r := range rs {
+		if !f.leftOut(r.ID) {
+			out = append(out, r)
+		}
+	}
+	return out
 }
 
 // override applies --temperature, --time and --thickness to every profile,

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"io"
 	"strings"
 
 	"github.com/fickfit/fickfit/arrhenius"
@@ -10,18 +11,19 @@ import (
 )
 
 // fittedInputs reads the arguments as profiles (fitted here with the fit
-// flags) or as JSON files that 'fickfit fit' wrote. It returns the results
-// and, when profiles were read, the profiles (in the same order). The
-// first unreadable input or unfittable profile stops it.
-func fittedInputs(args []string, ff *fitFlags) ([]*fit.Result, []profile.Profile, error) {
-	rs, ps, _, err := fittedInputsKeepGoing(args, ff, false)
+// flags, less the points of --exclude) or as JSON files that 'fickfit fit'
+// wrote. It returns the results and, when profiles were read, the
+// profiles (in the same order). The first unreadable input or unfittable
+// profile stops it.
+func fittedInputs(args []string, ff *fitFlags, stderr io.Writer) ([]*fit.Result, []profile.Profile, error) {
+	rs, ps, _, err := fittedInputsKeepGoing(args, ff, stderr, false)
 	return rs, ps, err
 }
 
 // fittedInputsKeepGoing is fittedInputs that, with keepGoing, leaves out
 // unreadable files and profiles that cannot be fitted and lists them.
 // The profiles returned are those whose fit is in the results, in order.
-func fittedInputsKeepGoing(args []string, ff *fitFlags, keepGoing bool) ([]*fit.Result, []profile.Profile, []report.NotUsed, error) {
+func fittedInputsKeepGoing(args []string, ff *fitFlags, stderr io.Writer, keepGoing bool) ([]*fit.Result, []profile.Profile, []report.NotUsed, error) {
 	var jsonFiles, profFiles []string
 	for _, a := range args {
 		if strings.EqualFold(fileExt(a), ".json") {
@@ -41,6 +43,9 @@ func fittedInputsKeepGoing(args []string, ff *fitFlags, keepGoing bool) ([]*fit.
 			notUsed = append(notUsed, report.NotUsed{File: j, Reason: err.Error()})
 			continue
 		}
+		if err := savedFitsExcluded(rs, ff.excl); err != nil {
+			return nil, nil, nil, err
+		}
 		results = append(results, rs...)
 	}
 	var ps []profile.Profile
@@ -55,6 +60,9 @@ func fittedInputsKeepGoing(args []string, ff *fitFlags, keepGoing bool) ([]*fit.
 		}
 		notUsed = append(notUsed, skipped...)
 		if err := ff.checkBelowLimit(ps); err != nil {
+			return nil, nil, nil, err
+		}
+		if err := ff.excludePoints(ps, stderr); err != nil {
 			return nil, nil, nil, err
 		}
 		if err := ff.override(ps); err != nil {
@@ -98,6 +106,22 @@ func pointsKeepGoing(results []*fit.Result, keepGoing bool) ([]arrhenius.Point, 
 		pts = append(pts, p)
 	}
 	return pts, notUsed, nil
+}
+
+// savedFitsExcluded refuses exclusions of points of a saved fit: the
+// points can only be left out of the profile itself.
+func savedFitsExcluded(rs []*fit.Result, x *profile.Exclusions) error {
+	if x == nil {
+		return nil
+	}
+	for _, r := range rs {
+		for _, e := range x.Rows {
+			if !e.Whole() && e.Profile == r.ID {
+				return usagef("%s:%d: profile %s comes from a saved fit (%s): its points cannot be excluded there; give the profile's file instead", x.Source, e.Row, r.ID, r.Source)
+			}
+		}
+	}
+	return nil
 }
 
 func fileExt(p string) string {
