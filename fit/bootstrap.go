@@ -89,7 +89,7 @@ func (r *Result) bootstrapIntervals(o Options) error {
 		}
 		pr := Problem{Y: dd.Y, W: dd.W, Free: r.free, Func: func(p, f, jac []float64) { m.Eval(p, dd, f, jac) }}
 		sol, err := Solve(pr, r.pint, o.Settings)
-		if err == nil && sol.Converged {
+		if err == nil && r.usable(sol) {
 			v := make([]float64, k)
 			for a, j := range idx {
 				v[a] = sol.P[j]
@@ -119,6 +119,9 @@ func (r *Result) bootstrapIntervals(o Options) error {
 	}
 	col := make([]float64, len(good))
 	for a, j := range idx {
+		if j == r.limit() {
+			continue // at its limit: no interval (see finish)
+		}
 		for b, v := range good {
 			col[b] = v[a]
 		}
@@ -138,6 +141,16 @@ func (r *Result) bootstrapIntervals(o Options) error {
 		r.CIMethod = CIBootstrapBCa
 	}
 	return nil
+}
+
+// usable tells whether a refit of resampled data is an answer: certified,
+// or at the same limit of the model as the fit itself (see atLimit).
+func (r *Result) usable(sol *Solution) bool {
+	if sol.Converged {
+		return true
+	}
+	j := atLimit(r.model.Params(), sol, r.p0)
+	return j >= 0 && (j == r.limit() || r.limit() < 0)
 }
 
 // jackknife refits the model leaving out each point in turn and returns
@@ -166,7 +179,7 @@ func (r *Result) jackknife(idx []int, set *Settings) [][]float64 {
 		dd := &Data{X: xs, Y: ys, W: ws, Time: d.Time, Thickness: d.Thickness, Faces: d.Faces}
 		pr := Problem{Y: ys, W: ws, Free: r.free, Func: func(p, f, jac []float64) { m.Eval(p, dd, f, jac) }}
 		sol, err := Solve(pr, r.pint, set)
-		if err != nil || !sol.Converged {
+		if err != nil || !r.usable(sol) {
 			continue
 		}
 		v := make([]float64, len(idx))

@@ -46,7 +46,6 @@ func failureCases() []struct {
 	o      Options
 	reason []string
 } {
-	erfA3 := func(xmm float64) float64 { return 0.9 - 0.7*math.Erf(xmm/1.2) }
 	rng := rand.New(rand.NewPCG(2, 3))
 	return []struct {
 		name   string
@@ -54,9 +53,6 @@ func failureCases() []struct {
 		o      Options
 		reason []string
 	}{
-		// A sound profile stopped after two iterations from every start.
-		{"iteration limit", failShape("limit", 14, 2.6, erfA3), Options{Settings: &Settings{MaxIter: 2}},
-			[]string{"did not converge", "iteration limit (2)"}},
 		// A straight line: the plateau is never reached, D grows without
 		// bound while C0 falls (the erf is linear near its origin).
 		{"straight line", failShape("line", 12, 1.2, func(x float64) float64 { return 0.9 - 0.5*x }), Options{},
@@ -77,11 +73,6 @@ func failureCases() []struct {
 		// Two depths with replicates cannot determine three parameters.
 		{"two depths", failProfile("twodepths", []float64{0.1, 0.1, 0.1, 0.1, 0.5, 0.5, 0.5, 0.5},
 			[]float64{0.8, 0.81, 0.79, 0.8, 0.5, 0.51, 0.49, 0.5}), Options{}, []string{"distinct depth"}},
-		// A hump (rises then falls) is no erf: ln D runs off and D loses its
-		// effect on the curve. The reason must name D, not "parameter 1".
-		{"hump", failShape("hump", 14, 1.4, func(x float64) float64 {
-			return 0.5 + 0.3*math.Exp(-math.Pow((x-0.7)/0.2, 2))
-		}), Options{}, []string{"D "}},
 		// Scatter about one level (seeded) with the surface offset freed:
 		// nothing locates x0 (without --free x0 these data fit, with
 		// warnings). The reason must name x0.
@@ -125,6 +116,33 @@ func TestFailuresExplained(t *testing.T) {
 	}
 }
 
+// TestHumpNoConfidentAnswer: a hump (rises then falls) is no erf. From the
+// model's start ln D runs off (D loses its effect on the curve); the
+// failure path then finds a certified optimum of the erf model (a step up
+// near the surface), but the data bound neither D nor Cs: the intervals are
+// open on both sides and say so, rather than a confident D (common
+// practice, no source).
+func TestHumpNoConfidentAnswer(t *testing.T) {
+	p := failShape("hump", 14, 1.4, func(x float64) float64 {
+		return 0.5 + 0.3*math.Exp(-math.Pow((x-0.7)/0.2, 2))
+	})
+	r, err := Fit(p, Options{})
+	if err != nil {
+		// An honest "no answer" is acceptable too, if it names D.
+		if !errors.Is(err, ErrNoAnswer) || !strings.Contains(err.Error(), "D ") {
+			t.Fatalf("error %v, want a result with an open D interval or ErrNoAnswer naming D", err)
+		}
+		return
+	}
+	D := r.Param("D")
+	if !math.IsNaN(D.CI.Lo) || !math.IsNaN(D.CI.Hi) {
+		t.Errorf("D = %g with interval %v: the hump cannot bound D", D.Value, D.CI)
+	}
+	if !hasWarning(r, "ci-open", "D") || !hasWarning(r, "d-uncertain", "") {
+		t.Errorf("warnings %v: want ci-open naming D and d-uncertain", r.Warnings)
+	}
+}
+
 func containsAny(s string, words []string) bool {
 	for _, w := range words {
 		if strings.Contains(s, w) {
@@ -150,8 +168,15 @@ func TestSolveReportsIterationLimit(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if sol.Converged || sol.Iterations != 3 || !strings.Contains(sol.Reason, "iteration limit (3)") {
-		t.Errorf("converged %v after %d iterations, reason %q", sol.Converged, sol.Iterations, sol.Reason)
+	if sol.Converged || sol.Status != IterationLimit || sol.Iterations != 3 || !strings.Contains(sol.Reason, "iteration limit (3)") {
+		t.Errorf("converged %v (status %v) after %d iterations, reason %q", sol.Converged, sol.Status, sol.Iterations, sol.Reason)
+	}
+	// The fit's message names the free parameter still moving, by the name
+	// --fix takes. (A whole fit no longer stops here: its failure path tries
+	// other starts and a simplex search, which certify this sound profile.)
+	why := failureReason(m, sol, pr.Free, p0)
+	if !strings.Contains(why, "iteration limit (3)") || !strings.Contains(why, "was still moving") || !containsAny(why, []string{" D ", " Cs ", " C0 "}) {
+		t.Errorf("failure reason %q does not name the moving parameter", why)
 	}
 }
 

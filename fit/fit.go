@@ -200,11 +200,13 @@ func fitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 	if constant(d.Y) {
 		return nil, fmt.Errorf("%w: all %d values are equal (%g): there is no profile to fit", ErrBadInput, n, d.Y[0])
 	}
-	sol, err := solveRobust(m, d, p0, free, o.Settings)
+	rb, err := solveRobust(m, d, p0, free, o.Settings)
 	if err != nil {
 		return nil, err
 	}
-	if !sol.Converged {
+	sol := rb.Sol
+	limit := atLimit(m.Params(), sol, p0)
+	if !sol.Converged && limit < 0 {
 		return nil, fmt.Errorf("%w: the %s fit did not converge: %s. Try fixing a parameter (--fix), adding deeper or shallower points, or another model", ErrNoAnswer, m.Name(), failureReason(m, sol, free, p0))
 	}
 	r := &Result{
@@ -212,16 +214,40 @@ func fitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 		ValueUnit: p.ValueUnit, Converged: true, Time: p.Time, Temperature: p.Temperature,
 		TemperatureSigma: p.TemperatureSigma, Thickness: d.Thickness, Meta: p.Meta,
 		model: m, data: d, pint: append([]float64(nil), sol.P...), free: free,
+		lim: limit + 1, p0: p0,
 	}
 	err = r.finish(sol, o)
 	sol.release() // the result keeps copies, not the solver's workspace
 	if err != nil {
 		return nil, err
 	}
+	r.warnOptima(rb)
 	if err := r.depths(o); err != nil {
 		return nil, err
 	}
 	return r, nil
+}
+
+// warnOptima says when the starts of the failure path disagree: two
+// certified optima, or an uncertified end point below the reported one.
+func (r *Result) warnOptima(rb robust) {
+	unit := "m²/s"
+	if e := r.Param("D"); e != nil && e.Unit == "m2" {
+		unit = "m² (Dt)"
+	}
+	if len(rb.Optima) > 1 {
+		a, b := rb.Optima[0], rb.Optima[1]
+		verdict := fmt.Sprintf("The reported one fits best; the other is a local optimum of the %s model, so check that the model suits the profile's shape.", r.Model)
+		if math.Abs(a.RSS-b.RSS) <= 1e-9*b.RSS {
+			verdict = fmt.Sprintf("Both fit equally well: these data cannot decide between them, so D is not determined by the %s model here.", r.Model)
+		}
+		r.Warn("multiple-optima", "Different starts of the solver reached different optima: D = %.6g %s (RSS %.6g, from %s; reported) and D = %.6g %s (RSS %.6g, from %s). %s",
+			a.D, unit, a.RSS, a.Start, b.D, unit, b.RSS, b.Start, verdict)
+	}
+	if l := rb.Lower; l != nil {
+		r.Warn("multiple-optima", "From %s the residual sum fell to %.6g, below the reported optimum's %.6g, without a certified optimum there (solver status %s, D = %.6g %s): the best fit may lie at an edge of the %s model, where a parameter runs off to 0 or infinity. Treat the reported D = %.6g %s with care, or compare models with --model auto.",
+			l.Start, l.RSS, rb.Optima[0].RSS, l.Status, l.D, unit, r.Model, rb.Optima[0].D, unit)
+	}
 }
 
 func constant(y []float64) bool {
@@ -231,46 +257,6 @@ func constant(y []float64) bool {
 		}
 	}
 	return true
-}
-
-// solveRobust runs the solver from the model's start and, if that fails,
-// from starts with D scaled by 10^±1, 10^±2 and 10^±3 (and other Log
-// parameters left alone), keeping the best converged answer. Users never
-// supply starting values.
-func solveRobust(m Model, d *Data, p0 []float64, free []bool, s *Settings) (*Solution, error) {
-	np := len(p0)
-	pr := Problem{Y: d.Y, W: d.W, Free: free, Func: func(p, f, jac []float64) { m.Eval(p, d, f, jac) }}
-	best, err := Solve(pr, p0, s)
-	if err != nil {
-		return nil, err
-	}
-	if best.Converged {
-		return best, nil
-	}
-	params := m.Params()
-	jd := -1
-	for j, pa := range params {
-		if pa.Log && free[j] {
-			jd = j
-			break
-		}
-	}
-	if jd < 0 {
-		return best, nil
-	}
-	start := make([]float64, np)
-	for _, shift := range []float64{1, -1, 2, -2, 3, -3} {
-		copy(start, p0)
-		start[jd] += shift * math.Ln10
-		sol, err := Solve(pr, start, s)
-		if err != nil {
-			continue
-		}
-		if sol.Converged && (!best.Converged || sol.RSS < best.RSS) {
-			best = sol
-		}
-	}
-	return best, nil
 }
 
 // Data returns the data the model was fitted to.
@@ -337,7 +323,7 @@ func plural(n int, one, many string) string {
 func failureReason(m Model, sol *Solution, free []bool, p0 []float64) string {
 	params := m.Params()
 	switch {
-	case strings.HasPrefix(sol.Reason, "iteration limit"):
+	case sol.Status == IterationLimit:
 		// Name the free parameter that travelled furthest in units of its
 		// effect on the curve: it is the one the data do not hold.
 		kk := countTrue(free)
@@ -361,7 +347,7 @@ func failureReason(m Model, sol *Solution, free []bool, p0 []float64) string {
 	case sol.Stuck >= 0 && sol.Stuck < len(params):
 		name := params[sol.Stuck].Name
 		return fmt.Sprintf("%s has no effect on the curve at the final point: it ran off towards an asymptote (0 or infinity), so these data do not determine %s", name, name)
-	case sol.Unidentified:
+	case sol.Status == Unidentified:
 		var idx []int
 		for j, f := range free {
 			if f {

@@ -52,8 +52,34 @@ func massTransferShape(u, a float64) (g, gu, ga float64) {
 	// d erfc/du = −(2/√π)e^{−u²}; d(e^{−u²})/du = −2u e^{−u²};
 	// d erfcx/da = 2a·erfcx(a) − 2/√π.
 	gu = -(2/math.SqrtPi)*eu + 2*u*eu*ex
-	ga = -eu * (2*a*ex - 2/math.SqrtPi)
+	ga = -eu * erfcxDeriv(a, ex)
 	return g, gu, ga
+}
+
+// erfcxDeriv returns d erfcx/da = 2a·erfcx(a) − 2/√π given ex = erfcx(a).
+// For large a the two terms cancel to O(1/a²) (a fast surface reaction,
+// h√(Dt) ≫ 1, where the β column of the Jacobian lives on this
+// difference), so from a = 20 on it is summed from the asymptotic series
+// of erfcx (Abramowitz & Stegun 1964, eq. 7.1.23, from memory) with the
+// leading term removed:
+//
+//	2a·erfcx(a) − 2/√π = (2/√π)·Σₘ≥₁ (−1)ᵐ (2m−1)!!/(2a²)ᵐ,
+//
+// whose terms fall below 1e-17 of the sum within ten terms there.
+func erfcxDeriv(a, ex float64) float64 {
+	if a < 20 {
+		return 2*a*ex - 2/math.SqrtPi
+	}
+	z := 1 / (2 * a * a)
+	term, sum := 1.0, 0.0
+	for m := 1; m <= 30; m++ {
+		term *= -float64(2*m-1) * z
+		sum += term
+		if math.Abs(term) < 1e-17*math.Abs(sum) {
+			break
+		}
+	}
+	return 2 / math.SqrtPi * sum
 }
 
 // Eval implements Model. With u = x/(2√(Dt)) ∝ D^{-1/2} and
@@ -121,6 +147,15 @@ func (MassTransfer) Diagnose(r *Result) {
 	}
 	hs := b.Value * r.data.Time / math.Sqrt(D.Value*r.data.Time)
 	switch {
+	case math.IsInf(b.Value, 1):
+		bound := "the data give no lower bound either"
+		if r.CIMethod != "profile" {
+			bound = "--ci profile gives its lower bound"
+		}
+		if finite(b.CI.Lo) {
+			bound = fmt.Sprintf("the data only bound it from below, beta > %.3g %s", b.CI.Lo, b.Unit)
+		}
+		r.Warn("surface-fast", "The best fit has beta → ∞: the surface is held at Cp throughout and the profile is the constant-surface erf model (the nested limit of this model), so beta has no value (%s). D, Cp and C0 are those of the limit; prefer --model erf.", bound)
 	case hs > 20:
 		r.Warn("surface-fast", "The surface reaction is fast (β√t/√D = %.3g > 20): the surface is practically at Cp and the profile cannot be told from the constant-surface erf model, so β is poorly determined. Prefer --model erf.", hs)
 	case hs < 0.2:

@@ -229,6 +229,31 @@ func TestMassTransferRecovery(t *testing.T) {
 	}
 }
 
+// TestErfcxDeriv: d erfcx/da from the asymptotic series agrees with the
+// direct 2a·erfcx(a) − 2/√π where the latter still has digits to spare
+// (a = 20…40, cancellation costs log10(2a²) ≈ 3 digits), and with a
+// Richardson-extrapolated central difference of Erfcx at large a, where the
+// direct form has none left (self-check of an analytic identity; common
+// practice, no source).
+func TestErfcxDeriv(t *testing.T) {
+	for _, a := range []float64{20, 25, 30, 40} {
+		ex := Erfcx(a)
+		got, direct := erfcxDeriv(a, ex), 2*a*ex-2/math.SqrtPi
+		if math.Abs(got-direct) > 1e-11*math.Abs(got) {
+			t.Errorf("a = %g: series %.16g, direct %.16g", a, got, direct)
+		}
+	}
+	for _, a := range []float64{1e3, 1e5, 1e8} {
+		h := 1e-3 * a
+		d1 := (Erfcx(a+h) - Erfcx(a-h)) / (2 * h)
+		d2 := (Erfcx(a+h/2) - Erfcx(a-h/2)) / h
+		fd := (4*d2 - d1) / 3
+		if got := erfcxDeriv(a, Erfcx(a)); math.Abs(got-fd) > 1e-8*math.Abs(got) {
+			t.Errorf("a = %g: series %.12g, difference quotient %.12g", a, got, fd)
+		}
+	}
+}
+
 func BenchmarkMassTransferEval(b *testing.B) {
 	benchEval(b, MassTransfer{}, mtParams(1.2, 1.1, 0.2), Data{X: depths(50, 3e-3), Time: mtT})
 }

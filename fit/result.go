@@ -51,6 +51,88 @@ type Estimate struct {
 	StdErrLn float64 `json:"stderr_ln,omitempty"`
 }
 
+// MarshalJSON writes non-finite numbers as null (a parameter at its limit
+// has the value +∞ and no standard error).
+func (e Estimate) MarshalJSON() ([]byte, error) {
+	type plain Estimate
+	return json.Marshal(struct {
+		plain
+		Value    *float64 `json:"value"`
+		StdErr   *float64 `json:"stderr"`
+		StdErrLn *float64 `json:"stderr_ln,omitempty"`
+	}{plain(e), num(e.Value), num(e.StdErr), lnNum(e.StdErrLn)})
+}
+
+// lnNum is num with 0 (a parameter not on the log scale) left out too.
+func lnNum(v float64) *float64 {
+	if v == 0 || !finite(v) {
+		return nil
+	}
+	return &v
+}
+
+// UnmarshalJSON reads null as NaN.
+func (e *Estimate) UnmarshalJSON(b []byte) error {
+	type plain Estimate
+	var v struct {
+		plain
+		Value    *float64 `json:"value"`
+		StdErr   *float64 `json:"stderr"`
+		StdErrLn *float64 `json:"stderr_ln"`
+	}
+	if err := json.Unmarshal(b, &v); err != nil {
+		return err
+	}
+	*e = Estimate(v.plain)
+	e.Value, e.StdErr = val(v.Value), val(v.StdErr)
+	e.StdErrLn = 0
+	if v.StdErrLn != nil {
+		e.StdErrLn = *v.StdErrLn
+	}
+	return nil
+}
+
+// Matrix is a small dense matrix of rows; non-finite entries (undefined,
+// e.g. the correlations of a parameter at its limit) are written as null
+// in JSON and read back as NaN.
+type Matrix [][]float64
+
+// MarshalJSON writes non-finite entries as null.
+func (m Matrix) MarshalJSON() ([]byte, error) {
+	if m == nil {
+		return []byte("null"), nil
+	}
+	rows := make([][]*float64, len(m))
+	for i, row := range m {
+		rows[i] = make([]*float64, len(row))
+		for j, v := range row {
+			rows[i][j] = num(v)
+		}
+	}
+	return json.Marshal(rows)
+}
+
+// UnmarshalJSON reads null entries as NaN.
+func (m *Matrix) UnmarshalJSON(b []byte) error {
+	var rows [][]*float64
+	if err := json.Unmarshal(b, &rows); err != nil {
+		return err
+	}
+	if rows == nil {
+		*m = nil
+		return nil
+	}
+	out := make(Matrix, len(rows))
+	for i, row := range rows {
+		out[i] = make([]float64, len(row))
+		for j, v := range row {
+			out[i][j] = val(v)
+		}
+	}
+	*m = out
+	return nil
+}
+
 // Stats summarises the quality of a fit.
 type Stats struct {
 	N    int     `json:"n"`
@@ -154,9 +236,11 @@ type Result struct {
 	// ValueUnit is the unit of the measured values ("wt%", "HV"…).
 	ValueUnit string `json:"value_unit,omitempty"`
 	Converged bool   `json:"converged"`
-	// Time is the hold time in s (0 when not given: then D is reported as Dt).
+	// Time is the hold time in s (0 when not given: then D is reported as
+	// Dt; null in JSON).
 	Time float64 `json:"time_s"`
-	// Temperature is the hold temperature in K (0 when not given).
+	// Temperature is the hold temperature in K (0 when not given; null in
+	// JSON).
 	Temperature      float64 `json:"temperature_K"`
 	TemperatureSigma float64 `json:"temperature_sigma_K,omitempty"`
 	Thickness        float64 `json:"thickness_m,omitempty"`
@@ -172,8 +256,8 @@ type Result struct {
 	Params []Estimate `json:"params"`
 	// Correlation is the correlation matrix of the free parameters, in the
 	// order of FreeNames (internal scale, ln for Log parameters).
-	FreeNames   []string    `json:"free_names"`
-	Correlation [][]float64 `json:"correlation"`
+	FreeNames   []string `json:"free_names"`
+	Correlation Matrix   `json:"correlation"`
 
 	Stats     Stats      `json:"stats"`
 	Residuals []Residual `json:"residuals"`
@@ -197,10 +281,31 @@ type Result struct {
 	// Internal state for curves, bands and re-fits; not serialised.
 	model Model
 	data  *Data
-	pint  []float64   // all parameters, internal scale
-	free  []bool      // which are free
-	cov   [][]float64 // covariance of free parameters, internal scale
+	pint  []float64 // all parameters, internal scale
+	// lim is 1 + the index of a free log-scale parameter that sits at its
+	// limit (+∞; see atLimit); 0 means none.
+	lim int
+	// p0 is the model's start from the data (internal scale).
+	p0   []float64
+	free []bool      // which are free
+	cov  [][]float64 // covariance of free parameters, internal scale
 }
+
+// MarshalJSON writes the result with its fields' tags, except that a hold
+// time or temperature that was not given (0) is null, not 0: a script
+// must not read 0 s or 0 K as a measured value. Reading it back gives 0
+// again.
+func (r Result) MarshalJSON() ([]byte, error) {
+	type plain Result // the same fields without this method
+	b, err := jsonx.Marshal(plain(r))
+	if err != nil {
+		return nil, err
+	}
+	return jsonx.ZeroAsNull(b, "time_s", "temperature_K")
+}
+
+// limit returns the index of the parameter at its limit, or −1.
+func (r *Result) limit() int { return r.lim - 1 }
 
 // Param returns the estimate with the given name, or nil.
 func (r *Result) Param(name string) *Estimate {

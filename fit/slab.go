@@ -96,6 +96,15 @@ func newSlabSeries(tau float64) slabSeries {
 
 // at returns θ and ∂θ/∂lnτ at ξ = x/L.
 func (s *slabSeries) at(xi float64) (theta, dtheta float64) {
+	theta, _, dtheta = s.both(xi)
+	return theta, dtheta
+}
+
+// both returns θ, its complement φ = 1 − θ and ∂θ/∂lnτ at ξ = x/L, each
+// to full relative precision: the Fourier series gives φ directly (small
+// late in the uptake, where 1 − θ would lose every digit), the series of
+// images gives θ directly (small deep inside early on).
+func (s *slabSeries) both(xi float64) (theta, phi, dtheta float64) {
 	if s.fourier {
 		// sin(kφ) for odd k by the recurrence sin((k+2)φ) = 2cos(2φ)sin(kφ) − sin((k−2)φ).
 		phi := math.Pi * xi
@@ -109,7 +118,8 @@ func (s *slabSeries) at(xi float64) (theta, dtheta float64) {
 			dsum += k * cur * s.ek[j]
 			prev, cur = cur, c2*cur-prev
 		}
-		return 1 - 4/math.Pi*sum, 4 * math.Pi * s.tau * dsum
+		phi = 4 / math.Pi * sum
+		return 1 - phi, phi, 4 * math.Pi * s.tau * dsum
 	}
 	// Series of images; d erfc(w)/dlnτ = (w/√π)e^{−w²} for w = z/(2√τ).
 	// Terms with w > 6.5 (erfc < 4e-20, derivative < 2e-18) are skipped.
@@ -127,7 +137,7 @@ func (s *slabSeries) at(xi float64) (theta, dtheta float64) {
 			break
 		}
 	}
-	return theta, dtheta
+	return theta, 1 - theta, dtheta
 }
 
 // slabLength returns the effective sheet thickness (2L for one sealed face).
@@ -140,6 +150,14 @@ func slabLength(d *Data) float64 {
 
 // Eval implements Model. ∂C/∂lnD = (Cs − C0)·∂θ/∂lnτ since τ ∝ D. Without
 // a thickness it writes NaN (Start refuses such data first).
+//
+// Late in the uptake the profile is Cs − (Cs − C0)·φ with φ = 1 − θ small,
+// and with C0 free a refit may take Cs − C0 large while φ is tiny (D and C0
+// trade off along the single remaining mode). The value is therefore
+// formed as Cs − (Cs − C0)·φ from the Fourier series (C0 + (Cs − C0)·θ from
+// the images, where θ is the small one), and the C0 column is φ itself:
+// no difference of nearly equal numbers, so the result does not depend on
+// how the compiler fuses the arithmetic.
 func (Slab) Eval(p []float64, d *Data, f, jac []float64) {
 	L := slabLength(d)
 	if !(L > 0) {
@@ -152,13 +170,17 @@ func (Slab) Eval(p []float64, d *Data, f, jac []float64) {
 	cs, c0 := p[1], p[2]
 	dc := cs - c0
 	for i, x := range d.X {
-		th, dth := s.at(x / L)
-		f[i] = c0 + dc*th
+		th, phi, dth := s.both(x / L)
+		if s.fourier {
+			f[i] = cs - dc*phi
+		} else {
+			f[i] = c0 + dc*th
+		}
 		if jac != nil {
 			row := jac[3*i : 3*i+3]
 			row[0] = dc * dth
 			row[1] = th
-			row[2] = 1 - th
+			row[2] = phi
 		}
 	}
 }
@@ -200,6 +222,13 @@ func (Slab) Start(d *Data, p []float64) error {
 // saturated, when only the first Fourier mode is left (D and C0 are then
 // confounded unless C0 is fixed), or when the specimen is so thick that the
 // far face plays no part.
+//
+// Only the first mode is left when the rest of the fitted profile, the
+// part beyond Cs − (Cs − C0)(4/π)e^{−π²τ}·sin(πx/L) (Crank eq. 4.17, first
+// term), adds up over the points to less than three residual standard
+// deviations: the data then fix (Cs − C0)·e^{−π²τ} but not D and C0 apart,
+// and the profile statistic of D levels off (its upper bound is open). The
+// factor three is common practice, no source.
 func (Slab) Diagnose(r *Result) {
 	D := r.Param("D")
 	L := slabLength(r.data)
@@ -212,11 +241,29 @@ func (Slab) Diagnose(r *Result) {
 	case tau > 0.5:
 		// Centre deficit (4/π)·exp(−π²τ) < 1 % of the step at τ = 0.5 (Crank eq. 4.17, first term).
 		r.Warn("slab-saturated", "The specimen is practically saturated (Dt/L² = %.2g > 0.5; the centre is within %.2g %% of Cs): D rests on a small remaining difference and is poorly determined. A shorter time or a thicker specimen would measure it better.", tau, 100*4/math.Pi*math.Exp(-math.Pi*math.Pi*tau))
-	case tau > 0.06 && c0 != nil && !c0.Fixed:
-		// The second mode, (1/3)e^{−8π²τ} of the first, is below 1 % of it
-		// from τ ≈ 0.06: only the first mode is left to see.
-		r.Warn("slab-single-mode", "Late in the uptake (Dt/L² = %.2g > 0.06) the profile is a single sine arch, which fixes (Cs − C0)·exp(−π²Dt/L²) but not D and C0 apart. Fix C0 at the known initial level with --fix C0=… for a trustworthy D.", tau)
+	case c0 != nil && !c0.Fixed && tau >= slabTauSwitch:
+		higher, s := slabHigherModes(r, tau, L), r.Stats.RMSE
+		if higher < 3*s || math.IsNaN(D.CI.Hi) {
+			r.Warn("slab-single-mode", "Only the first Fourier mode of the slab solution is resolved (Dt/L² = %.2g; the higher modes add up to %.2g over the points, against a residual standard deviation of %.2g): the profile is a single sine arch, which fixes (Cs − C0)·exp(−π²Dt/L²) but not D and C0 apart, so D is biased and its upper bound is not determined. Fix C0 at the known initial level with --fix C0=… for a trustworthy D.", tau, higher, s)
+		}
 	case tau < 0.005:
 		r.Warn("slab-thick", "The diffusion length is small against the thickness (Dt/L² = %.2g): the far face plays no part and the semi-infinite erf model gives the same D with fewer assumptions.", tau)
 	}
+}
+
+// slabHigherModes is the weighted norm, over the data points, of the
+// fitted profile minus its first Fourier mode.
+func slabHigherModes(r *Result, tau, L float64) float64 {
+	cs, c0 := r.Param("Cs").Value, r.Param("C0").Value
+	a1 := (cs - c0) * 4 / math.Pi * math.Exp(-math.Pi*math.Pi*tau)
+	var ss float64
+	for i, x := range r.data.X {
+		h := r.Residuals[i].Fitted - (cs - a1*math.Sin(math.Pi*x/L))
+		w := 1.0
+		if r.data.W != nil {
+			w = r.data.W[i]
+		}
+		ss += w * h * h
+	}
+	return math.Sqrt(ss)
 }

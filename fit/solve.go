@@ -20,15 +20,22 @@ type Problem struct {
 
 // Settings tune Solve. A zero field takes the value from DefaultSettings.
 type Settings struct {
-	// MaxIter is the largest number of Jacobian evaluations.
+	// MaxIter is the largest number of iterations (Jacobian evaluations at
+	// accepted points).
 	MaxIter int
-	// FTol stops when the actual and predicted relative reductions of S
-	// are both below it.
+	// FTol is the certificate's tolerance on the predicted relative
+	// reduction of S: the reduction the quadratic model predicts for the
+	// next Levenberg–Marquardt step (damping at most the initial one),
+	// divided by S, must be below it.
 	FTol float64
-	// XTol stops when the scaled step is below XTol times the scaled parameters.
+	// XTol is ignored: a small step is not evidence of an optimum, so Solve
+	// no longer stops on it. Kept so that older callers still compile.
+	//
+	// Deprecated: the first-order certificate (FTol, GTol) decides.
 	XTol float64
-	// GTol stops when the largest cosine between the residual vector and a
-	// Jacobian column is below it (the gradient vanishes).
+	// GTol is the certificate's tolerance on the largest scaled gradient
+	// component |gⱼ|/(dⱼ√S), the cosine between the residual vector and
+	// the scaled Jacobian column j.
 	GTol float64
 	// CondMax is the largest condition number of the scaled JᵀWJ at the
 	// solution for the parameters to count as identified.
@@ -38,7 +45,7 @@ type Settings struct {
 // DefaultSettings returns tolerances tight enough to reproduce certified
 // reference values to about eight significant digits.
 func DefaultSettings() Settings {
-	return Settings{MaxIter: 200, FTol: 1e-14, XTol: 1e-12, GTol: 1e-12, CondMax: 1e13}
+	return Settings{MaxIter: 200, FTol: 1e-14, GTol: 1e-8, CondMax: 1e13}
 }
 
 func (s *Settings) withDefaults() Settings {
@@ -52,9 +59,6 @@ func (s *Settings) withDefaults() Settings {
 	}
 	if out.FTol <= 0 {
 		out.FTol = d.FTol
-	}
-	if out.XTol <= 0 {
-		out.XTol = d.XTol
 	}
 	if out.GTol <= 0 {
 		out.GTol = d.GTol
@@ -70,10 +74,20 @@ type Solution struct {
 	P          []float64 // all parameters (fixed ones unchanged)
 	F          []float64 // model values at P
 	RSS        float64   // weighted residual sum of squares at P
-	Iterations int       // Jacobian evaluations
-	Converged  bool
+	Iterations int       // Jacobian evaluations at accepted points
+	// Status says how Solve ended; Converged is Status == Certified.
+	Status    Status
+	Converged bool
 	// Reason says why the iteration stopped, in words.
 	Reason string
+	// FirstOrder is true when the first-order certificate held at P, even
+	// if P is no usable answer (Status Asymptote or Unidentified): S is then
+	// stationary to working precision in the free parameters.
+	FirstOrder bool
+	// Gradient is the largest scaled gradient component |gⱼ|/(dⱼ√S) at P and
+	// Predicted the predicted relative reduction of S of the next step: the
+	// two numbers of the certificate.
+	Gradient, Predicted float64
 	// JTJ is JᵀWJ over the free parameters at P (k×k, row-major).
 	JTJ []float64
 	// Jac is the N×P Jacobian at P.
@@ -83,24 +97,61 @@ type Solution struct {
 	// Stuck is the index of a free parameter that ran off to an asymptote
 	// (it no longer changes the model), or −1.
 	Stuck int
-	// Unidentified is true when the scaled JᵀWJ is too ill-conditioned for
-	// the free parameters to be told apart.
-	Unidentified bool
 
 	work *[]float64 // the workspace P, F, Jac and JTJ live in
 }
 
+// lambda0 is the initial damping, dimensionless: relative to the scaled
+// JᵀWJ, whose diagonal is 1 at the start (Nielsen's τ = 1e-3 for a start
+// of unknown quality: H. B. Nielsen, "Damping parameter in Marquardt's
+// method", IMM-REP-1999-05, DTU, 1999; from memory).
+const lambda0 = 1e-3
+
 // Solve minimises the problem by Levenberg–Marquardt with Moré's scaling
 // (J. J. Moré, "The Levenberg–Marquardt algorithm: implementation and
-// theory", in Numerical Analysis, ed. G. A. Watson, Springer LNM 630, 1978): the damped normal
-// equations (JᵀWJ + λ·diag(d²)) δ = JᵀW r, with d the running maximum of the
-// column norms, solved by Cholesky. We keep our own small solver rather than
-// gonum/optimize so that one fit allocates only its workspace: a profile
-// has 2–6 parameters and the normal equations are tiny.
+// theory", in Numerical Analysis, ed. G. A. Watson, Springer LNM 630, 1978).
+// We keep our own small solver rather than gonum/optimize so that one fit
+// allocates only its workspace: a profile has 2–6 parameters and the
+// normal equations are tiny.
+//
+// What is scaled by what. Each free parameter j is scaled by dⱼ, the
+// largest weighted Jacobian column norm ‖∂f/∂pⱼ‖_W met so far (Moré's
+// D, a running maximum); in the scaled variables zⱼ = dⱼpⱼ the columns
+// have norm at most 1, whatever the units of values and positions. The
+// damped normal equations are (JᵀWJ + λ·D²) δ = JᵀW r, so λ is
+// dimensionless (it compares with the unit diagonal of the scaled JᵀWJ);
+// it starts at 1e-3 and is divided by 3 after a very successful step,
+// doubled after a poor one and multiplied by 4 after a rejected one.
+// Residual sums enter only as ratios to S, gradients only as cosines
+// gⱼ/(dⱼ√S). Multiplying the values by a, shifting them by b, or
+// measuring a parameter in other units leaves every decision unchanged.
+//
+// Converged only on a first-order certificate at an accepted point: the
+// largest scaled gradient component is below GTol and the reduction of S
+// predicted for the next step (damping at most 1e-3) is below FTol·S.
+// Both floors are raised to what rounding in the residuals allows
+// (8ε(‖y‖_W + √S)), so data stored with a large offset still certify. A
+// small step alone proves nothing: a stop without the certificate has
+// Status IterationLimit or NoDescent and Converged false. Steps whose
+// predicted and actual changes of S are both below its rounding level are
+// accepted (Gauss–Newton polishing), so that the certificate can be met
+// where S itself no longer resolves the progress.
+//
+// Two moves leave the quadratic model aside. A free parameter whose
+// column has decayed below 1e-3 of its largest norm (it runs off towards
+// an asymptote, where the model is useless along it) is moved on directly,
+// by max(|pⱼ|, 1) and doubling, while S does not rise above rounding; this
+// happens when the solver stalls and before a certificate is accepted, so
+// that every run-off ends at the asymptote. And a step that lands where the
+// model has values but no finite Jacobian is taken back with 16 times the
+// damping.
 //
 // A point where the free parameters are not identified (condition number of
-// the scaled JᵀWJ above Settings.CondMax, or a Jacobian column that vanishes)
-// is returned with Converged false: it is not a minimum worth reporting.
+// the scaled JᵀWJ above Settings.CondMax) or where a free parameter ran off
+// to an asymptote (Stuck; its whole-size change, at least 1 in its internal
+// unit, moves the model by less than 1e-9 of the spread of the data) is
+// returned with Converged false: it is not a minimum worth reporting.
+// FirstOrder still tells whether the certificate held there.
 func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 	set := s.withDefaults()
 	n, np := len(pr.Y), len(p0)
@@ -124,10 +175,11 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 		return nil, fmt.Errorf("%w: %d observations for %d free parameters", ErrBadInput, n, k)
 	}
 
-	// One workspace block: p, trial, f, ftrial, jac, jtrial, a (JᵀWJ), chol, g, diag, delta.
-	// Trial points are evaluated with their Jacobian: most trials are
-	// accepted, and the Jacobian costs little beyond the values.
-	size := 2*np + 2*n + 2*n*np + 2*k*k + 3*k
+	// One workspace block: p, trial, prev, f, ftrial, jac, jtrial, a (JᵀWJ), two
+	// factors, g, diag, delta, u, v. Trial points are evaluated with their
+	// Jacobian: most trials are accepted, and the Jacobian costs little
+	// beyond the values.
+	size := 3*np + 2*n + 2*n*np + 3*k*k + 5*k
 	bp, _ := workPool.Get().(*[]float64)
 	if bp == nil || cap(*bp) < size {
 		fresh := make([]float64, size)
@@ -137,226 +189,185 @@ func Solve(pr Problem, p0 []float64, s *Settings) (*Solution, error) {
 	clear(buf)
 	whole := buf
 	take := func(m int) []float64 { v := buf[:m:m]; buf = buf[m:]; return v }
-	p, trial := take(np), take(np)
-	f, ftr := take(n), take(n)
-	jac, jtr := take(n*np), take(n*np)
-	a, chol := take(k*k), take(k*k)
-	g, diag, delta := take(k), take(k), take(k)
+	st := lmState{y: pr.Y, wts: pr.W, n: n, np: np, k: k}
+	p, trial, prev := take(np), take(np), take(np)
+	// The model values and Jacobians at p and at the trial point live
+	// apart from st, which holds the caller's data: only they are handed
+	// to the model function.
+	var ev evals
+	ev.f, ev.ftr = take(n), take(n)
+	ev.jac, ev.jtr = take(n*np), take(n*np)
+	jtj := take(k * k)
+	st.a, st.fac, st.fac2 = jtj, take(k*k), take(k*k)
+	st.g, st.diag, st.delta, st.u, st.v = take(k), take(k), take(k), take(k), take(k)
 	copy(p, p0)
 
-	rss := func(fv []float64) float64 {
-		var sum float64
-		for i, y := range pr.Y {
-			r := y - fv[i]
-			if pr.W != nil {
-				sum += pr.W[i] * r * r
-			} else {
-				sum += r * r
-			}
-		}
-		return sum
-	}
-	// normal builds a = JᵀWJ and g = JᵀW r over the free parameters.
-	var jfBuf [16]float64
-	jf := jfBuf[:0]
-	if k > len(jfBuf) {
-		jf = make([]float64, 0, k)
-	}
-	jf = jf[:k]
-	normal := func() {
-		clear(a)
-		clear(g)
-		if k == 3 {
-			normal3(pr, f, jac, np, idx, a, g)
-			return
-		}
-		for i := 0; i < n; i++ {
-			w := 1.0
-			if pr.W != nil {
-				w = pr.W[i]
-			}
-			r := pr.Y[i] - f[i]
-			row := jac[i*np : (i+1)*np]
-			for aa, ja := range idx {
-				jf[aa] = row[ja]
-			}
-			for aa, ja := range jf {
-				wj := w * ja
-				g[aa] += wj * r
-				arow := a[aa*k : aa*k+aa+1]
-				for bb := range arow {
-					arow[bb] += wj * jf[bb]
-				}
-			}
-		}
-		for aa := 0; aa < k; aa++ {
-			for bb := 0; bb < aa; bb++ {
-				a[bb*k+aa] = a[aa*k+bb]
-			}
-		}
-	}
-
 	sol := &Solution{Stuck: -1}
-	pr.Func(p, f, jac)
-	if !allFinite(f) || !allFinite(jac) {
+	pr.Func(p, ev.f, ev.jac)
+	if !allFinite(ev.f) || !allFinite(ev.jac) {
 		return nil, fmt.Errorf("%w: the model cannot be evaluated at the starting values", ErrNoAnswer)
 	}
-	cur := rss(f)
-	lambda := 0.0
+	for i, y := range pr.Y {
+		st.ynorm += st.w(i) * y * y
+	}
+	st.ynorm = math.Sqrt(st.ynorm)
+	cur := st.rss(ev.f)
+	lambda := lambda0
+	status := NotTerminated
 	reason := ""
-	converged := false
+	fresh := false // a and g belong to p
 	iter := 1
+	hasPrev, prevS := false, 0.0
 	for ; iter <= set.MaxIter; iter++ {
-		normal()
-		if !allFinite(a) || !allFinite(g) {
-			reason = "the Jacobian is not finite at the current parameters"
+		st.normal(&ev, idx)
+		fresh = true
+		if !allFinite(st.a) || !allFinite(st.g) {
+			if hasPrev {
+				// The last step landed where the model has values but no
+				// finite Jacobian (a parameter overflowed): take it back
+				// and damp harder.
+				copy(p, prev)
+				ev.swap()
+				cur, hasPrev, fresh = prevS, false, false
+				lambda = 16 * math.Max(lambda, lambda0)
+				continue
+			}
+			status, reason = NotFinite, "the Jacobian is not finite at the current parameters"
 			break
 		}
-		// Moré's scaling: d_j = max over iterations of the column norm.
-		var gmax float64
-		for aa := 0; aa < k; aa++ {
-			cn := math.Sqrt(a[aa*k+aa])
-			if cn > diag[aa] {
-				diag[aa] = cn
+		st.scale()
+		if st.certify(cur, lambda, set) {
+			// A parameter whose column has all but vanished may be
+			// certified only because it has: move it on towards its
+			// asymptote while S allows, so that every such run-off ends as
+			// Asymptote, not at an arbitrary point of the plateau.
+			if next, moved := st.push(pr.Func, &ev, p, trial, idx, cur); moved {
+				cur, hasPrev = next, false
+				lambda = lambda0
+				fresh = false
+				continue
 			}
-			if cn > 0 && cur > 0 {
-				gmax = math.Max(gmax, math.Abs(g[aa])/(cn*math.Sqrt(cur)))
-			}
-		}
-		if gmax <= set.GTol {
-			converged, reason = true, "gradient vanished"
+			status = Certified
 			break
-		}
-		if lambda == 0 {
-			var m float64
-			for aa := 0; aa < k; aa++ {
-				m = math.Max(m, a[aa*k+aa])
-			}
-			lambda = 1e-3 * m
-			if lambda == 0 {
-				lambda = 1e-3
-			}
 		}
 		// Inner loop: raise λ until the step reduces S.
-		stepped := false
+		floorS := st.roundS(cur)
+		accepted := false
 		for tries := 0; tries < 60; tries++ {
-			for aa := 0; aa < k; aa++ {
-				for bb := 0; bb < k; bb++ {
-					chol[aa*k+bb] = a[aa*k+bb]
-				}
-				d := diag[aa]
-				if d == 0 {
-					d = 1
-				}
-				chol[aa*k+aa] += lambda * d * d
-			}
-			if !cholSolve(chol, g, delta, k) {
+			if !st.step(lambda, st.fac, st.delta) {
 				lambda *= 10
 				continue
 			}
-			if tries == 0 && gaussNewtonLike(a, diag, lambda, k) {
-				// With negligible damping the quadratic model is the
-				// Gauss–Newton one: when even its full step would reduce S
-				// by less than FTol relatively, S is at its minimum to
-				// working precision and the trial evaluation is not needed.
-				if predicted(a, g, delta, k) <= set.FTol*cur {
-					converged, reason = true, "predicted reduction of the residual sum below tolerance"
-					break
-				}
-			}
+			pred := predicted(st.a, st.g, st.delta, k)
 			copy(trial, p)
 			for aa, ja := range idx {
-				trial[ja] += delta[aa]
+				trial[ja] += st.delta[aa]
 			}
-			pr.Func(trial, ftr, jtr)
-			next := rss(ftr) // NaN or Inf when any value is not finite
+			pr.Func(trial, ev.ftr, ev.jtr)
+			next := st.rss(ev.ftr) // NaN or Inf when any value is not finite
 			if !finite(next) {
 				next = math.Inf(1)
 			}
-			pred := predicted(a, g, delta, k)
-			var dx, xn float64
-			for aa, ja := range idx {
-				d := diag[aa]
-				if d == 0 {
-					d = 1
-				}
-				dx += (d * delta[aa]) * (d * delta[aa])
-				xn += (d * p[ja]) * (d * p[ja])
-			}
-			dx, xn = math.Sqrt(dx), math.Sqrt(xn)
-			if next < cur {
-				actRel := (cur - next) / math.Max(cur, tiny)
-				predRel := pred / math.Max(cur, tiny)
+			polish := lambda <= lambda0 && pred <= floorS && next <= cur+floorS
+			if next < cur || polish {
 				rho := (cur - next) / math.Max(pred, tiny)
+				copy(prev, p)
+				hasPrev, prevS = true, cur
 				copy(p, trial)
-				f, ftr = ftr, f
-				jac, jtr = jtr, jac
+				ev.swap()
 				cur = next
-				if rho > 0.75 {
-					lambda = math.Max(lambda/3, 1e-300)
-				} else if rho < 0.25 {
-					lambda *= 2
+				if !polish {
+					if rho > 0.75 {
+						lambda = math.Max(lambda/3, 1e-300)
+					} else if rho < 0.25 {
+						lambda *= 2
+					}
 				}
-				stepped = true
-				if actRel <= set.FTol && predRel <= set.FTol {
-					converged, reason = true, "relative reduction of the residual sum below tolerance"
-				} else if dx <= set.XTol*math.Max(xn, tiny) {
-					converged, reason = true, "relative step below tolerance"
-				}
+				accepted = true
 				break
 			}
-			if dx <= set.XTol*math.Max(xn, tiny) || pred <= set.FTol*cur*1e-2 {
-				// No further descent possible at machine precision.
-				converged, reason = true, "no further reduction possible at machine precision"
+			if pred <= floorS {
+				// The damped step predicts no change S could resolve.
 				break
 			}
 			lambda *= 4
 		}
-		if converged {
+		if !accepted {
+			if st.certify(cur, lambda0, set) {
+				status = Certified
+				break
+			}
+			// A parameter running off towards an asymptote makes the
+			// quadratic model useless along it: move it on directly.
+			if next, moved := st.push(pr.Func, &ev, p, trial, idx, cur); moved {
+				cur, hasPrev = next, false
+				lambda = lambda0
+				fresh = false
+				continue
+			}
+			status = NoDescent
 			break
 		}
-		if !stepped {
-			reason = "the damped step could not reduce the residual sum"
-			break
-		}
+		fresh = false
 	}
-	if iter > set.MaxIter {
+	if status == NotTerminated {
+		// The last accepted point has not been tested yet.
 		iter = set.MaxIter
-		reason = fmt.Sprintf("iteration limit (%d) reached", set.MaxIter)
+		st.normal(&ev, idx)
+		fresh = true
+		st.scale()
+		if allFinite(st.a) && allFinite(st.g) && st.certify(cur, lambda, set) {
+			status = Certified
+		} else {
+			status = IterationLimit
+		}
 	}
-	normal()
+	if !fresh {
+		st.normal(&ev, idx)
+	}
+	if status != Certified && status != NotFinite {
+		st.scale()
+		st.test(cur, lambda0, set, true) // the certificate's numbers for the message
+	}
+	switch status {
+	case Certified:
+		reason = "first-order certificate: scaled gradient and predicted relative reduction below tolerance"
+	case IterationLimit:
+		reason = fmt.Sprintf("iteration limit (%d) reached without a first-order certificate (largest scaled gradient %.2g, predicted relative reduction %.2g)", set.MaxIter, st.gmax, st.predRel)
+	case NoDescent:
+		reason = fmt.Sprintf("no damped step reduces the residual sum, but the first-order certificate does not hold (largest scaled gradient %.2g, predicted relative reduction %.2g): the point is not proven to be a minimum", st.gmax, st.predRel)
+	}
 	// The solution keeps the workspace it was computed in: no copies.
-	sol.P, sol.F, sol.Jac, sol.JTJ = p, f, jac, a
+	sol.P, sol.F, sol.Jac, sol.JTJ = p, ev.f, ev.jac, jtj
 	*bp = whole
 	sol.work = bp
 	sol.RSS = cur
 	sol.Iterations = iter
-	sol.Converged = converged
-	sol.Reason = reason
-	if converged {
-		// A free parameter whose whole-size change moves the model by a
-		// negligible amount has run off to an asymptote (BoxBOD from its
+	sol.FirstOrder = status == Certified
+	sol.Gradient, sol.Predicted = st.gmax, st.predRel
+	if status == Certified || status == NoDescent {
+		// A free parameter whose whole-size change (at least 1 in its
+		// internal unit) moves the model by a negligible amount against the
+		// spread of the data has run off to an asymptote (BoxBOD from its
 		// first NIST start is the classic case): not a minimum.
-		var yn float64
-		for _, y := range pr.Y {
-			yn += y * y
-		}
-		yn = math.Sqrt(yn) + math.Sqrt(cur)
+		ref := st.stuckRef(cur)
 		for aa, ja := range idx {
-			if math.Sqrt(a[aa*k+aa]/wmax(pr.W))*math.Max(math.Abs(p[ja]), 1) < 1e-9*yn {
-				sol.Converged = false
+			if math.Sqrt(st.a[aa*k+aa])*math.Max(math.Abs(p[ja]), 1) < ref {
+				status = Asymptote
 				sol.Stuck = ja
-				sol.Reason = fmt.Sprintf("parameter %d has no effect on the model at the final point (it ran off towards an asymptote)", ja+1)
-				return sol, nil
+				reason = fmt.Sprintf("parameter %d has no effect on the model at the final point (it ran off towards an asymptote)", ja+1)
+				break
 			}
 		}
-		sol.Cond = scaledCond(a, k)
+	}
+	if status == Certified {
+		sol.Cond = scaledCond(st.a, k)
 		if c := sol.Cond; !(c <= set.CondMax) {
-			sol.Converged = false
-			sol.Unidentified = true
-			sol.Reason = fmt.Sprintf("the free parameters are not identified by the data (condition number of the scaled JᵀWJ %.2g)", c)
+			status = Unidentified
+			reason = fmt.Sprintf("the free parameters are not identified by the data (condition number of the scaled JᵀWJ %.2g)", c)
 		}
 	}
+	sol.Status, sol.Converged, sol.Reason = status, status.Converged(), reason
 	return sol, nil
 }
 
@@ -373,85 +384,6 @@ func (s *Solution) release() {
 	}
 	workPool.Put(s.work)
 	s.work, s.P, s.F, s.Jac, s.JTJ = nil, nil, nil, nil, nil
-}
-
-// normal3 builds JᵀWJ and JᵀW r for exactly three free parameters, the
-// case of every default fit (D, Cs, C0), with the sums held in registers.
-func normal3(pr Problem, f, jac []float64, np int, idx []int, a, g []float64) {
-	j0, j1, j2 := idx[0], idx[1], idx[2]
-	var a00, a10, a11, a20, a21, a22, g0, g1, g2 float64
-	for i, y := range pr.Y {
-		row := jac[i*np : (i+1)*np]
-		x0, x1, x2 := row[j0], row[j1], row[j2]
-		r := y - f[i]
-		if pr.W != nil {
-			w := pr.W[i]
-			r *= w
-			a00 += w * x0 * x0
-			a10 += w * x1 * x0
-			a11 += w * x1 * x1
-			a20 += w * x2 * x0
-			a21 += w * x2 * x1
-			a22 += w * x2 * x2
-		} else {
-			a00 += x0 * x0
-			a10 += x1 * x0
-			a11 += x1 * x1
-			a20 += x2 * x0
-			a21 += x2 * x1
-			a22 += x2 * x2
-		}
-		g0 += x0 * r
-		g1 += x1 * r
-		g2 += x2 * r
-	}
-	a[0], a[1], a[2] = a00, a10, a20
-	a[3], a[4], a[5] = a10, a11, a21
-	a[6], a[7], a[8] = a20, a21, a22
-	g[0], g[1], g[2] = g0, g1, g2
-}
-
-// predicted is the reduction of S that the quadratic model predicts for
-// the step δ: δᵀ(2g − Aδ).
-func predicted(a, g, delta []float64, k int) float64 {
-	var pred float64
-	for aa := 0; aa < k; aa++ {
-		var ad float64
-		for bb := 0; bb < k; bb++ {
-			ad += a[aa*k+bb] * delta[bb]
-		}
-		pred += delta[aa] * (2*g[aa] - ad)
-	}
-	return pred
-}
-
-// gaussNewtonLike reports whether the damping λ·d² is below 1 % of every
-// diagonal element of JᵀWJ: the damped step then predicts nearly the same
-// reduction as the Gauss–Newton step.
-func gaussNewtonLike(a, diag []float64, lambda float64, k int) bool {
-	for j := 0; j < k; j++ {
-		d := diag[j]
-		if d == 0 {
-			d = 1
-		}
-		if lambda*d*d > 1e-2*a[j*k+j] {
-			return false
-		}
-	}
-	return true
-}
-
-// wmax returns the largest weight (1 when unweighted), used to put JᵀWJ back
-// on the scale of the observations.
-func wmax(w []float64) float64 {
-	m := 0.0
-	for _, v := range w {
-		m = math.Max(m, v)
-	}
-	if w == nil || m == 0 {
-		return 1
-	}
-	return m
 }
 
 func allFinite(v []float64) bool {

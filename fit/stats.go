@@ -48,7 +48,7 @@ func (r *Result) finish(sol *Solution, o Options) error {
 		return fmt.Errorf("%w: confidence level %g must be between 0 and 1 (e.g. 0.95)", ErrBadInput, level)
 	}
 	r.CILevel = level
-	cov, ok := invertSPD(sol.JTJ, k)
+	cov, ok := r.covariance(sol, k)
 	if !ok {
 		return fmt.Errorf("%w: the parameters %v cannot be separated by these data (singular Jacobian); hold one of them fixed at a known value or add points where the profile changes", ErrNoAnswer, r.FreeNames)
 	}
@@ -68,10 +68,14 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	r.cov = cov
 	r.Correlation = make([][]float64, k)
 	corr := make([]float64, k*k)
+	li := r.limitFree()
 	for i := range cov {
 		r.Correlation[i] = corr[i*k : (i+1)*k]
 		for j := range cov[i] {
 			r.Correlation[i][j] = cov[i][j] / math.Sqrt(cov[i][i]*cov[j][j])
+			if i == li || j == li {
+				r.Correlation[i][j] = math.NaN() // undefined at the limit
+			}
 		}
 	}
 
@@ -93,7 +97,13 @@ func (r *Result) finish(sol *Solution, o Options) error {
 				e.Unit = "m" // βt
 			}
 		}
-		if r.free[j] {
+		if j == r.limit() {
+			// At its limit (+∞): no value, no standard error; the profile
+			// gives a lower bound, the other methods none.
+			e.Value, e.StdErr, e.StdErrLn = math.Inf(1), math.NaN(), math.NaN()
+			e.CI = Interval{math.NaN(), math.NaN()}
+			fi++
+		} else if r.free[j] {
 			se := math.Sqrt(cov[fi][fi])
 			lo, hi := r.pint[j]-tq*se, r.pint[j]+tq*se
 			if pa.Log {
@@ -133,6 +143,76 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	}
 	r.diagnose()
 	return nil
+}
+
+// covariance inverts JᵀWJ over the free parameters. With a parameter at
+// its limit (its column has vanished) it inverts over the others and
+// leaves zeros in that row and column: the parameter no longer moves the
+// curve, so it adds nothing to the band of the curve (its own interval is
+// handled apart). Stats.Cond is then the condition number of the rest.
+func (r *Result) covariance(sol *Solution, k int) ([][]float64, bool) {
+	li := r.limitFree()
+	if li < 0 {
+		return invertSPD(sol.JTJ, k)
+	}
+	m := k - 1
+	red := make([]float64, 0, m*m)
+	for a := 0; a < k; a++ {
+		for b := 0; b < k; b++ {
+			if a != li && b != li {
+				red = append(red, sol.JTJ[a*k+b])
+			}
+		}
+	}
+	r.Stats.Cond = scaledCond(red, m)
+	if !(r.Stats.Cond <= DefaultSettings().CondMax) {
+		return nil, false
+	}
+	inv, ok := invertSPD(red, m)
+	if !ok {
+		return nil, false
+	}
+	cov := make([][]float64, k)
+	for a := range cov {
+		cov[a] = make([]float64, k)
+		if a == li {
+			continue
+		}
+		ra := a
+		if a > li {
+			ra--
+		}
+		for b := 0; b < k; b++ {
+			if b == li {
+				continue
+			}
+			rb := b
+			if b > li {
+				rb--
+			}
+			cov[a][b] = inv[ra][rb]
+		}
+	}
+	return cov, true
+}
+
+// limitFree is the position among the free parameters of the parameter at
+// its limit, or −1.
+func (r *Result) limitFree() int {
+	lj := r.limit()
+	if lj < 0 {
+		return -1
+	}
+	fi := 0
+	for j, f := range r.free {
+		if j == lj {
+			return fi
+		}
+		if f {
+			fi++
+		}
+	}
+	return -1
 }
 
 // external maps an internal parameter value to its reported value.

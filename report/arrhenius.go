@@ -208,8 +208,8 @@ func viewLineText(t viewText, l *arrhenius.Line) {
 	t.line("", head)
 	by := viewByCode(l.Warnings, viewLineTargets)
 
-	t.field("D0", viewD(l.D0(), l.D0CI(), l.Level, "no interval: fewer than three temperatures"))
-	q := viewQ(l.Q, l.QCI(), l.Level)
+	t.field("D0", t.n().viewD(l.D0(), l.D0CI(), l.Level, "no interval: fewer than three temperatures"))
+	q := t.n().viewQ(l.Q, l.QCI(), l.Level)
 	if !l.HasCI {
 		q += " (no interval: fewer than three temperatures)"
 	}
@@ -262,7 +262,7 @@ func viewLineText(t viewText, l *arrhenius.Line) {
 	for _, p := range l.Points {
 		d := math.Exp(p.LnD)
 		ci := p.Interval(l.Level)
-		last := LastDigit(d, ci)
+		last := t.n().lastDigit(d, ci)
 		civ := ""
 		if finite(ci.Lo) || finite(ci.Hi) {
 			civ = IntervalAt(d, ci, last)
@@ -303,7 +303,7 @@ func viewLineText(t viewText, l *arrhenius.Line) {
 		for _, T := range ts {
 			d, ci := l.DAt(T)
 			_, pi := l.PredictAt(T)
-			last := LastDigit(d, ci)
+			last := t.n().lastDigit(d, ci)
 			civ, piv := "", ""
 			if l.HasCI {
 				civ = IntervalAt(d, ci, last)
@@ -312,7 +312,7 @@ func viewLineText(t viewText, l *arrhenius.Line) {
 				piv = IntervalAt(d, pi, last)
 			}
 			val := Number(d, last)
-			if alt := DAlternative(d, ci); alt != "" {
+			if alt := t.n().dAlternative(d, ci); alt != "" {
 				val += " (" + alt + ")"
 			}
 			dt.Add(Temperature(T, u), val, civ, piv)

@@ -151,19 +151,19 @@ func viewSolutionText(t viewText, s *arrhenius.Solution) {
 		if viewZeroWidth(q.CI) {
 			return viewTempPlain(q.Value, u) + ", " + viewZeroWidthText
 		}
-		return TemperatureEstimate(q.Value, q.CI, s.Level, u) + "; " + viewCIMethod(q.Method, s.MonteCarlo)
+		return t.n().temperatureEstimate(q.Value, q.CI, s.Level, u) + "; " + viewCIMethod(q.Method, s.MonteCarlo)
 	}
 	dur := func(q arrhenius.Quantity) string {
 		if q.Given {
 			return Duration(q.Value) + ", given"
 		}
 		if q.Method == "" && !finite(q.CI.Lo) && !finite(q.CI.Hi) {
-			return viewDurationPlain(q.Value) + ", no interval"
+			return t.n().viewDurationPlain(q.Value) + ", no interval"
 		}
 		if viewZeroWidth(q.CI) {
-			return viewDurationPlain(q.Value) + ", " + viewZeroWidthText
+			return t.n().viewDurationPlain(q.Value) + ", " + viewZeroWidthText
 		}
-		return DurationEstimate(q.Value, q.CI, s.Level) + "; " + viewCIMethod(q.Method, s.MonteCarlo)
+		return t.n().durationEstimate(q.Value, q.CI, s.Level) + "; " + viewCIMethod(q.Method, s.MonteCarlo)
 	}
 
 	tLabel := "T"
@@ -178,9 +178,9 @@ func viewSolutionText(t viewText, s *arrhenius.Solution) {
 	if a := s.Adjustment; a != nil {
 		var v string
 		if s.AdjustMode == "scale" {
-			v = "every temperature (K) × " + viewAdjust(a.Value, a.CI, s.Level, "")
+			v = "every temperature (K) × " + t.n().viewAdjust(a.Value, a.CI, s.Level, "")
 		} else {
-			v = "every temperature " + viewAdjust(a.Value, a.CI, s.Level, "K")
+			v = "every temperature " + t.n().viewAdjust(a.Value, a.CI, s.Level, "K")
 		}
 		t.field("log level", v)
 	}
@@ -197,7 +197,7 @@ func viewSolutionText(t viewText, s *arrhenius.Solution) {
 	se := math.Sqrt(s.VarLnDt)
 	dt := math.Exp(s.LnDt)
 	div := fit.Interval{Lo: dt * math.Exp(-se), Hi: dt * math.Exp(se)}
-	last := LastDigit(dt, div)
+	last := t.n().lastDigit(dt, div)
 	dtText := Number(dt, last) + " m² (√Dt " + Depth(math.Sqrt(dt)) + ") from the part's profile"
 	if se > 0 {
 		dtText += ", u(ln Dt) " + Sig(se, 2)
@@ -208,9 +208,9 @@ func viewSolutionText(t viewText, s *arrhenius.Solution) {
 	if m := s.MonteCarlo; m != nil && (s.Temperature.Method != "monte-carlo" && s.Time.Method != "monte-carlo") {
 		var mc string
 		if s.SolveFor == "time" {
-			mc = "median " + DurationEstimate(m.Median, m.CI, s.Level)
+			mc = "median " + t.n().durationEstimate(m.Median, m.CI, s.Level)
 		} else {
-			mc = "median " + TemperatureEstimate(m.Median, m.CI, s.Level, u)
+			mc = "median " + t.n().temperatureEstimate(m.Median, m.CI, s.Level, u)
 		}
 		mc += fmt.Sprintf(" (%d draws, seed %d", m.Draws, m.Seed)
 		if m.NonPhysical > 0 {
@@ -226,18 +226,22 @@ func viewSolutionText(t viewText, s *arrhenius.Solution) {
 
 // viewAdjust writes the level adjustment of a log: "+12 K, 95 % CI 5–19 K".
 func viewAdjust(v float64, ci fit.Interval, level float64, unit string) string {
+	return numFmt{}.viewAdjust(v, ci, level, unit)
+}
+
+func (n numFmt) viewAdjust(v float64, ci fit.Interval, level float64, unit string) string {
 	sign := ""
 	if unit == "K" && v > 0 {
 		sign = "+"
 	}
 	if !finite(ci.Lo) && !finite(ci.Hi) {
-		s := sign + Sig(v, DefaultDigits)
+		s := sign + Sig(v, n.sig())
 		if unit != "" {
 			s += " " + unit
 		}
 		return s
 	}
-	s := sign + Estimate(v, ci, level, unit)
+	s := sign + n.estimate(v, ci, level, unit)
 	if unit != "" && finite(ci.Lo) && finite(ci.Hi) {
 		s += " " + unit
 	}

@@ -19,13 +19,15 @@ const viewFaraday = phys.Faraday
 // the digits its interval supports:
 // "148.0 kJ/mol (1.534 eV), 95 % CI 141.2–154.8 kJ/mol (1.463–1.604 eV)".
 // Without interval (both ends open) three significant digits.
-func viewQ(q float64, ci fit.Interval, level float64) string {
+func viewQ(q float64, ci fit.Interval, level float64) string { return numFmt{}.viewQ(q, ci, level) }
+
+func (n numFmt) viewQ(q float64, ci fit.Interval, level float64) string {
 	k, ivk := q/1e3, fit.Interval{Lo: ci.Lo / 1e3, Hi: ci.Hi / 1e3}
 	e, ive := q/viewFaraday, fit.Interval{Lo: ci.Lo / viewFaraday, Hi: ci.Hi / viewFaraday}
 	if !finite(ci.Lo) && !finite(ci.Hi) {
-		return Sig(k, DefaultDigits) + " kJ/mol (" + Sig(e, DefaultDigits) + " eV)"
+		return Sig(k, n.sig()) + " kJ/mol (" + Sig(e, n.sig()) + " eV)"
 	}
-	lk, le := LastDigit(k, ivk), LastDigit(e, ive)
+	lk, le := n.lastDigit(k, ivk), n.lastDigit(e, ive)
 	return Number(k, lk) + " kJ/mol (" + Number(e, le) + " eV), " + Level(level) + " CI " +
 		IntervalAt(k, ivk, lk) + " kJ/mol (" + IntervalAt(e, ive, le) + " eV)"
 }
@@ -76,15 +78,15 @@ func (t viewText) calibration(cal arrhenius.Calibration, ws []fit.Warning) {
 	var parts []string
 	if uq > 0 {
 		q := cal.Q
-		lk := LastDigit(q/1e3, fit.Interval{Lo: (q - uq) / 1e3, Hi: (q + uq) / 1e3})
-		le := LastDigit(q/viewFaraday, fit.Interval{Lo: (q - uq) / viewFaraday, Hi: (q + uq) / viewFaraday})
+		lk := t.n().lastDigit(q/1e3, fit.Interval{Lo: (q - uq) / 1e3, Hi: (q + uq) / 1e3})
+		le := t.n().lastDigit(q/viewFaraday, fit.Interval{Lo: (q - uq) / viewFaraday, Hi: (q + uq) / viewFaraday})
 		parts = append(parts, "Q "+Number(q/1e3, lk)+" kJ/mol ("+Number(q/viewFaraday, le)+" eV), u(Q) "+
 			Number(uq/1e3, lk)+" kJ/mol")
 	} else {
-		parts = append(parts, "Q "+viewGiven(cal.Q/1e3)+" kJ/mol ("+Sig(cal.Q/viewFaraday, DefaultDigits)+" eV)")
+		parts = append(parts, "Q "+viewGiven(cal.Q/1e3)+" kJ/mol ("+Sig(cal.Q/viewFaraday, t.n().sig())+" eV)")
 	}
 	if u0 > 0 {
-		parts = append(parts, "D0 "+Sig(cal.D0(), DefaultDigits)+" m²/s, u(ln D0) "+Sig(u0, 2))
+		parts = append(parts, "D0 "+Sig(cal.D0(), t.n().sig())+" m²/s, u(ln D0) "+Sig(u0, 2))
 	} else {
 		parts = append(parts, "D0 "+viewGiven(cal.D0())+" m²/s")
 	}

@@ -14,6 +14,8 @@ type CampaignOptions struct {
 	// TempUnit is the user's temperature unit for text, figures and
 	// reports; "" means °C.
 	TempUnit TempUnit
+	// Digits is TextOptions.Digits for summary.txt; 0 means DefaultDigits.
+	Digits int
 	// Progress, when not nil, is called as the work proceeds with a stage
 	// name and the count done out of total: WriteCampaign runs the stages
 	// "figures", "workbook" and "write", each once and in that order. It is

@@ -109,25 +109,29 @@ func (res *CampaignReport) Backcalc() Backcalc {
 }
 
 // D0Text writes a pre-exponential factor with its interval, in m²/s with cm²/s beside.
-func D0Text(l *arrhenius.Line) string {
+func D0Text(l *arrhenius.Line) string { return numFmt{}.d0Text(l) }
+
+func (n numFmt) d0Text(l *arrhenius.Line) string {
 	ci := l.D0CI()
-	s := Estimate(l.D0(), ci, l.Level, "m2/s")
+	s := n.estimate(l.D0(), ci, l.Level, "m2/s")
 	if !finite(ci.Lo) && !finite(ci.Hi) {
-		s = Sig(l.D0(), 3) + " m²/s (no interval: fewer than three temperatures)"
+		s = n.general(l.D0()) + " m²/s (no interval: fewer than three temperatures)"
 	}
 	return s
 }
 
 // PartText writes a back-calculated result in one line.
-func PartText(p campaign.Part, u TempUnit) string {
+func PartText(p campaign.Part, u TempUnit) string { return numFmt{}.partText(p, u) }
+
+func (n numFmt) partText(p campaign.Part, u TempUnit) string {
 	if p.Solution == nil {
 		return "not back-calculated: " + Temps(p.Error, u)
 	}
 	s := p.Solution
 	if p.SolveFor == "time" {
-		return "t = " + DurationEstimate(s.Time.Value, s.Time.CI, s.Level) + " at " + Temperature(s.Temperature.Value, u)
+		return "t = " + n.durationEstimate(s.Time.Value, s.Time.CI, s.Level) + " at " + Temperature(s.Temperature.Value, u)
 	}
-	return "T = " + TemperatureEstimate(s.Temperature.Value, s.Temperature.CI, s.Level, u) + " for " + Duration(s.Time.Value)
+	return "T = " + n.temperatureEstimate(s.Temperature.Value, s.Temperature.CI, s.Level, u) + " for " + Duration(s.Time.Value)
 }
 
 // NotUsed lists everything the campaign's results were computed without:
@@ -166,7 +170,7 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 		d := r.Param("D")
 		dv, ci := "", ""
 		if d != nil {
-			last := LastDigit(d.Value, d.CI)
+			last := o.num().lastDigit(d.Value, d.CI)
 			dv, ci = Number(d.Value, last), IntervalAt(d.Value, d.CI, last)
 			if r.Time == 0 {
 				dv += " (Dt, m²)"
@@ -199,7 +203,7 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 		fmt.Fprintf(bw, "\nArrhenius lines (%s, %s CI)\n", res.Method, Level(level))
 		for i := range res.Lines.Lines {
 			l := &res.Lines.Lines[i]
-			writeParts(bw, "  ", []string{groupLabel(*l) + ":", "D0 = " + D0Text(l) + ";", "Q = " + QText(l.Q, l.QCI(), l.Level) + ";",
+			writeParts(bw, "  ", []string{groupLabel(*l) + ":", "D0 = " + o.num().d0Text(l) + ";", "Q = " + o.num().qText(l.Q, l.QCI(), l.Level) + ";",
 				fmt.Sprintf("%d points at %d temperatures;", len(l.Points), l.NTemperatures), "Birge ratio " + Number(l.BirgeRatio, -2)}, " ", o.width())
 			for _, wn := range l.Warnings {
 				writeWrapped(bw, "      ! ", warnText(wn, u), o.width())
@@ -230,7 +234,7 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 			if p.Lot != "" {
 				head += " (lot " + p.Lot + ")"
 			}
-			writeWrapped(bw, head+": ", PartText(p, u), o.width())
+			writeWrapped(bw, head+": ", o.num().partText(p, u), o.width())
 			if p.Solution != nil {
 				for _, wn := range p.Solution.Warnings {
 					writeWrapped(bw, "      ! ", warnText(wn, u), o.width())

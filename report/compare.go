@@ -109,7 +109,7 @@ func viewComparisonText(w *bufio.Writer, c *arrhenius.Comparison, o TextOptions)
 		rt := Table{Header: []string{"group", "reference", "T", "D ratio", Level(c.Level) + " CI", "p", "model"},
 			Align: []Align{Left, Left, Left, Right, Left, Right, Left}, Indent: "  "}
 		for _, r := range c.Ratios {
-			last := LastDigit(r.Value, r.CI)
+			last := t.n().lastDigit(r.Value, r.CI)
 			rt.Add(r.Group, r.Reference, Temperature(r.TRef, u), Number(r.Value, last), IntervalAt(r.Value, r.CI, last), viewP(r.P), r.Model)
 		}
 		rt.WriteTo(w)

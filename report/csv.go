@@ -1,7 +1,6 @@
 package report
 
 import (
-	"encoding/csv"
 	"io"
 	"strconv"
 	"strings"
@@ -67,12 +66,12 @@ func (f Fits) WriteCSV(w io.Writer) error {
 		header = append(header, d.prefix+"_threshold", d.prefix+"_level", d.prefix+"_depth_m", d.prefix+"_depth_ci_lo_m",
 			d.prefix+"_depth_ci_hi_m", d.prefix+"_depth_from_data_m")
 	}
-	cw := csv.NewWriter(w)
+	cw := newCSVWriter(w)
 	if err := cw.Write(header); err != nil {
 		return err
 	}
 	for _, r := range f.Results {
-		row := []string{r.ID, r.Lot, csvNumber(r.Temperature), csvNumber(r.Time), r.Model}
+		row := []string{r.ID, r.Lot, csvGiven(r.Temperature), csvGiven(r.Time), r.Model}
 		d := r.Param("D")
 		switch {
 		case d == nil:
@@ -177,7 +176,7 @@ func depthColumns(rs []*fit.Result) []depthColumn {
 // or row; empty when unknown). Observed, fitted and residual are in the
 // profile's value unit, given in value_unit.
 func (f Fits) WriteResidualsCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
+	cw := newCSVWriter(w)
 	if err := cw.Write([]string{"id", "depth_m", "observed", "fitted", "residual", "value_unit", "line"}); err != nil {
 		return err
 	}

@@ -77,9 +77,19 @@ var formats = []struct {
 	name  string
 	write func(w io.Writer, d Document, o TextOptions) error
 }{
-	Text: {"text", func(w io.Writer, d Document, o TextOptions) error { return d.WriteText(w, o) }},
+	Text: {"text", writeTextSafe},
 	JSON: {"json", func(w io.Writer, d Document, _ TextOptions) error { return d.WriteJSON(w) }},
 	CSV:  {"csv", func(w io.Writer, d Document, _ TextOptions) error { return d.WriteCSV(w) }},
+}
+
+// writeTextSafe writes d's text with the characters that could act on a
+// terminal escaped (EscapeText).
+func writeTextSafe(w io.Writer, d Document, o TextOptions) error {
+	e := newTextEscaper(w)
+	if err := d.WriteText(e, o); err != nil {
+		return err
+	}
+	return e.Close()
 }
 
 // FormatNames lists the formats by name, in the order of the constants.

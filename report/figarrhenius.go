@@ -61,12 +61,14 @@ func groupLabel(l arrhenius.Line) string {
 
 // QText writes an activation energy in kJ/mol with its interval:
 // "142 kJ/mol (95 % CI 136–148)".
-func QText(q float64, ci fit.Interval, level float64) string {
+func QText(q float64, ci fit.Interval, level float64) string { return numFmt{}.qText(q, ci, level) }
+
+func (n numFmt) qText(q float64, ci fit.Interval, level float64) string {
 	v, iv := q/1e3, fit.Interval{Lo: ci.Lo / 1e3, Hi: ci.Hi / 1e3}
 	if !finite(iv.Lo) && !finite(iv.Hi) {
-		return Sig(v, 3) + " kJ/mol"
+		return n.general(v) + " kJ/mol"
 	}
-	last := LastDigit(v, iv)
+	last := n.lastDigit(v, iv)
 	return Number(v, last) + " kJ/mol (" + Level(level) + " CI " + IntervalAt(v, iv, last) + ")"
 }
 

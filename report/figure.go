@@ -679,12 +679,21 @@ func (f *Figure) render(cv vg.CanvasWriterTo, w io.Writer) (err error) {
 			err = fmt.Errorf("drawing figure %s: %v", f.Name, r)
 		}
 	}()
-	c := draw.New(cv)
+	c := draw.New(textSafeCanvas{cv})
 	c.SetColor(color.White)
 	c.Fill(c.Rectangle.Path())
 	f.paint(draw.Crop(c, 10, -12, 8, -10))
 	_, err = cv.WriteTo(w)
 	return err
+}
+
+// textSafeCanvas writes every text drawn with the control characters
+// escaped (EscapeText): ids and lots reach titles, labels and legends, and
+// an SVG file with a control character is not well-formed XML.
+type textSafeCanvas struct{ vg.CanvasWriterTo }
+
+func (c textSafeCanvas) FillString(f font.Face, pt vg.Point, s string) {
+	c.CanvasWriterTo.FillString(f, pt, EscapeText(s))
 }
 
 var (
@@ -823,9 +832,11 @@ func (c *countWriter) Write(b []byte) (int, error) {
 	return n, err
 }
 
+// htmlEscape escapes text for SVG and HTML markup; control characters,
+// which XML does not allow, are written as visible escapes (EscapeText).
 func htmlEscape(s string) string {
 	r := strings.NewReplacer("&", "&amp;", "<", "&lt;", ">", "&gt;", `"`, "&quot;", "'", "&#39;")
-	return r.Replace(s)
+	return r.Replace(EscapeText(s))
 }
 
 // alignPair crops two canvases so that their data areas share left and
@@ -921,6 +932,8 @@ func isSVGCanvas(c vg.Canvas) bool {
 			c = cv.Canvas
 		case draw.Canvas:
 			c = cv.Canvas
+		case textSafeCanvas:
+			c = cv.CanvasWriterTo
 		default:
 			return false
 		}

@@ -71,6 +71,21 @@ func exp10(v float64) int {
 	return e
 }
 
+// numFmt writes numbers for people with digits significant digits for a
+// value that has no interval (TextOptions.Digits, the --digits option; 0
+// means DefaultDigits); a value with an interval keeps the digits its
+// interval supports. The package functions (LastDigit, Estimate, General…)
+// are numFmt{}'s, for figures, the workbook and the HTML report.
+type numFmt struct{ digits int }
+
+// sig is the number of significant digits of a value without an interval.
+func (n numFmt) sig() int {
+	if n.digits <= 0 {
+		return DefaultDigits
+	}
+	return n.digits
+}
+
 // LastDigit returns the decimal place (as a power of ten) of the last digit
 // to show for value v with interval iv. The uncertainty u is the smaller
 // finite half-width of the interval, and its digits follow the Particle
@@ -81,7 +96,10 @@ func exp10(v float64) int {
 // 100:2008 §7.2.6), but keeps at least one and at most six significant
 // digits. Without a usable interval it gives DefaultDigits significant
 // digits.
-func LastDigit(v float64, iv fit.Interval) int {
+func LastDigit(v float64, iv fit.Interval) int { return numFmt{}.lastDigit(v, iv) }
+
+// lastDigit is LastDigit with n's digits for a value without an interval.
+func (n numFmt) lastDigit(v float64, iv fit.Interval) int {
 	u := math.Inf(1)
 	if finite(iv.Lo) && v-iv.Lo > 0 {
 		u = v - iv.Lo
@@ -91,10 +109,10 @@ func LastDigit(v float64, iv fit.Interval) int {
 	}
 	ev := exp10(v)
 	if math.IsInf(u, 1) || !finite(v) {
-		return ev - (DefaultDigits - 1)
+		return ev - (n.sig() - 1)
 	}
 	eu := exp10(u)
-	lead := int(math.Floor(u / math.Pow(10, float64(eu-2))))
+	lead := leadDigits(u, eu)
 	last := eu - 1
 	if lead >= 355 {
 		last = eu // 355–949: one digit; 950–999: rounds up to 10^(eu+1), two digits
@@ -109,6 +127,45 @@ func LastDigit(v float64, iv fit.Interval) int {
 		last = ev - minDigits + 1
 	}
 	return last
+}
+
+// leadDigits returns the three leading digits of u > 0 (100–999), whose
+// decimal exponent is eu. Near the ends of the float range, where 10^(eu−2)
+// is not a normal number, they are read from u's shortest decimal form.
+func leadDigits(u float64, eu int) int {
+	if eu > -290 && eu < 290 {
+		return int(math.Floor(u / math.Pow(10, float64(eu-2))))
+	}
+	m := strings.Replace(strconv.FormatFloat(u, 'e', 16, 64), ".", "", 1)
+	lead, _ := strconv.Atoi(m[:3])
+	return lead
+}
+
+// scaleSafe tells whether v can be rounded at 10^last with float
+// arithmetic: the powers of ten involved, and v scaled by them, are normal
+// numbers. Beyond (values below about 10⁻²⁹⁰ or above 10²⁹⁰), numbers are
+// written from their decimal form instead (extreme).
+func scaleSafe(v float64, last int) bool {
+	e := exp10(v)
+	return last > -290 && last < 290 && e > -290 && e < 290 && e-last < 290
+}
+
+// extreme writes v rounded at 10^last as "m × 10ⁿ" from its decimal form,
+// with at least one and at most 17 significant digits: for the values
+// scaleSafe refuses (a D of 10⁻³¹⁰, a time of 10³⁰⁸ s).
+func extreme(v float64, last int) string {
+	d := exp10(v) - last + 1
+	if d < 1 {
+		d = 1
+	}
+	if d > 17 {
+		d = 17
+	}
+	f := strconv.FormatFloat(v, 'e', d-1, 64) // "-1.23e-310"
+	i := strings.IndexByte(f, 'e')
+	m, exp := f[:i], f[i+1:]
+	n, _ := strconv.Atoi(exp)
+	return strings.Replace(m, "-", minus, 1) + times10 + Superscript(n)
 }
 
 // SigDigits returns the last-digit place that shows v with sig significant digits.
@@ -147,6 +204,9 @@ func Number(v float64, last int) string {
 	case math.IsInf(v, -1):
 		return minus + "∞"
 	}
+	if !scaleSafe(v, last) {
+		return extreme(v, last)
+	}
 	r := roundAt(v, last)
 	if useSci(r) {
 		e := exp10(r)
@@ -155,11 +215,16 @@ func Number(v float64, last int) string {
 	return plain(r, last)
 }
 
-// plain writes v with max(0, −last) decimals and a true minus sign.
+// plain writes v with max(0, −last) decimals and a true minus sign; a
+// value that would need more than 15 digits before or 17 after the point
+// is written as "m × 10ⁿ" instead.
 func plain(v float64, last int) string {
 	dec := 0
 	if last < 0 {
 		dec = -last
+	}
+	if a := math.Abs(v); finite(v) && (a >= 1e15 || dec > 17 && a != 0 && a < 1e-3) {
+		return extreme(v, max(last, exp10(v)-16))
 	}
 	s := strconv.FormatFloat(v, 'f', dec, 64)
 	if s == "-0" || strings.Trim(s, "-0.") == "" {
@@ -182,7 +247,10 @@ func mantissa(v float64, e, last int) string {
 func Sig(v float64, sig int) string { return Number(v, SigDigits(v, sig)) }
 
 // General writes a number with DefaultDigits significant digits.
-func General(v float64) string { return Sig(v, DefaultDigits) }
+func General(v float64) string { return numFmt{}.general(v) }
+
+// general writes a number with n's significant digits.
+func (n numFmt) general(v float64) string { return Sig(v, n.sig()) }
 
 // Estimate writes a value with its unit and its interval at the given level:
 //
@@ -193,7 +261,12 @@ func General(v float64) string { return Sig(v, DefaultDigits) }
 // The unit is written as given through PrettyUnit. A degenerate interval
 // (lo = hi = v, a fixed parameter) is left out.
 func Estimate(v float64, iv fit.Interval, level float64, unit string) string {
-	last := LastDigit(v, iv)
+	return numFmt{}.estimate(v, iv, level, unit)
+}
+
+// estimate is Estimate with n's digits for a value without an interval.
+func (n numFmt) estimate(v float64, iv fit.Interval, level float64, unit string) string {
+	last := n.lastDigit(v, iv)
 	s := Number(v, last)
 	if u := PrettyUnit(unit); u != "" {
 		s += " " + u
@@ -247,7 +320,7 @@ func IntervalAt(v float64, iv fit.Interval, last int) string {
 	}
 	if useSci(ref) {
 		e := exp10(roundAt(ref, last))
-		if shareExponent(iv, e) {
+		if scaleSafe(ref, last) && scaleSafe(iv.Lo, last) && scaleSafe(iv.Hi, last) && shareExponent(iv, e) {
 			return mantissa(roundAt(iv.Lo, last), e, last) + sep + mantissa(roundAt(iv.Hi, last), e, last) + times10 + Superscript(e)
 		}
 		if sep == "–" {
@@ -295,16 +368,22 @@ func PrettyUnit(u string) string {
 // best beside it: µm²/s for 10⁻¹⁵ ≤ D < 10⁻⁸ m²/s ("29.4 µm²/s"), cm²/s
 // otherwise ("0.32 cm²/s", "2.9 × 10⁻¹⁵ cm²/s" is never chosen for small D).
 // The digits follow the interval as in Estimate. It returns "" for D ≤ 0.
-func DAlternative(d float64, iv fit.Interval) string {
+func DAlternative(d float64, iv fit.Interval) string { return numFmt{}.dAlternative(d, iv) }
+
+// dAlternative is DAlternative with n's digits for a value without an interval.
+func (n numFmt) dAlternative(d float64, iv fit.Interval) string {
 	if !(d > 0) || !finite(d) {
 		return ""
 	}
-	last := LastDigit(d, iv)
+	last := n.lastDigit(d, iv)
 	f, unit := 1e-4, "cm²/s"
 	if d >= 1e-15 && d < 1e-8 {
 		f, unit = 1e-12, "µm²/s"
 	}
 	shift := int(math.Round(math.Log10(f)))
+	if !finite(d / f) {
+		return ""
+	}
 	return Number(d/f, last-shift) + " " + unit
 }
 
@@ -382,15 +461,14 @@ func (u TempUnit) FromKelvin(k float64) float64 { return u.scale().FromKelvin(k)
 // ToKelvin converts a temperature in the unit to K.
 func (u TempUnit) ToKelvin(t float64) float64 { return u.scale().ToKelvin(t) }
 
-// trimmed writes v with at most dec decimals and no trailing zeros; a
-// number beyond 10⁶ in magnitude with three significant digits in powers
-// of ten, and one that is not finite as "n/a" (never "+Inf").
+// trimmed writes v with at most dec decimals and no trailing zeros; from
+// 10¹⁵ on, with six significant digits as "m × 10ⁿ".
 func trimmed(v float64, dec int) string {
 	if !finite(v) {
 		return "n/a"
 	}
-	if math.Abs(v) >= 1e6 {
-		return Sig(v, DefaultDigits)
+	if math.Abs(v) >= 1e15 {
+		return Sig(v, 6)
 	}
 	s := strconv.FormatFloat(roundAt(v, -dec), 'f', dec, 64)
 	if strings.Contains(s, ".") {
@@ -436,14 +514,19 @@ func TemperatureShort(k float64, u TempUnit) string {
 // digits following the interval, in the user's unit with kelvin beside:
 // "931 °C (1204 K), 95 % CI 918–944 °C".
 func TemperatureEstimate(k float64, iv fit.Interval, level float64, u TempUnit) string {
+	return numFmt{}.temperatureEstimate(k, iv, level, u)
+}
+
+// temperatureEstimate is TemperatureEstimate with n's digits.
+func (n numFmt) temperatureEstimate(k float64, iv fit.Interval, level float64, u TempUnit) string {
 	if !finite(k) || math.Abs(k) >= 1e6 {
 		// No solid: a wrong number; kelvin alone, in powers of ten.
-		return Estimate(k, iv, level, "K")
+		return n.estimate(k, iv, level, "K")
 	}
 	// The digits are decided on the kelvin interval; a °F step is smaller,
 	// which the scale factor allows for.
-	last := LastDigit(k, iv)
-	lastU := LastDigit(u.FromKelvin(k), fit.Interval{Lo: u.FromKelvin(iv.Lo), Hi: u.FromKelvin(iv.Hi)})
+	last := n.lastDigit(k, iv)
+	lastU := n.lastDigit(u.FromKelvin(k), fit.Interval{Lo: u.FromKelvin(iv.Lo), Hi: u.FromKelvin(iv.Hi)})
 	if !finite(iv.Lo) || !finite(iv.Hi) {
 		last, lastU = 0, 0
 	}
@@ -487,14 +570,19 @@ func TemperatureEstimate(k float64, iv fit.Interval, level float64, u TempUnit) 
 
 // Duration writes a time given in s: "45 s", "90 min", "1 h", "4 h",
 // "4.5 h", "36 h". Below 2 min in s, below 2 h in min (whole hours in h),
-// otherwise in h; at most two decimals, no trailing zeros. 0 (not given)
-// is written "not given".
+// otherwise in h; at most two decimals, no trailing zeros. Below 0.01 s and
+// from 10⁶ h on, three significant digits ("2.78 × 10³⁰⁴ h"). 0 (not
+// given) is written "not given".
 func Duration(s float64) string {
 	switch {
 	case s == 0:
 		return "not given"
 	case !finite(s):
 		return "n/a"
+	case math.Abs(s) < 0.01:
+		return Sig(s, DefaultDigits) + " s"
+	case math.Abs(s/3600) >= 1e6:
+		return Sig(s/3600, DefaultDigits) + " h"
 	case math.Abs(s) < 120:
 		return trimmed(s, 2) + " s"
 	case math.Abs(s) < 7200 && math.Abs(s/3600-math.Round(s/3600)) > 1e-9:
@@ -506,6 +594,11 @@ func Duration(s float64) string {
 // DurationEstimate writes an estimated time with its interval, digits
 // following the interval: "6.2 h, 95 % CI 5.8–6.7 h".
 func DurationEstimate(s float64, iv fit.Interval, level float64) string {
+	return numFmt{}.durationEstimate(s, iv, level)
+}
+
+// durationEstimate is DurationEstimate with n's digits.
+func (n numFmt) durationEstimate(s float64, iv fit.Interval, level float64) string {
 	f, unit := 3600.0, "h"
 	switch {
 	case math.Abs(s) < 120:
@@ -514,7 +607,7 @@ func DurationEstimate(s float64, iv fit.Interval, level float64) string {
 		f, unit = 60, "min"
 	}
 	scaled := fit.Interval{Lo: iv.Lo / f, Hi: iv.Hi / f}
-	out := Estimate(s/f, scaled, level, unit)
+	out := n.estimate(s/f, scaled, level, unit)
 	if finite(iv.Lo) && finite(iv.Hi) && !degenerate(s, iv) {
 		out += " " + unit
 	}
@@ -536,8 +629,14 @@ func Depth(m float64) string {
 	if !finite(m) {
 		return "n/a"
 	}
+	if math.Abs(m) >= 1e3 {
+		return Sig(m, 4) + " m"
+	}
 	f, unit := DepthScale(m)
 	v := m / f
+	if a := math.Abs(v); a != 0 && a < 1e-3 {
+		return Sig(v, 4) + " " + unit
+	}
 	last := SigDigits(v, 4)
 	if last > 0 {
 		last = 0
@@ -641,6 +740,15 @@ func (t *Table) String() string {
 	var b strings.Builder
 	t.WriteTo(&b) //nolint:errcheck // strings.Builder never fails
 	return b.String()
+}
+
+// csvGiven writes a quantity for which 0 means "not given" (a hold time, a
+// temperature in kelvin): empty when not given, else as csvNumber.
+func csvGiven(v float64) string {
+	if v == 0 {
+		return ""
+	}
+	return csvNumber(v)
 }
 
 // csvNumber writes a number for CSV files: shortest round-trip form, empty

@@ -161,11 +161,17 @@ func (res *CampaignReport) WriteHTML(w io.Writer, o CampaignOptions) error {
 
 func (res *CampaignReport) writeHTML(w io.Writer, o CampaignOptions, fs *figureSet) error {
 	v := res.htmlView(o, fs)
-	bw := bufio.NewWriter(w)
+	// Control characters from the inputs are written as visible escapes
+	// (EscapeText): html/template leaves them, and HTML does not allow them.
+	e := newTextEscaper(w)
+	bw := bufio.NewWriter(e)
 	if err := htmlTemplate.Execute(bw, v); err != nil {
 		return fmt.Errorf("writing the HTML report: %w", err)
 	}
-	return bw.Flush()
+	if err := bw.Flush(); err != nil {
+		return err
+	}
+	return e.Close()
 }
 
 func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
@@ -181,8 +187,9 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 	for _, p := range res.Parts {
 		unknown[p.ID] = true
 	}
+	anchors := profileAnchors(res.Results)
 	for _, r := range res.Results {
-		hp := htmlProfile{ID: r.ID, Anchor: "p-" + fileSafe(r.ID), Lot: r.Lot, Source: r.Source,
+		hp := htmlProfile{ID: r.ID, Anchor: anchors[r.ID], Lot: r.Lot, Source: r.Source,
 			Conditions: conditionsText(r, u), Short: shortConditions(r, u), Model: ModelDescription(r.Model), ModelName: r.Model,
 			Interval: Level(r.CILevel) + " CI by " + CIMethodDescription(r.CIMethod), R2: r2Text(r.Stats.R2),
 			Stats: statsParts(r), Unknown: unknown[r.ID]}
@@ -194,7 +201,7 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 			}
 		}
 		for _, e := range r.Params {
-			pt := formatParam(e)
+			pt := formatParam(e, numFmt{})
 			if e.Name == "D" && r.Time == 0 {
 				pt.Name = "Dt"
 			}
@@ -205,7 +212,7 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 		}
 		for _, e := range []*fit.DepthEstimate{r.CaseDepth, r.DecarbDepth} {
 			if e != nil {
-				text, notes := depthSentence(r, e)
+				text, notes := depthSentence(r, e, numFmt{})
 				hp.Depths = append(hp.Depths, htmlDepth{Text: strings.ToUpper(text[:1]) + text[1:], Notes: notes})
 			}
 		}
@@ -275,7 +282,7 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 		v.NotUsed = append(v.NotUsed, htmlNotUsed{"calibration", Temps(n, u)})
 	}
 	for _, p := range res.Parts {
-		hp := htmlPart{ID: p.ID, Anchor: "p-" + fileSafe(p.ID), Lot: p.Lot, Result: PartText(p, u), Failed: p.Solution == nil}
+		hp := htmlPart{ID: p.ID, Anchor: anchors[p.ID], Lot: p.Lot, Result: PartText(p, u), Failed: p.Solution == nil}
 		if p.Solution != nil {
 			for _, wn := range p.Solution.Warnings {
 				hp.Warnings = append(hp.Warnings, warnText(wn, u))
@@ -285,6 +292,28 @@ func (res *CampaignReport) htmlView(o CampaignOptions, fs *figureSet) htmlView {
 		v.Facts = append(v.Facts, [2]string{"Back-calculated " + p.ID, hp.Result})
 	}
 	return v
+}
+
+// profileAnchors gives every profile an anchor of its own: "p-" and the id
+// made safe for a URL fragment, with "-2", "-3"… added where two ids come
+// out alike ("A 1", "A_1" and "A/1" all give "p-A_1"), compared without
+// case. Ids are unique, so the map is keyed by id.
+func profileAnchors(rs []*fit.Result) map[string]string {
+	out := make(map[string]string, len(rs))
+	used := map[string]bool{}
+	for _, r := range rs {
+		if _, done := out[r.ID]; done {
+			continue
+		}
+		base := "p-" + fileSafe(r.ID)
+		a := base
+		for k := 2; used[strings.ToLower(a)]; k++ {
+			a = fmt.Sprintf("%s-%d", base, k)
+		}
+		used[strings.ToLower(a)] = true
+		out[r.ID] = a
+	}
+	return out
 }
 
 var htmlTemplate = template.Must(template.New("report").Funcs(template.FuncMap{
@@ -407,7 +436,7 @@ footer { margin-top: 3rem; font-size: .8rem; color: var(--muted); border-top: 1p
 <h2>Back-calculated parts</h2>
 <p>Profiles marked <em>unknown</em> are left out of the calibration; their temperature (or time) is solved from the Arrhenius line of their group.</p>
 <table><thead><tr><th>part</th><th>lot</th><th>result</th></tr></thead>
-<tbody>{{range .Parts}}<tr><td><a href="#{{.Anchor}}">{{.ID}}</a></td><td>{{.Lot}}</td><td>{{.Result}}{{if .Warnings}}<ul class="warn">{{range .Warnings}}<li>{{.}}</li>{{end}}</ul>{{end}}</td></tr>{{end}}</tbody></table>
+<tbody>{{range .Parts}}<tr><td>{{if .Anchor}}<a href="#{{.Anchor}}">{{.ID}}</a>{{else}}{{.ID}}{{end}}</td><td>{{.Lot}}</td><td>{{.Result}}{{if .Warnings}}<ul class="warn">{{range .Warnings}}<li>{{.}}</li>{{end}}</ul>{{end}}</td></tr>{{end}}</tbody></table>
 <div class="caution"><h3>Before acting on a back-calculated number</h3><ol>{{range .PartCautions}}<li>{{.}}</li>{{end}}</ol></div>
 </section>
 {{end}}

@@ -35,7 +35,7 @@ func (m Matano) WriteText(w io.Writer, o TextOptions) error {
 // viewMatanoCautions accompany every D(C) analysis.
 var viewMatanoCautions = []string{
 	"D(C) rests on the Boltzmann transformation: an infinite couple, D a function of concentration alone, fixed end compositions and no change of volume on diffusion.",
-	"The band is a bootstrap of the smoothing curve: it covers the scatter of the measured points, not the choice of smoother or bias of the measurement method.",
+	"The band is a bootstrap of the whole smoothing procedure, including the choice of the number of terms: it covers the scatter of the measured points and the smoother's own uncertainty, not a bias of the measurement method.",
 	"Verify by metallography before acting on a number; the applicable specifications decide acceptance; defer to local codes and to licensed engineering judgement.",
 }
 
@@ -112,7 +112,7 @@ func viewMatanoText(w *bufio.Writer, rs []*matano.Result, o TextOptions) {
 				tb.Add(c, "n/a", "outside the end compositions")
 				continue
 			}
-			dl := LastDigit(p.D, p.CI)
+			dl := t.n().lastDigit(p.D, p.CI)
 			civ := ""
 			if finite(p.CI.Lo) || finite(p.CI.Hi) {
 				civ = IntervalAt(p.D, p.CI, dl)

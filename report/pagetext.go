@@ -20,7 +20,7 @@ type ParamText struct {
 func ParamTexts(r *fit.Result) []ParamText {
 	out := make([]ParamText, 0, len(r.Params))
 	for _, e := range r.Params {
-		pt := formatParam(e)
+		pt := formatParam(e, numFmt{})
 		if e.Name == "D" && r.Time == 0 {
 			pt.Name = "Dt"
 		}

@@ -128,28 +128,28 @@ func viewPredictionText(t viewText, p *arrhenius.Prediction) {
 		var tm string
 		switch {
 		case q.Method == "" && !finite(q.CI.Lo) && !finite(q.CI.Hi):
-			tm = viewDurationPlain(q.Value) + ", no interval"
+			tm = t.n().viewDurationPlain(q.Value) + ", no interval"
 		case viewZeroWidth(q.CI):
-			tm = viewDurationPlain(q.Value) + ", " + viewZeroWidthText
+			tm = t.n().viewDurationPlain(q.Value) + ", " + viewZeroWidthText
 		default:
-			tm = DurationEstimate(q.Value, q.CI, p.Level) + "; " + viewCIMethod(q.Method, nil)
+			tm = t.n().durationEstimate(q.Value, q.CI, p.Level) + "; " + viewCIMethod(q.Method, nil)
 		}
 		t.field("hold time", tm)
 		if pi := q.PI; pi != nil {
 			t.field("single part", Level(p.Level)+" prediction interval "+viewDurationInterval(q.Value, *pi))
 		}
 		t.warn(by["Dt"])
-		t.field("Dt needed", Sig(p.Dt.Value, DefaultDigits)+" m² (√Dt "+Depth(math.Sqrt(p.Dt.Value))+")")
+		t.field("Dt needed", t.n().general(p.Dt.Value)+" m² (√Dt "+Depth(math.Sqrt(p.Dt.Value))+")")
 	} else {
 		d := p.Dt
 		sq := " (√Dt " + Depth(math.Sqrt(d.Value)) + ")"
 		var s string
 		if !finite(d.CI.Lo) && !finite(d.CI.Hi) {
-			s = Sig(d.Value, DefaultDigits) + " m²" + sq + ", no band"
+			s = t.n().general(d.Value) + " m²" + sq + ", no band"
 		} else if viewZeroWidth(d.CI) {
-			s = Sig(d.Value, DefaultDigits) + " m²" + sq + ", band of zero width"
+			s = t.n().general(d.Value) + " m²" + sq + ", band of zero width"
 		} else {
-			last := LastDigit(d.Value, d.CI)
+			last := t.n().lastDigit(d.Value, d.CI)
 			s = Number(d.Value, last) + " m²" + sq + ", " + Level(p.Level) + " CI " + IntervalAt(d.Value, d.CI, last) + " m² (mean line)"
 			if pi := d.PI; pi != nil {
 				s += "; single part " + Level(p.Level) + " PI " + IntervalAt(d.Value, *pi, last) + " m²"
@@ -160,7 +160,7 @@ func viewPredictionText(t viewText, p *arrhenius.Prediction) {
 	}
 	t.field("levels", "surface Cs "+viewGiven(p.Cs)+", base C0 "+viewGiven(p.C0)+" (in the unit they were given in); erf solution, semi-infinite body")
 	if cd := p.CaseDepth; cd != nil && p.Kind != "time-to-depth" {
-		t.field("case depth", viewLength(cd.Value, cd.CI, p.Level)+" at level "+viewGiven(p.Threshold)+" (mean line)")
+		t.field("case depth", t.n().viewLength(cd.Value, cd.CI, p.Level)+" at level "+viewGiven(p.Threshold)+" (mean line)")
 		if pi := cd.PI; pi != nil {
 			t.field("single part", "case depth "+Level(p.Level)+" prediction interval "+viewLengthInterval(cd.Value, *pi))
 		}
@@ -185,9 +185,9 @@ func viewProfileTable(t viewText, p *arrhenius.Prediction) {
 		}
 	}
 	rng := math.Abs(p.Cs - p.C0)
-	last := SigDigits(rng, DefaultDigits)
+	last := SigDigits(rng, t.n().sig())
 	if hmax > 0 {
-		last = LastDigit(rng, fit.Interval{Lo: rng - hmax, Hi: rng + hmax})
+		last = t.n().lastDigit(rng, fit.Interval{Lo: rng - hmax, Hi: rng + hmax})
 	}
 	f, unit := DepthScale(maxDepth)
 	// Depths with the fewest decimals (at most three) that write them all exactly.

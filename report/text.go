@@ -13,16 +13,24 @@ import (
 )
 
 // TextOptions control the text views. The zero value writes temperatures
-// in °C with kelvin beside, wraps at 100 columns and ends with the cautions.
+// in °C with kelvin beside, numbers without an interval to three
+// significant digits, wraps at 100 columns and ends with the cautions.
 type TextOptions struct {
 	// TempUnit is the user's temperature unit; "" means °C.
 	TempUnit TempUnit
+	// Digits is the number of significant digits of a number written
+	// without an interval (a value with an interval keeps the digits the
+	// interval supports); 0 means DefaultDigits.
+	Digits int
 	// Width is the column at which warnings and cautions wrap; 0 means 100.
 	Width int
 	// NoCautions leaves the cautions out (for a caller that writes them once
 	// at the end of a longer output).
 	NoCautions bool
 }
+
+// num is the number formatter of the options' digits.
+func (o TextOptions) num() numFmt { return numFmt{o.Digits} }
 
 func (o TextOptions) width() int {
 	if o.Width <= 0 {
@@ -39,7 +47,7 @@ type paramText struct {
 // formatParam writes a parameter: value with unit (D also in µm²/s or
 // cm²/s), standard error with two significant digits, interval with the
 // value's digits; lengths in µm or mm.
-func formatParam(e fit.Estimate) paramText {
+func formatParam(e fit.Estimate, n numFmt) paramText {
 	pt := paramText{Name: e.Name}
 	v, iv, se, unit := e.Value, e.CI, e.StdErr, e.Unit
 	switch unit {
@@ -56,13 +64,13 @@ func formatParam(e fit.Estimate) paramText {
 			v, se, iv, unit = v/f, se/f, fit.Interval{Lo: iv.Lo / f, Hi: iv.Hi / f}, u
 		}
 	}
-	last := paramLast(v, iv, e.Fixed)
+	last := n.paramLast(v, iv, e.Fixed)
 	pt.Value = Number(v, last)
 	if u := PrettyUnit(unit); u != "" {
 		pt.Value += " " + u
 	}
 	if unit == "m2/s" {
-		if alt := DAlternative(v, iv); alt != "" {
+		if alt := n.dAlternative(v, iv); alt != "" {
 			pt.Value += " (" + alt + ")"
 		}
 	}
@@ -81,14 +89,17 @@ func formatParam(e fit.Estimate) paramText {
 // value: the interval's (LastDigit), or DefaultDigits significant digits
 // for a fixed parameter (0 for a fixed 0). The text views, the HTML report
 // and the workbook's number formats all take it from here.
-func paramLast(v float64, iv fit.Interval, fixed bool) int {
+func paramLast(v float64, iv fit.Interval, fixed bool) int { return numFmt{}.paramLast(v, iv, fixed) }
+
+// paramLast is paramLast with n's digits for a value without an interval.
+func (n numFmt) paramLast(v float64, iv fit.Interval, fixed bool) int {
 	if !fixed {
-		return LastDigit(v, iv)
+		return n.lastDigit(v, iv)
 	}
 	if v == 0 {
 		return 0
 	}
-	return SigDigits(v, DefaultDigits)
+	return SigDigits(v, n.sig())
 }
 
 // statsParts lists the statistics of a fit, each "name value".
@@ -207,7 +218,7 @@ func writeResultText(w *bufio.Writer, r *fit.Result, o TextOptions) {
 	}
 	tb := Table{Header: []string{"", "estimate", "SE", Level(r.CILevel) + " CI"}, Indent: "  ", Align: []Align{Left, Left, Right, Left}}
 	for _, e := range r.Params {
-		p := formatParam(e)
+		p := formatParam(e, o.num())
 		if e.Name == "D" && r.Time == 0 {
 			p.Name = "Dt" // the time is unknown: the fitted quantity is Dt in m²
 		}
@@ -243,7 +254,7 @@ func writeResultText(w *bufio.Writer, r *fit.Result, o TextOptions) {
 // writeDepthText writes a case or decarburization depth: from the fitted
 // curve with its interval, and from the points.
 func writeDepthText(w *bufio.Writer, r *fit.Result, e *fit.DepthEstimate, o TextOptions) {
-	head, notes := depthSentence(r, e)
+	head, notes := depthSentence(r, e, o.num())
 	writeWrapped(w, "  ", head, o.width())
 	for _, n := range notes {
 		writeWrapped(w, "      · ", n, o.width())
@@ -254,14 +265,14 @@ func writeDepthText(w *bufio.Writer, r *fit.Result, e *fit.DepthEstimate, o Text
 // the criterion as given and the level it means, the depth from the fitted
 // curve with its interval, and from the points — and returns the notes
 // that go with it (those not already among the profile's warnings).
-func depthSentence(r *fit.Result, e *fit.DepthEstimate) (string, []string) {
+func depthSentence(r *fit.Result, e *fit.DepthEstimate, n numFmt) (string, []string) {
 	name := "case depth"
 	if e.Kind == "decarburization" {
 		name = "decarburization depth"
 	}
 	fitted := "not reached by the fitted curve"
 	if finite(e.Depth) {
-		fitted = DepthInterval(e.Depth, e.CI, e.CILevel) + " from the fitted curve"
+		fitted = n.depthInterval(e.Depth, e.CI, e.CILevel) + " from the fitted curve"
 	}
 	data := "not reached by the measured points"
 	if finite(e.FromData) {
@@ -269,16 +280,16 @@ func depthSentence(r *fit.Result, e *fit.DepthEstimate) (string, []string) {
 	}
 	level := ""
 	if finite(e.Level) {
-		level = fmt.Sprintf(" (level %s %s)", Sig(e.Level, 3), e.Unit)
+		level = fmt.Sprintf(" (level %s %s)", n.general(e.Level), e.Unit)
 	}
 	said := map[string]bool{}
 	for _, wn := range r.Warnings {
 		said[wn.Message] = true
 	}
 	var notes []string
-	for _, n := range e.Notes {
-		if !said[n] { // the proxy note is already among the warnings
-			notes = append(notes, n)
+	for _, note := range e.Notes {
+		if !said[note] { // the proxy note is already among the warnings
+			notes = append(notes, note)
 		}
 	}
 	return fmt.Sprintf("%s at %s%s: %s; %s.", name, e.Threshold, level, fitted, data), notes
@@ -306,9 +317,13 @@ func depthShort(e *fit.DepthEstimate) string {
 // DepthInterval writes a depth with its interval in one unit ("0.82 mm,
 // 95 % CI 0.79–0.85 mm"); open ends are said in words.
 func DepthInterval(d float64, ci fit.Interval, level float64) string {
+	return numFmt{}.depthInterval(d, ci, level)
+}
+
+func (n numFmt) depthInterval(d float64, ci fit.Interval, level float64) string {
 	f, unit := DepthScale(d)
 	scaled := fit.Interval{Lo: ci.Lo / f, Hi: ci.Hi / f}
-	return Estimate(d/f, scaled, level, unit)
+	return n.estimate(d/f, scaled, level, unit)
 }
 
 // writeSelectionText writes the model comparison of --model auto.

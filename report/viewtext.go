@@ -2,7 +2,6 @@ package report
 
 import (
 	"bufio"
-	"encoding/csv"
 	"fmt"
 	"io"
 	"math"
@@ -51,12 +50,12 @@ func viewUnion(lists [][]string) []string {
 // table's name, tables are separated by an empty line.
 type viewCSV struct {
 	w      io.Writer
-	cw     *csv.Writer
+	cw     *csvWriter
 	tables int
 	err    error
 }
 
-func newViewCSV(w io.Writer) *viewCSV { return &viewCSV{w: w, cw: csv.NewWriter(w)} }
+func newViewCSV(w io.Writer) *viewCSV { return &viewCSV{w: w, cw: newCSVWriter(w)} }
 
 // table starts a table with its header.
 func (c *viewCSV) table(name string, header ...string) {
@@ -117,6 +116,9 @@ type viewText struct {
 	o TextOptions
 }
 
+// n is the number formatter of the view's options.
+func (t viewText) n() numFmt { return t.o.num() }
+
 // field writes "  label        text", the text wrapped under itself.
 func (t viewText) field(label, text string) {
 	pad := viewLabel - len([]rune(label))
@@ -167,10 +169,14 @@ func viewEach[T any](w *bufio.Writer, o TextOptions, items []T, empty string, wr
 // 1.1–4.8 × 10⁻⁵ m²/s". none is said instead of an interval when both
 // ends are open.
 func viewD(d float64, ci fit.Interval, level float64, none string) string {
+	return numFmt{}.viewD(d, ci, level, none)
+}
+
+func (n numFmt) viewD(d float64, ci fit.Interval, level float64, none string) string {
 	open := !finite(ci.Lo) && !finite(ci.Hi)
-	last := LastDigit(d, ci)
+	last := n.lastDigit(d, ci)
 	s := Number(d, last) + " m²/s"
-	if alt := DAlternative(d, ci); alt != "" {
+	if alt := n.dAlternative(d, ci); alt != "" {
 		s += " (" + alt + ")"
 	}
 	if open {
@@ -207,9 +213,11 @@ func viewTempPlain(k float64, u TempUnit) string {
 	return trimmed(u.FromKelvin(k), 0) + " " + u.Symbol() + " (" + trimmed(k, 0) + " K)"
 }
 
-// viewDurationPlain writes a solved time without interval to three
+// viewDurationPlain writes a solved time without interval to three (n's)
 // significant digits: "6.23 h".
-func viewDurationPlain(s float64) string {
+func viewDurationPlain(s float64) string { return numFmt{}.viewDurationPlain(s) }
+
+func (n numFmt) viewDurationPlain(s float64) string {
 	f, unit := 3600.0, "h"
 	switch {
 	case math.Abs(s) < 120:
@@ -217,12 +225,16 @@ func viewDurationPlain(s float64) string {
 	case math.Abs(s) < 7200:
 		f, unit = 60, "min"
 	}
-	return Sig(s/f, DefaultDigits) + " " + unit
+	return Sig(s/f, n.sig()) + " " + unit
 }
 
 // viewLength writes a length (m) in µm or mm with its interval:
 // "0.85 mm, 95 % CI 0.80–0.90 mm".
 func viewLength(m float64, ci fit.Interval, level float64) string {
+	return numFmt{}.viewLength(m, ci, level)
+}
+
+func (n numFmt) viewLength(m float64, ci fit.Interval, level float64) string {
 	ref := math.Abs(m)
 	if finite(ci.Hi) {
 		ref = math.Max(ref, math.Abs(ci.Hi))
@@ -230,9 +242,9 @@ func viewLength(m float64, ci fit.Interval, level float64) string {
 	f, unit := DepthScale(ref)
 	v, iv := m/f, fit.Interval{Lo: ci.Lo / f, Hi: ci.Hi / f}
 	if !finite(ci.Lo) && !finite(ci.Hi) {
-		return Sig(v, DefaultDigits) + " " + unit
+		return Sig(v, n.sig()) + " " + unit
 	}
-	out := Estimate(v, iv, level, unit)
+	out := n.estimate(v, iv, level, unit)
 	if finite(iv.Lo) && finite(iv.Hi) && !degenerate(v, iv) {
 		out += " " + unit
 	}

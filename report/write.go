@@ -3,13 +3,13 @@ package report
 import (
 	"bytes"
 	"errors"
-	"fmt"
 	"io"
 	"os"
+	"path"
 	"path/filepath"
-	"strings"
 
 	"github.com/fickfit/fickfit/campaign"
+	"github.com/fickfit/fickfit/internal/cleanup"
 	"github.com/fickfit/fickfit/internal/parallel"
 )
 
@@ -73,38 +73,43 @@ func renderAll(figs []*Figure, png bool, dpi int, progress func(done, total int)
 //	results.xlsx    the workbook with native charts and the audit sheet
 //	report.html     the self-contained report
 //	figures/        profile-<id>, arrhenius and lots figures as SVG and PNG
+//	.fickfit-manifest.json  what fickfit wrote (see OpenReportFolder)
 //
-// Every file is written to a temporary file beside it and renamed when
-// complete. Existing report files are replaced only with opts.Force; an
-// input file is never replaced. It returns the paths written.
+// It opens the folder with OpenReportFolder (an earlier report is replaced
+// only with opts.Force; the campaign's input files are never replaced),
+// writes the report with ReportFolder.WriteCampaign and closes it. It
+// returns the paths written.
 func WriteCampaign(dir string, result *campaign.Result, opts CampaignOptions) ([]string, error) {
 	if result == nil {
 		return nil, errors.New("no campaign result to write")
 	}
-	res := &CampaignReport{Result: result, TempUnit: opts.TempUnit}
-	if !opts.Force {
-		if foreign := ForeignEntries(dir); len(foreign) > 0 {
-			return nil, fmt.Errorf("%w: the report folder %s already holds %s, which an earlier report did not write; choose an empty folder or add --force", ErrExists, dir, strings.Join(foreign, ", "))
-		}
-	}
-	figDir := filepath.Join(dir, DirFigures)
-	if err := os.MkdirAll(figDir, 0o755); err != nil {
-		return nil, fmt.Errorf("cannot create the report folder: %w", err)
-	}
 	var inputs []string
-	for _, in := range res.Inputs {
+	for _, in := range result.Inputs {
 		inputs = append(inputs, in.Name)
 	}
-	out := Output{Force: opts.Force, Inputs: inputs}
+	f, err := OpenReportFolder(dir, FolderOptions{Force: opts.Force, Command: "campaign", Inputs: inputs, Version: result.Version})
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	return f.WriteCampaign(result, opts)
+}
 
+// WriteCampaign writes the campaign's report into the opened folder: every
+// file is built in a temporary folder inside it and, when all are
+// complete, moved into place, the earlier report's other files removed and
+// the manifest written (see OpenReportFolder). On error, and when the run
+// is interrupted, the folder is as it was. opts.Force is not used here (the
+// folder was checked when opened). It returns the paths written.
+func (f *ReportFolder) WriteCampaign(result *campaign.Result, opts CampaignOptions) ([]string, error) {
+	if result == nil {
+		return nil, errors.New("no campaign result to write")
+	}
+	res := &CampaignReport{Result: result, TempUnit: opts.TempUnit}
 	fs, _ := res.makeFigures(opts)
 	figs := fs.all(res)
-	type job struct {
-		path  string
-		write func(io.Writer) error
-	}
-	var jobs []job
-	add := func(name string, f func(io.Writer) error) { jobs = append(jobs, job{filepath.Join(dir, name), f}) }
+	var files []reportFile
+	add := func(name string, w func(io.Writer) error) { files = append(files, reportFile{name, w}) }
 	add(FileJSON, res.WriteJSON)
 	add(FileCSV, res.fits().WriteCSV)
 	add(FileResiduals, res.fits().WriteResidualsCSV)
@@ -115,13 +120,17 @@ func WriteCampaign(dir string, result *campaign.Result, opts CampaignOptions) ([
 	if res.Exclusions != nil {
 		add(FileExclusions, res.Exclusions.WriteCSV)
 	}
-	to := TextOptions{TempUnit: opts.TempUnit}
-	add(FileSummary, func(w io.Writer) error {
-		if err := res.WriteSummary(w, TextOptions{TempUnit: opts.TempUnit, NoCautions: true}); err != nil {
+	to := TextOptions{TempUnit: opts.TempUnit, Digits: opts.Digits}
+	add(FileSummary, func(out io.Writer) error {
+		w := newTextEscaper(out)
+		if err := res.WriteSummary(w, TextOptions{TempUnit: opts.TempUnit, Digits: opts.Digits, NoCautions: true}); err != nil {
 			return err
 		}
 		io.WriteString(w, "\n\nProfiles in detail\n\n")
-		return res.fits().WriteText(w, to)
+		if err := res.fits().WriteText(w, to); err != nil {
+			return err
+		}
+		return w.Close()
 	})
 	var rendered []renderedFigure
 	add(FileHTML, func(w io.Writer) error {
@@ -134,18 +143,6 @@ func WriteCampaign(dir string, result *campaign.Result, opts CampaignOptions) ([
 	// so that the stages run in order: figures, workbook, write.
 	var book bytes.Buffer
 	add(FileWorkbook, func(w io.Writer) error { _, err := w.Write(book.Bytes()); return err })
-	for _, f := range figs {
-		jobs = append(jobs, job{filepath.Join(figDir, f.Name+".svg"), nil})
-		if !opts.NoPNG {
-			jobs = append(jobs, job{filepath.Join(figDir, f.Name+".png"), nil})
-		}
-	}
-	// Refuse before writing anything.
-	for _, j := range jobs {
-		if err := out.check(j.path); err != nil {
-			return nil, err
-		}
-	}
 	var err error
 	rendered, err = renderAll(figs, !opts.NoPNG, opts.DPI, func(d, t int) { opts.progress("figures", d, t) })
 	if err != nil {
@@ -154,51 +151,46 @@ func WriteCampaign(dir string, result *campaign.Result, opts CampaignOptions) ([
 	if err := res.WriteWorkbook(&book, opts); err != nil {
 		return nil, err
 	}
-	byPath := map[string][]byte{}
 	for _, rf := range rendered {
-		byPath[filepath.Join(figDir, rf.fig.Name+".svg")] = rf.svg
+		add(path.Join(DirFigures, rf.fig.Name+".svg"), bytesWriter(rf.svg))
 		if rf.png != nil {
-			byPath[filepath.Join(figDir, rf.fig.Name+".png")] = rf.png
+			add(path.Join(DirFigures, rf.fig.Name+".png"), bytesWriter(rf.png))
 		}
 	}
-	var written []string
-	for i, j := range jobs {
-		write := j.write
-		if write == nil {
-			b := byPath[j.path]
-			write = func(w io.Writer) error { _, err := w.Write(b); return err }
+	var folders []string
+	if len(rendered) > 0 {
+		folders = []string{DirFigures}
+	}
+	n := 0
+	for i := range files {
+		w := files[i].write
+		files[i].write = func(out io.Writer) error {
+			err := w(out)
+			n++
+			opts.progress("write", n, len(files))
+			return err
 		}
-		if err := out.WriteFile(j.path, write); err != nil {
-			return written, err
-		}
-		written = append(written, j.path)
-		opts.progress("write", i+1, len(jobs))
+	}
+	tmp, forget, built, err := f.build(files)
+	if err != nil {
+		return nil, err
+	}
+	defer func() {
+		os.RemoveAll(tmp)
+		forget()
+	}()
+	if err := cleanup.Hold(func() error { return f.commit(built, folders) }); err != nil {
+		return nil, err
+	}
+	f.done = true
+	written := make([]string, len(built))
+	for i, b := range built {
+		written[i] = filepath.Join(f.dir, filepath.FromSlash(b.Path))
 	}
 	return written, nil
 }
 
-// reportNames are the entries a campaign report folder holds.
-var reportNames = map[string]bool{
-	FileJSON: true, FileCSV: true, FileResiduals: true, FileArrhenius: true, FileBackcalc: true,
-	FileSummary: true, FileWorkbook: true, FileHTML: true, DirFigures: true, FileExclusions: true,
-}
-
-// ForeignEntries lists (up to three) entries of dir that are not part of a
-// fickfit report: a folder holding only an earlier report may be rewritten,
-// anything else needs --force.
-func ForeignEntries(dir string) []string {
-	entries, err := os.ReadDir(dir)
-	if err != nil {
-		return nil
-	}
-	var out []string
-	for _, e := range entries {
-		if !reportNames[e.Name()] {
-			out = append(out, e.Name())
-			if len(out) == 3 {
-				break
-			}
-		}
-	}
-	return out
+// bytesWriter writes b.
+func bytesWriter(b []byte) func(io.Writer) error {
+	return func(w io.Writer) error { _, err := w.Write(b); return err }
 }

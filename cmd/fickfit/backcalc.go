@@ -44,6 +44,9 @@ codes and licensed engineering judgement before deciding on parts.`,
 			if err := out.check(args); err != nil {
 				return err
 			}
+			if err := atMost("--draws", draws, maxDraws); err != nil {
+				return err
+			}
 			if solve != "temperature" && solve != "time" {
 				return usagef("--solve must be temperature or time")
 			}
@@ -117,7 +120,7 @@ codes and licensed engineering judgement before deciding on parts.`,
 	c.Flags().StringVar(&solve, "solve", "temperature", "what to solve for: temperature or time")
 	c.Flags().StringVar(&history, "history", "", "furnace or service log (CSV of time and temperature) of known shape but unknown level")
 	c.Flags().StringVar(&method, "method", "analytic", "interval: analytic (Fieller), monte-carlo, or both")
-	c.Flags().IntVar(&draws, "draws", 10000, "Monte Carlo draws")
+	c.Flags().IntVar(&draws, "draws", 10000, "Monte Carlo draws (at most 1000000)")
 	_ = c.RegisterFlagCompletionFunc("solve", fixed("temperature", "time"))
 	_ = c.RegisterFlagCompletionFunc("method", fixed(arrhenius.SolveMethods()...))
 	return c

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"path/filepath"
+	"strings"
 	"sync"
 
 	"github.com/schollz/progressbar/v3"
@@ -34,7 +36,7 @@ func (cf *campaignFlags) register(c *cobra.Command, defaultOut string) {
 	cf.ff.register(c)
 	fl := c.Flags()
 	fl.StringVar(&cf.out, "out", defaultOut, "report folder to write")
-	fl.BoolVar(&cf.force, "force", false, "write into a folder that already holds files (replacing an earlier report)")
+	fl.BoolVar(&cf.force, "force", false, "replace an earlier report in the folder, and write beside files fickfit did not write (those are never touched)")
 	fl.StringVar(&cf.by, "by", "lot", "group profiles for Arrhenius lines and the comparison by this column or metadata key (none: one line)")
 	fl.StringVar(&cf.method, "arrhenius", "two-stage", "Arrhenius method: two-stage or global")
 	fl.StringVar(&cf.tref, "tref", "", "temperature of the lot comparison's D ratio (default: the centre of the data)")
@@ -43,11 +45,12 @@ func (cf *campaignFlags) register(c *cobra.Command, defaultOut string) {
 	fl.BoolVar(&cf.noPNG, "no-png", false, "write SVG figures only")
 	_ = c.RegisterFlagCompletionFunc("arrhenius", fixed("two-stage", "global"))
 	cf.output.register(c, false)
+	markOutput(c, "out")
 }
 
 // options turns the flags into the campaign's options (what to compute)
 // and the report's (how to write it).
-func (cf *campaignFlags) options(c *cobra.Command) (campaign.Options, report.CampaignOptions, error) {
+func (cf *campaignFlags) options(c *cobra.Command, args []string) (campaign.Options, report.CampaignOptions, error) {
 	var o campaign.Options
 	var ro report.CampaignOptions
 	fo, err := cf.ff.options()
@@ -57,11 +60,14 @@ func (cf *campaignFlags) options(c *cobra.Command) (campaign.Options, report.Cam
 	if cf.ff.bootstrap() {
 		fo.Bootstrap.Progress = nil
 	}
-	if err := cf.output.check(nil); err != nil {
+	if err := cf.output.check(args); err != nil {
 		return o, ro, err
 	}
+	if strings.TrimSpace(cf.out) == "" {
+		return o, ro, usagef("--out: name the report folder (it is created if it does not exist)")
+	}
 	progress := stageProgress()
-	ro = report.CampaignOptions{TempUnit: cf.output.unit, Force: cf.force, NoPNG: cf.noPNG, Progress: progress}
+	ro = report.CampaignOptions{TempUnit: cf.output.unit, Digits: cf.output.digits, Force: cf.force, NoPNG: cf.noPNG, Progress: progress}
 	o = campaign.Options{
 		Fit: fo, By: cf.by, Method: cf.method, References: cf.refs, Version: fickfit.Version, Progress: progress, KeepGoing: cf.keepGoing,
 		Adjust: func(p *profile.Profile) error {
@@ -131,15 +137,20 @@ A rerun with the same inputs gives byte-identical JSON and CSV.`,
   fickfit campaign campaign.xlsx --out report --ci bootstrap --seed 7 --force`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
-			o, ro, err := cf.options(c)
+			o, ro, err := cf.options(c, args)
 			if err != nil {
 				return err
 			}
+			folder, err := cf.open("campaign", false)
+			if err != nil {
+				return err
+			}
+			defer folder.Close()
 			res, err := campaign.Run(args, o)
 			if err != nil {
 				return err
 			}
-			if err := finishCampaign(c.OutOrStdout(), cf.out, res, ro); err != nil {
+			if err := finishCampaign(c.OutOrStdout(), folder, res, ro); err != nil {
 				return err
 			}
 			if n := (&report.CampaignReport{Result: res}).LeftOut(); cf.keepGoing && n > 0 {
@@ -165,35 +176,48 @@ lot and temperature) and asks what temperature a pinion saw during a
 controller fault. All numbers are made up for the demonstration.`,
 		Args: cobra.NoArgs,
 		RunE: func(c *cobra.Command, args []string) error {
-			o, ro, err := cf.options(c)
+			o, ro, err := cf.options(c, nil)
 			if err != nil {
 				return err
 			}
-			// The demo may rewrite its own earlier report, never other files.
-			if !ro.Force && len(report.ForeignEntries(cf.out)) == 0 {
-				ro.Force = true
+			// The demo may replace its own earlier report (its manifest says
+			// the demo wrote it), never a file fickfit did not write.
+			folder, err := cf.open("demo", true)
+			if err != nil {
+				return err
 			}
+			defer folder.Close()
 			res, err := campaign.RunFS(fickfit.Demo(), o)
 			if err != nil {
 				return err
 			}
-			return finishCampaign(c.OutOrStdout(), cf.out, res, ro)
+			return finishCampaign(c.OutOrStdout(), folder, res, ro)
 		},
 	}
 	cf.register(c, "fickfit-demo")
 	return c
 }
 
+// open checks and locks the report folder before any work is done: a
+// folder another run is writing, or whose files fickfit did not write, is
+// refused at once. replaceOwn lets the command replace its own earlier
+// report without --force.
+func (cf *campaignFlags) open(command string, replaceOwn bool) (*report.ReportFolder, error) {
+	return report.OpenReportFolder(cf.out, report.FolderOptions{Force: cf.force, Command: command, ReplaceOwn: replaceOwn,
+		Inputs: cf.output.inputs, Version: fickfit.Version})
+}
+
 // finishCampaign writes the report folder and prints where it went and a summary.
-func finishCampaign(w io.Writer, dir string, res *campaign.Result, o report.CampaignOptions) error {
-	files, err := report.WriteCampaign(dir, res, o)
+func finishCampaign(w io.Writer, folder *report.ReportFolder, res *campaign.Result, o report.CampaignOptions) error {
+	files, err := folder.WriteCampaign(res, o)
 	if err != nil {
 		return err
 	}
+	dir := folder.Dir()
 	summary := &report.CampaignReport{Result: res, TempUnit: o.TempUnit}
-	if err := summary.WriteText(w, report.TextOptions{TempUnit: o.TempUnit}); err != nil {
+	if err := emit(w, report.Text, report.TextOptions{TempUnit: o.TempUnit, Digits: o.Digits}, summary); err != nil {
 		return err
 	}
-	fmt.Fprintf(w, "\nReport written to %s/ (%d files); open %s/%s in a browser.\n", dir, len(files), dir, report.FileHTML)
+	fmt.Fprintf(w, "\nReport written to %s (%d files); open %s in a browser.\n", dir, len(files), filepath.Join(dir, report.FileHTML))
 	return nil
 }

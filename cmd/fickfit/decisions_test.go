@@ -228,7 +228,7 @@ func TestReferenceIntervalCoversOffsetSteel(t *testing.T) {
 // TestKeepGoingBrokenFile: a folder with one broken file and one profile
 // with values below a detection limit. Without --keep-going the broken
 // file stops the run; with it, it is listed with its line and why, the
-// rest is computed, and the exit status is 3.
+// rest is computed, and the exit status is 4.
 func TestKeepGoingBrokenFile(t *testing.T) {
 	dir := t.TempDir()
 	rng := rand.New(rand.NewPCG(14, 4))

@@ -47,7 +47,7 @@ func (f *fitFlags) register(c *cobra.Command) {
 	fl.StringSliceVar(&f.free, "free", nil, "fit a parameter that is fixed by default, e.g. --free x0")
 	fl.Float64Var(&f.level, "level", 0.95, "confidence level of the intervals")
 	fl.StringVar(&f.ci, "ci", "profile", "interval method: profile, wald or bootstrap")
-	fl.IntVar(&f.resamples, "resamples", 2000, "bootstrap resamples (with --ci bootstrap)")
+	fl.IntVar(&f.resamples, "resamples", 2000, "bootstrap resamples (with --ci bootstrap; at most 100000)")
 	fl.Uint64Var(&f.seed, "seed", 1, "bootstrap random seed: the same seed gives the same interval")
 	fl.BoolVar(&f.cases, "cases", false, "bootstrap whole points (case resampling) instead of residuals")
 	fl.BoolVar(&f.percentile, "percentile", false, "plain percentile bootstrap intervals instead of BCa")
@@ -100,6 +100,9 @@ func (f *fitFlags) options() (fit.Options, error) {
 	}
 	if !(f.level > 0 && f.level < 1) {
 		return o, usagef("--level %g must be between 0 and 1, e.g. 0.95", f.level)
+	}
+	if err := atMost("--resamples", f.resamples, maxResamples); err != nil {
+		return o, err
 	}
 	if f.faces != 1 && f.faces != 2 {
 		return o, usagef("--faces must be 1 or 2, not %d", f.faces)

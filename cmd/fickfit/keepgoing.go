@@ -14,7 +14,7 @@ import (
 
 // exitPartial is the exit status of a run that wrote its results but left
 // some inputs out under --keep-going (docs/output.md, "Exit status").
-const exitPartial = 3
+const exitPartial = 4
 
 // partialError says that results were written without some inputs; they
 // are listed in the output. It maps to exitPartial.
@@ -29,7 +29,7 @@ func (e partialError) Error() string {
 
 // registerKeepGoing declares --keep-going on c.
 func registerKeepGoing(c *cobra.Command, kg *bool) {
-	c.Flags().BoolVar(kg, "keep-going", false, "leave out unreadable files and profiles that cannot be fitted or used, list them (file, line or cell, why) in the output, compute the rest, and exit with status 3")
+	c.Flags().BoolVar(kg, "keep-going", false, "leave out unreadable files and profiles that cannot be fitted or used, list them (file, line or cell, why) in the output, compute the rest, and exit with status 4")
 }
 
 // readProfiles reads the profile files of args: all or nothing, or with

@@ -11,10 +11,14 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"os/signal"
+	"runtime/debug"
 	"strings"
+	"syscall"
 
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/cleanup"
 	"github.com/fickfit/fickfit/profile"
 	"github.com/fickfit/fickfit/report"
 	"github.com/spf13/cobra"
@@ -25,14 +29,58 @@ const (
 	exitOK       = 0
 	exitNoAnswer = 1 // the computation could not give an answer
 	exitBadInput = 2 // bad input or usage
+	exitInternal = 3 // a fault of fickfit itself (a recovered panic)
+	// A run stopped by SIGINT or SIGTERM exits 128 + the signal's number
+	// (130, 143) after removing its temporary files; a crash of the Go
+	// runtime (out of memory, an unrecovered panic in a goroutine) ends
+	// with SIGABRT (134 in a shell), never with 2.
 )
 
 func main() {
+	crashBySignal()
+	sigs := make(chan os.Signal, 1)
+	signal.Notify(sigs, os.Interrupt, syscall.SIGTERM)
+	go func() { os.Exit(interrupted(<-sigs, os.Stderr)) }()
 	os.Exit(run(os.Args[1:], os.Stdout, os.Stderr))
 }
 
-// run executes the command line and returns the exit status.
-func run(args []string, stdout, stderr io.Writer) int {
+// crashBySignal makes the Go runtime end a fatal error (out of memory, an
+// unrecovered panic outside run's goroutine) with SIGABRT instead of its
+// usual exit status 2, which is fickfit's status for bad input. The
+// traceback still goes to standard error; core dumps stay off (limitCore)
+// unless the user set GOTRACEBACK.
+func crashBySignal() {
+	if os.Getenv("GOTRACEBACK") == "" {
+		limitCore()
+	}
+	debug.SetTraceback("crash")
+}
+
+// interrupted is what main does on SIGINT or SIGTERM: remove every
+// temporary file and folder of the run (internal/cleanup; a report being
+// moved into place is finished first) and return 128 + the signal's
+// number as the exit status.
+func interrupted(s os.Signal, stderr io.Writer) int {
+	cleanup.Interrupt()
+	fmt.Fprintf(stderr, "\nfickfit: stopped by %v; its temporary files are removed\n", s)
+	if n, ok := s.(syscall.Signal); ok {
+		return 128 + int(n)
+	}
+	return 128 + 2
+}
+
+// run executes the command line and returns the exit status. A panic in a
+// command (or in a worker, which internal/parallel hands back) is a fault
+// of fickfit, not of the input: it is reported as an internal error with
+// its stack and exits exitInternal.
+func run(args []string, stdout, stderr io.Writer) (code int) {
+	defer func() {
+		if r := recover(); r != nil {
+			fmt.Fprintf(stderr, "fickfit: internal error (a fault of fickfit, not of your input): %v\n"+
+				"Please report it with the command line and, if you can, the input files.\n\n%s", r, debug.Stack())
+			code = exitInternal
+		}
+	}()
 	root := newRoot()
 	root.SetArgs(args)
 	root.SetOut(stdout)
@@ -41,7 +89,7 @@ func run(args []string, stdout, stderr io.Writer) int {
 	if err == nil {
 		return exitOK
 	}
-	fmt.Fprintln(stderr, "fickfit:", errorText(root, args, err))
+	fmt.Fprintln(stderr, "fickfit:", report.EscapeText(errorText(root, args, err)))
 	return exitCode(err)
 }
 

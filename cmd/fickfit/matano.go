@@ -3,6 +3,7 @@ package main
 import (
 	"io"
 	"path/filepath"
+	"strconv"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -16,7 +17,7 @@ func init() { addCommands(newMatanoCmd) }
 
 func newMatanoCmd() *cobra.Command {
 	var out outFlags
-	var method, tm, figure string
+	var method, tm, figure, terms string
 	var at []float64
 	var level float64
 	var resamples int
@@ -26,16 +27,23 @@ func newMatanoCmd() *cobra.Command {
 		Short: "D(C) from a diffusion-couple profile (Boltzmann–Matano or Sauer–Freise)",
 		Long: `Estimate the concentration-dependent diffusivity D(C) from the profile of a
 diffusion couple: the depth column is the position across the couple. The
-measured profile is first smoothed by a monotone sum of error functions (the
-number of terms chosen by AICc), then D is evaluated at the requested
-concentrations by the Boltzmann–Matano method (Matano plane from equal
-areas) or by Sauer–Freise (no Matano plane), with a seeded bootstrap band.
-Near the end compositions the method is ill-conditioned and says so.`,
+measured profile is first smoothed by a monotone sum of error functions
+(--terms auto: one term more than AICc chooses, so that the smoother's bias
+stays small against the band; --terms N fixes N), then D is evaluated at the
+requested concentrations by the Boltzmann–Matano method (Matano plane from
+equal areas) or by Sauer–Freise (no Matano plane). The band is a seeded
+bootstrap of the whole procedure, the choice of the number of terms
+included. Near the end compositions the method is ill-conditioned and says
+so.`,
 		Example: `  fickfit matano couple-NiCu.csv --time 100h
-  fickfit matano couple.csv --method sauer-freise --at 0.2,0.4,0.6 --format json`,
+  fickfit matano couple.csv --method sauer-freise --at 0.2,0.4,0.6 --format json
+  fickfit matano couple.csv --terms 4`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
 			if err := out.check(args); err != nil {
+				return err
+			}
+			if err := atMost("--resamples", resamples, maxResamples); err != nil {
 				return err
 			}
 			ps, err := profile.ReadAll(args)
@@ -48,6 +56,14 @@ Near the end compositions the method is ill-conditioned and says so.`,
 					return usagef("--time: %v", err)
 				}
 			}
+			nterms := 0
+			if t := strings.TrimSpace(terms); t != "auto" {
+				n, err := strconv.Atoi(t)
+				if err != nil || n < 1 {
+					return usagef("--terms %s: give a number of error-function terms (1 to 8) or auto", terms)
+				}
+				nterms = n
+			}
 			var results []*matano.Result
 			for i := range ps {
 				tt := t
@@ -58,7 +74,7 @@ Near the end compositions the method is ill-conditioned and says so.`,
 					return usagef("profile %s: the couple's annealing time is needed (--time or a '# time:' line)", ps[i].ID)
 				}
 				r, err := matano.Analyze(&ps[i], tt, matano.Options{
-					Method: method, Concentrations: at, Level: level, Resamples: resamples, Seed: seed,
+					Method: method, Concentrations: at, Terms: nterms, Level: level, Resamples: resamples, Seed: seed,
 				})
 				if err != nil {
 					return err
@@ -66,7 +82,7 @@ Near the end compositions the method is ill-conditioned and says so.`,
 				results = append(results, r)
 			}
 			if figure != "" {
-				if err := writeMatanoFigures(figure, results, ps); err != nil {
+				if err := writeMatanoFigures(figure, results, ps, out.output()); err != nil {
 					return err
 				}
 			}
@@ -77,11 +93,13 @@ Near the end compositions the method is ill-conditioned and says so.`,
 	fl := c.Flags()
 	fl.StringVar(&method, "method", "boltzmann-matano", "boltzmann-matano or sauer-freise")
 	fl.StringVar(&tm, "time", "", "annealing time of the couple (overrides the file)")
+	fl.StringVar(&terms, "terms", "auto", "error-function terms of the smoother: 1 to 8, or auto (one more than AICc chooses)")
 	fl.Float64SliceVar(&at, "at", nil, "concentrations at which to report D (default: 5 %…95 % of the way between the end compositions)")
 	fl.Float64Var(&level, "level", 0.95, "confidence level of the bootstrap band")
-	fl.IntVar(&resamples, "resamples", 1000, "bootstrap resamples for the band")
+	fl.IntVar(&resamples, "resamples", 1000, "bootstrap resamples for the band (at most 100000; negative: no band)")
 	fl.Uint64Var(&seed, "seed", 1, "bootstrap seed: the same seed gives the same band")
 	fl.StringVar(&figure, "figure", "", "also draw the profile and D(C) to this .svg or .png file (one file per couple: the id is added when there are several)")
+	markOutput(c, "figure")
 	return c
 }
 
@@ -93,9 +111,10 @@ func figureExt(path string) error {
 	return nil
 }
 
-// writeFigure writes f to path, SVG or PNG by extension, whole or not at all.
-func writeFigure(path string, f *report.Figure) error {
-	return report.WriteFileAtomic(path, func(w io.Writer) error {
+// writeFigure writes f to path, SVG or PNG by extension, whole or not at
+// all, never over an input.
+func writeFigure(path string, f *report.Figure, o report.Output) error {
+	return o.WriteFile(path, func(w io.Writer) error {
 		if strings.EqualFold(filepath.Ext(path), ".png") {
 			return f.WritePNG(w, 0)
 		}
@@ -103,8 +122,9 @@ func writeFigure(path string, f *report.Figure) error {
 	})
 }
 
-// writeMatanoFigures draws each analysis to path (SVG or PNG by extension).
-func writeMatanoFigures(path string, results []*matano.Result, ps []profile.Profile) error {
+// writeMatanoFigures draws each analysis to path (SVG or PNG by extension),
+// never over an input.
+func writeMatanoFigures(path string, results []*matano.Result, ps []profile.Profile, o report.Output) error {
 	if err := figureExt(path); err != nil {
 		return err
 	}
@@ -118,13 +138,7 @@ func writeMatanoFigures(path string, results []*matano.Result, ps []profile.Prof
 		if len(results) > 1 {
 			target = strings.TrimSuffix(path, filepath.Ext(path)) + "-" + f.Name + ext
 		}
-		err = report.WriteFileAtomic(target, func(w io.Writer) error {
-			if ext == ".png" {
-				return f.WritePNG(w, 0)
-			}
-			return f.WriteSVG(w)
-		})
-		if err != nil {
+		if err := writeFigure(target, f, o); err != nil {
 			return err
 		}
 	}

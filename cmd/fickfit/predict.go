@@ -101,6 +101,9 @@ and licensed engineering judgement.`,
 				if points < 2 {
 					return usagef("--points must be at least 2")
 				}
+				if err := atMost("--points", points, maxPoints); err != nil {
+					return err
+				}
 				depths := make([]float64, points)
 				for i := range depths {
 					depths[i] = xmax * float64(i) / float64(points-1)
@@ -122,7 +125,7 @@ and licensed engineering judgement.`,
 					if err != nil {
 						return err
 					}
-					if err := writeFigure(figure, f); err != nil {
+					if err := writeFigure(figure, f, out.output()); err != nil {
 						return err
 					}
 				}
@@ -141,9 +144,10 @@ and licensed engineering judgement.`,
 	fl.StringVar(&threshold, "case-threshold", "", "concentration that defines the case depth (e.g. 0.35wt%)")
 	fl.StringVar(&target, "target-depth", "", "solve for the hold time that reaches this case depth (e.g. 0.9mm)")
 	fl.StringVar(&maxDepth, "max-depth", "2mm", "deepest point of the predicted profile")
-	fl.IntVar(&points, "points", 41, "number of depths in the predicted profile")
+	fl.IntVar(&points, "points", 41, "number of depths in the predicted profile (2 to 10000)")
 	fl.Float64Var(&level, "level", 0.95, "confidence level of the bands")
 	fl.StringVar(&figure, "figure", "", "also draw the predicted profile, its bands and the case depth to this .svg or .png file")
+	markOutput(c, "figure")
 	_ = c.MarkFlagRequired("Cs")
 	_ = c.MarkFlagRequired("C0")
 	return c

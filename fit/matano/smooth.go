@@ -19,7 +19,7 @@ import (
 // concentration-dependent D gives; monotonicity holds by construction, and
 // the integrals the Boltzmann–Matano and Sauer–Freise formulas need have
 // closed forms, so no quadrature of noisy data is involved. The number of
-// terms is chosen by AICc.
+// terms is set by the user or chosen from the data (see pipeline.run).
 type Smooth struct {
 	CL, CR  float64   // end compositions (x → −∞ and x → +∞)
 	W, M, S []float64 // weights, centres (m) and widths (m) of the terms
@@ -133,8 +133,10 @@ func (s *Smooth) sauerFreise(x, t float64) float64 {
 	return ((1-y)*left + y*right) / (2 * t * slope)
 }
 
-// erfSum is the smoother as a fit.Model on internal parameters
-// [CL, CR, m₁, ln s₁, …, m_K, ln s_K, q₂, …, q_K], wₖ = softmax(0, q₂…q_K).
+// erfSum is the smoother's parametrisation for fitting, on internal
+// parameters [CL, CR, m₁, ln s₁, …, m_K, ln s_K, q₂, …, q_K] with
+// wₖ = softmax(0, q₂…q_K): every vector is a monotone curve, and the
+// widths stay positive and the weights positive and summing to one.
 type erfSum struct{ k int }
 
 func (m erfSum) np() int { return 3*m.k + 1 }
@@ -168,152 +170,77 @@ func (m erfSum) fill(p []float64, s *Smooth) {
 	}
 }
 
-// eval writes C(xᵢ) and, when jac is not nil, the Jacobian.
-func (m erfSum) eval(p, x, f, jac []float64, s *Smooth, phi []float64) {
+// zTail is the |z| beyond which ½erfc(−z) is 0 or 1 and e^{−z²} negligible
+// to double precision (erfc 6 = 2e-17).
+const zTail = 6
+
+// values fills s from p and writes C(xᵢ) into f, keeping Φₖ(xᵢ) in
+// phi[i·K + k] for jacobian.
+func (m erfSum) values(p, x, f []float64, s *Smooth, phi []float64) {
 	m.fill(p, s)
-	np := m.np()
 	dc := s.CR - s.CL
 	for i, xi := range x {
 		var y float64
+		row := phi[i*m.k : (i+1)*m.k]
 		for k, w := range s.W {
-			phi[k] = 0.5 * math.Erfc(-(xi-s.M[k])/s.S[k])
-			y += w * phi[k]
+			z := (xi - s.M[k]) / s.S[k]
+			switch {
+			case z > zTail:
+				row[k] = 1
+			case z < -zTail:
+				row[k] = 0
+			default:
+				row[k] = 0.5 * math.Erfc(-z)
+			}
+			y += w * row[k]
 		}
 		f[i] = s.CL + dc*y
-		if jac == nil {
-			continue
-		}
+	}
+}
+
+// jacobian writes ∂C(xᵢ)/∂p into jac (row-major, len(x) × np) at the
+// parameters values last filled into s, with its phi.
+func (m erfSum) jacobian(x []float64, s *Smooth, phi, jac []float64) {
+	np := m.np()
+	dc := s.CR - s.CL
+	for i, xi := range x {
 		row := jac[i*np : (i+1)*np]
+		ph := phi[i*m.k : (i+1)*m.k]
+		var y float64
+		for k, w := range s.W {
+			y += w * ph[k]
+		}
 		row[0], row[1] = 1-y, y
 		for k, w := range s.W {
 			z := (xi - s.M[k]) / s.S[k]
-			g := dc * w * math.Exp(-z*z) / math.SqrtPi // ∂C/∂z
+			var g float64 // ∂C/∂z
+			if z >= -zTail && z <= zTail {
+				g = dc * w * math.Exp(-z*z) / math.SqrtPi
+			}
 			row[2+2*k] = -g / s.S[k]
 			row[3+2*k] = -g * z
 			if k > 0 {
-				row[2+2*m.k+k-1] = dc * w * (phi[k] - y)
+				row[2+2*m.k+k-1] = dc * w * (ph[k] - y)
 			}
 		}
 	}
 }
 
-// fitSmooth fits an erf sum of k terms from the start p0 and returns the
-// solution (internal parameters) or an error.
-func fitSmooth(x, y []float64, k int, p0 []float64) (*fit.Solution, error) {
-	m := erfSum{k: k}
-	s := m.unpack(p0)
-	phi := make([]float64, k)
-	pr := fit.Problem{Y: y, Func: func(p, f, jac []float64) { m.eval(p, x, f, jac, s, phi) }}
-	set := fit.DefaultSettings()
-	set.MaxIter = 400
-	// Stop on the reduction of the sum of squares or a vanishing gradient,
-	// not on a small damped step (which the first steps from a nearby
-	// start can be).
-	set.FTol, set.XTol = 1e-12, 1e-15
-	return fit.Solve(pr, p0, &set)
-}
-
-// starts returns starting vectors for k terms from a one-term fit
-// (cl, cr, m, s): the extra terms spread over the profile and with
-// different widths, as an asymmetric profile needs.
-func starts(k int, cl, cr, m, s float64) [][]float64 {
-	base := func() []float64 {
-		p := make([]float64, 3*k+1)
-		p[0], p[1] = cl, cr
-		return p
-	}
-	if k == 1 {
-		p := base()
-		p[2], p[3] = m, math.Log(s)
-		return [][]float64{p}
-	}
-	var out [][]float64
-	for _, spread := range []float64{0.5, 1.0} {
-		for _, ratio := range []float64{1, 2.5} {
-			p := base()
-			for j := 0; j < k; j++ {
-				f := float64(j)/float64(k-1) - 0.5 // −½ … ½
-				p[2+2*j] = m + spread*s*f
-				w := s * math.Pow(ratio, f)
-				p[3+2*j] = math.Log(w)
-			}
-			out = append(out, p)
+// start returns a starting vector for k terms from a one-term fit
+// (cl, cr, m, s): k terms of equal weight and width s spread over the
+// middle half-width of the one-term curve.
+func start(k int, cl, cr, m, s float64) []float64 {
+	p := make([]float64, 3*k+1)
+	p[0], p[1] = cl, cr
+	for j := 0; j < k; j++ {
+		f := 0.0
+		if k > 1 {
+			f = float64(j)/float64(k-1) - 0.5 // −½ … ½
 		}
+		p[2+2*j] = m + 0.5*s*f
+		p[3+2*j] = math.Log(s)
 	}
-	return out
-}
-
-// smoothed is a fitted smoother with its statistics. The fit runs on the
-// scaled depth u = (x − xc)/xs (order one, so that positions and levels
-// are on comparable scales); s is in metres.
-type smoothed struct {
-	k      int
-	p      []float64 // internal parameters on the u scale
-	s      *Smooth
-	rss    float64
-	aicc   float64
-	xc, xs float64
-}
-
-// metres returns the Smooth of internal parameters p on the depth scale.
-func (sm *smoothed) metres(p []float64) *Smooth {
-	s := erfSum{k: sm.k}.unpack(p)
-	for k := range s.M {
-		s.M[k] = sm.xc + sm.xs*s.M[k]
-		s.S[k] *= sm.xs
-	}
-	return s
-}
-
-// chooseSmooth fits 1…kmax terms and returns the converged fit with the
-// smallest AICc (Hurvich & Tsai, Biometrika 76, 1989: AICc = n ln(RSS/n) +
-// 2p + 2p(p+1)/(n − p − 1)); terms whose parameters the data do not
-// identify do not converge and are skipped.
-func chooseSmooth(xm, y []float64, kmax int) (*smoothed, error) {
-	n := len(xm)
-	xc, xs := (xm[0]+xm[n-1])/2, (xm[n-1]-xm[0])/2
-	x := make([]float64, n)
-	for i, v := range xm {
-		x[i] = (v - xc) / xs
-	}
-	cl, cr, m, s, err := oneTermStart(x, y)
-	if err != nil {
-		return nil, err
-	}
-	var best *smoothed
-	for k := 1; k <= kmax; k++ {
-		np := 3*k + 1
-		if n < np+4 {
-			break
-		}
-		var bk *smoothed
-		for _, p0 := range starts(k, cl, cr, m, s) {
-			sol, err := fitSmooth(x, y, k, p0)
-			if err != nil || !sol.Converged {
-				continue
-			}
-			if bk == nil || sol.RSS < bk.rss {
-				bk = &smoothed{k: k, p: sol.P, rss: sol.RSS, xc: xc, xs: xs}
-			}
-		}
-		if bk == nil {
-			continue
-		}
-		if k == 1 {
-			// Later starts build on the one-term fit.
-			cl, cr, m, s = bk.p[0], bk.p[1], bk.p[2], math.Exp(bk.p[3])
-		}
-		rss := math.Max(bk.rss, 1e-300)
-		bk.aicc = float64(n)*math.Log(rss/float64(n)) + 2*float64(np) + 2*float64(np*(np+1))/float64(n-np-1)
-		bk.s = bk.metres(bk.p)
-		if best == nil || bk.aicc < best.aicc {
-			best = bk
-		}
-	}
-	if best == nil {
-		return nil, fmt.Errorf("%w: no smooth monotone curve (sum of error functions) could be fitted to the profile; check that it is a diffusion-couple profile that rises or falls from one end composition to the other", fit.ErrNoAnswer)
-	}
-	return best, nil
+	return p
 }
 
 // oneTermStart estimates CL, CR, the centre and the width of a one-term

@@ -10,8 +10,10 @@ import (
 	"bufio"
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"io"
 	"math"
+	"slices"
 )
 
 // Num returns a pointer to v, or nil when v is NaN or ±Inf, so that a
@@ -56,4 +58,49 @@ func Encode(w io.Writer, v any) error {
 		return err
 	}
 	return bw.Flush()
+}
+
+// ZeroAsNull rewrites a compact JSON object (as Marshal writes it) so that
+// each of the named top-level keys whose value is exactly 0 reads null:
+// for quantities where 0 means "not given" (a hold time, a temperature in
+// kelvin), which a script must not take for a measured zero. Key order and
+// every other byte are kept. It scans the bytes once (strings skipped,
+// nesting counted), so that it costs little beside the marshalling.
+func ZeroAsNull(obj []byte, keys ...string) ([]byte, error) {
+	if len(obj) < 2 || obj[0] != '{' {
+		return nil, fmt.Errorf("jsonx.ZeroAsNull: not a JSON object")
+	}
+	var out []byte
+	last, depth := 0, 0
+	for i := 0; i < len(obj); i++ {
+		switch obj[i] {
+		case '{', '[':
+			depth++
+		case '}', ']':
+			depth--
+		case '"':
+			j := i + 1
+			for j < len(obj) && obj[j] != '"' {
+				if obj[j] == '\\' {
+					j++
+				}
+				j++
+			}
+			if j >= len(obj) {
+				return nil, fmt.Errorf("jsonx.ZeroAsNull: unterminated string")
+			}
+			v := j + 2 // the value after "key":
+			if depth == 1 && v+1 < len(obj) && obj[j+1] == ':' && obj[v] == '0' && (obj[v+1] == ',' || obj[v+1] == '}') &&
+				slices.Contains(keys, string(obj[i+1:j])) {
+				out = append(out, obj[last:v]...)
+				out = append(out, "null"...)
+				last = v + 1
+			}
+			i = j
+		}
+	}
+	if out == nil {
+		return obj, nil
+	}
+	return append(out, obj[last:]...), nil
 }

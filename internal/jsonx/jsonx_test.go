@@ -40,3 +40,20 @@ func TestNoHTMLEscape(t *testing.T) {
 		t.Errorf("got\n%s\nwant\n%s", b.String(), want)
 	}
 }
+
+// Common practice, no source: ZeroAsNull changes only the named top-level
+// keys whose value is 0, and keeps every other byte and the key order.
+func TestZeroAsNull(t *testing.T) {
+	in := `{"id":"a","time_s":0,"temperature_K":1198.15,"nested":{"time_s":0},"n":0,"s":"\"time_s\":0"}`
+	got, err := ZeroAsNull([]byte(in), "time_s", "temperature_K")
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := `{"id":"a","time_s":null,"temperature_K":1198.15,"nested":{"time_s":0},"n":0,"s":"\"time_s\":0"}`
+	if string(got) != want {
+		t.Errorf("got  %s\nwant %s", got, want)
+	}
+	if _, err := ZeroAsNull([]byte(`[0]`), "x"); err == nil {
+		t.Error("an array was accepted")
+	}
+}

@@ -4,7 +4,9 @@
 package parallel
 
 import (
+	"fmt"
 	"runtime"
+	"runtime/debug"
 	"sync"
 )
 
@@ -22,6 +24,11 @@ func For(n int, fn func(i int), progress func(done, total int)) {
 // runtime.GOMAXPROCS(0)) and its value is handed to every job that
 // goroutine runs, so that jobs reuse buffers without sharing them. A job
 // must not keep its scratch after it returns.
+//
+// A panic in a job does not crash the process from a worker goroutine:
+// the remaining jobs run, and the first panic is raised again in the
+// calling goroutine as a *Panic carrying the worker's stack, where the
+// caller (the command line) can recover it.
 func Scratch[S any](n, workers int, newScratch func() S, fn func(i int, s S), progress func(done, total int)) {
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
@@ -32,13 +39,34 @@ func Scratch[S any](n, workers int, newScratch func() S, fn func(i int, s S), pr
 	jobs := make(chan int)
 	done := make(chan struct{})
 	var wg sync.WaitGroup
+	var once sync.Once
+	var first *Panic
+	run := func(i int, s S) {
+		defer func() {
+			if r := recover(); r != nil {
+				once.Do(func() { first = &Panic{Value: r, Stack: debug.Stack()} })
+			}
+		}()
+		fn(i, s)
+	}
 	for w := 0; w < workers; w++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			s := newScratch()
+			var s S
+			ok := func() (ok bool) {
+				defer func() {
+					if r := recover(); r != nil {
+						once.Do(func() { first = &Panic{Value: r, Stack: debug.Stack()} })
+					}
+				}()
+				s = newScratch()
+				return true
+			}()
 			for i := range jobs {
-				fn(i, s)
+				if ok {
+					run(i, s)
+				}
 				done <- struct{}{}
 			}
 		}()
@@ -58,4 +86,16 @@ func Scratch[S any](n, workers int, newScratch func() S, fn func(i int, s S), pr
 			progress(k, n)
 		}
 	}
+	if first != nil {
+		panic(first)
+	}
 }
+
+// Panic is a panic of a job, raised again in the goroutine that called For
+// or Scratch.
+type Panic struct {
+	Value any    // what the job panicked with
+	Stack []byte // the worker's stack at the panic
+}
+
+func (p *Panic) Error() string { return fmt.Sprintf("%v (in a worker)\n\n%s", p.Value, p.Stack) }

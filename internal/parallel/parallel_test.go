@@ -1,6 +1,7 @@
 package parallel
 
 import (
+	"strings"
 	"sync/atomic"
 	"testing"
 )
@@ -49,4 +50,33 @@ func TestScratch(t *testing.T) {
 			t.Fatalf("slot %d not written", i)
 		}
 	}
+}
+
+// Common practice, no source: a panic in a job reaches the caller as a
+// *Panic after the other jobs ran, instead of killing the process from a
+// worker goroutine.
+func TestPanicReachesCaller(t *testing.T) {
+	ran := make([]bool, 50)
+	defer func() {
+		r := recover()
+		p, ok := r.(*Panic)
+		if !ok {
+			t.Fatalf("recovered %v (%T), want *Panic", r, r)
+		}
+		if p.Value != "job 7" || !strings.Contains(p.Error(), "job 7") || len(p.Stack) == 0 {
+			t.Errorf("panic value %v, message %q", p.Value, p.Error())
+		}
+		for i, ok := range ran {
+			if i != 7 && !ok {
+				t.Errorf("job %d did not run", i)
+			}
+		}
+	}()
+	For(len(ran), func(i int) {
+		if i == 7 {
+			panic("job 7")
+		}
+		ran[i] = true
+	}, nil)
+	t.Fatal("For returned normally")
 }
