@@ -45,7 +45,17 @@ func FitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 	if err != nil {
 		return nil, errAt(p, err)
 	}
+	r.noteInput(p)
 	return r, nil
+}
+
+// noteInput carries what reading and converting the profile left to say:
+// its notes become warnings, its values below a detection limit are listed.
+func (r *Result) noteInput(p *profile.Profile) {
+	for _, n := range p.Notes {
+		r.Warn(n.Code, "%s", n.Message)
+	}
+	r.BelowLimit = append([]profile.BelowLimit(nil), p.BelowLimit...)
 }
 
 // errAt prefixes an error with the profile's id and source.

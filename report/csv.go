@@ -58,6 +58,14 @@ func (f Fits) WriteCSV(w io.Writer) error {
 	}
 	header = append(header, "value_unit", "n", "dof", "rss", "rmse", "r2", "aicc", "chi2_red", "chi2_p", "runs_p", "cond",
 		"ci_level", "ci_method", "covariance", "converged", "source", "material", "warnings", "error")
+	// Case and decarburization depths, when any profile has one: the
+	// criterion as given, the level searched for (value_unit), the depth
+	// from the fitted curve with its interval, and from the points.
+	depths := depthColumns(f.Results)
+	for _, d := range depths {
+		header = append(header, d.prefix+"_threshold", d.prefix+"_level", d.prefix+"_depth_m", d.prefix+"_depth_ci_lo_m",
+			d.prefix+"_depth_ci_hi_m", d.prefix+"_depth_from_data_m")
+	}
 	cw := newCSVWriter(w)
 	if err := cw.Write(header); err != nil {
 		return err
@@ -91,6 +99,13 @@ func (f Fits) WriteCSV(w io.Writer) error {
 			csvNumber(s.R2), csvNumber(s.AICc), csvNumber(s.Chi2Red), csvNumber(s.Chi2P), csvNumber(s.RunsP), csvNumber(s.Cond),
 			csvNumber(r.CILevel), r.CIMethod.String(), r.Covariance.String(), strconv.FormatBool(r.Converged), r.Source, r.Material,
 			strings.Join(codes, ";"), "")
+		for _, d := range depths {
+			if e := d.of(r); e != nil {
+				row = append(row, e.Threshold, csvNumber(e.Level), csvNumber(e.Depth), csvNumber(e.CI.Lo), csvNumber(e.CI.Hi), csvNumber(e.FromData))
+			} else {
+				row = append(row, "", "", "", "", "", "")
+			}
+		}
 		if err := cw.Write(row); err != nil {
 			return err
 		}
@@ -112,8 +127,48 @@ func (f Fits) WriteCSV(w io.Writer) error {
 			return err
 		}
 	}
+	// Inputs not read (--keep-going): no id, the file as source.
+	for _, n := range f.NotRead {
+		row := make([]string, len(header))
+		row[0] = n.ID
+		for i, h := range header {
+			switch h {
+			case "source":
+				row[i] = n.where()
+			case "error":
+				row[i] = "not read: " + n.Reason
+			}
+		}
+		if err := cw.Write(row); err != nil {
+			return err
+		}
+	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// depthColumn is a kind of depth estimate that gets columns.
+type depthColumn struct {
+	prefix string
+	of     func(r *fit.Result) *fit.DepthEstimate
+}
+
+// depthColumns lists the depth kinds any of rs carries: case, decarb.
+func depthColumns(rs []*fit.Result) []depthColumn {
+	var out []depthColumn
+	all := []depthColumn{
+		{"case", func(r *fit.Result) *fit.DepthEstimate { return r.CaseDepth }},
+		{"decarb", func(r *fit.Result) *fit.DepthEstimate { return r.DecarbDepth }},
+	}
+	for _, d := range all {
+		for _, r := range rs {
+			if d.of(r) != nil {
+				out = append(out, d)
+				break
+			}
+		}
+	}
+	return out
 }
 
 // WriteResidualsCSV writes one row per measured point of every fitted

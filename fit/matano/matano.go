@@ -301,11 +301,13 @@ func analyze(p *profile.Profile, t float64, o Options) (*Result, error) {
 	}
 	if y0, y1 := smooth.Y(x[0]), smooth.Y(x[n-1]); y0 > 0.03 || y1 < 0.97 {
 		side := []string{}
+		// Said the same way at both ends: the share of the step from one end
+		// composition to the other not yet covered at the outermost point.
 		if y0 > 0.03 {
-			side = append(side, fmt.Sprintf("shallow end (reached %.0f %% of the way at the first point)", 100*y0))
+			side = append(side, fmt.Sprintf("shallow end (%.0f %% of the step short at the first point)", 100*y0))
 		}
 		if y1 < 0.97 {
-			side = append(side, fmt.Sprintf("deep end (%.0f %% at the last point)", 100*y1))
+			side = append(side, fmt.Sprintf("deep end (%.0f %% of the step short at the last point)", 100*(1-y1)))
 		}
 		r.warn("ends-not-reached", "the profile does not reach the end composition at the %s: the end levels %.4g and %.4g are extrapolated by the smoother, so the Matano plane and D near that end are uncertain; measure further out", strings.Join(side, " and the "), smooth.CL, smooth.CR)
 	}

@@ -8,6 +8,7 @@ import (
 	"os"
 	"reflect"
 	"sort"
+	"strings"
 	"testing"
 
 	"github.com/fickfit/fickfit/fit"
@@ -257,6 +258,30 @@ func TestWarnings(t *testing.T) {
 	r, err = Analyze(couple(4, 40, -4*w, 0.3*w, tm, 0.1, f), 0, Options{Resamples: -1})
 	if err == nil && !hasWarning(r, "ends-not-reached") {
 		t.Errorf("no ends-not-reached warning on a truncated profile: %v", r.Warnings)
+	}
+	// A symmetric profile cut short at both ends is said the same way at
+	// both ends (the same share of the step short).
+	r, err = Analyze(couple(5, 40, -0.9*w, 0.9*w, tm, 0, f), 0, Options{Resamples: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !hasWarning(r, "ends-not-reached") {
+		t.Fatalf("no ends-not-reached warning on a profile cut at both ends: %v", r.Warnings)
+	}
+	for _, wn := range r.Warnings {
+		if wn.Code != "ends-not-reached" {
+			continue
+		}
+		a := strings.Index(wn.Message, "shallow end (")
+		b := strings.Index(wn.Message, "deep end (")
+		if a < 0 || b < 0 {
+			t.Fatalf("message %q", wn.Message)
+		}
+		pa := strings.Fields(wn.Message[a+len("shallow end ("):])[0]
+		pb := strings.Fields(wn.Message[b+len("deep end ("):])[0]
+		if pa != pb || !strings.Contains(wn.Message, "of the step short at the first point") || !strings.Contains(wn.Message, "of the step short at the last point") {
+			t.Errorf("symmetric profile said differently at its ends: %q", wn.Message)
+		}
 	}
 	// Few points.
 	r, err = Analyze(couple(4, 12, -4*w, 4*w, tm, 0.1, f), 0, Options{Resamples: -1})
