@@ -16,9 +16,9 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-)
 
-const R = 8.314462618
+	"github.com/fickfit/fickfit/internal/phys"
+)
 
 type lot struct {
 	name   string
@@ -44,7 +44,7 @@ func main() {
 			for rep := 1; rep <= 3; rep++ {
 				id := fmt.Sprintf("F7-%s-%d-%d", strings.TrimPrefix(l.name, "BAR-"), int(tc), rep)
 				T := tc + 273.15 + rng.NormFloat64()*2 // furnace scatter
-				D := l.d0 * math.Exp(-l.q/(R*T))
+				D := l.d0 * math.Exp(-l.q/(phys.R*T))
 				t := hours[ti] * 3600
 				cs := l.cs + 0.02*rng.NormFloat64()
 				c0 := l.c0 + 0.005*rng.NormFloat64()
@@ -75,7 +75,7 @@ func main() {
 	// controller logged a fault. Lot BAR-2291. Which temperature did it see?
 	l := lots[0]
 	T := 926 + 273.15
-	D := l.d0 * math.Exp(-l.q/(R*T))
+	D := l.d0 * math.Exp(-l.q/(phys.R*T))
 	t := 6 * 3600.0
 	var b strings.Builder
 	b.WriteString("# id: pinion-7731\n# lot: BAR-2291\n# time: 6 h\n# unknown: temperature\n# quantity: C\n")
