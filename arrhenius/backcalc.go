@@ -125,18 +125,23 @@ type Quantity struct {
 	Method string
 	// Given is true for an input, not a result.
 	Given bool
+	// PI is the prediction interval of a single new part (predictions
+	// only; nil when there is none): CI is the band of the mean line.
+	PI *fit.Interval
 }
 
-// MarshalJSON writes {"value","unit","ci","ci_method"} or {"value","unit","given":true}.
+// MarshalJSON writes {"value","unit","ci","ci_method"} (with
+// "prediction_interval" when there is one) or {"value","unit","given":true}.
 func (q Quantity) MarshalJSON() ([]byte, error) {
 	type out struct {
 		Value  *float64      `json:"value"`
 		Unit   string        `json:"unit"`
 		CI     *fit.Interval `json:"ci,omitempty"`
 		Method string        `json:"ci_method,omitempty"`
+		PI     *fit.Interval `json:"prediction_interval,omitempty"`
 		Given  bool          `json:"given,omitempty"`
 	}
-	o := out{Value: num(q.Value), Unit: q.Unit, Given: q.Given}
+	o := out{Value: num(q.Value), Unit: q.Unit, Given: q.Given, PI: q.PI}
 	if !q.Given {
 		ci := q.CI
 		o.CI, o.Method = &ci, q.Method
@@ -200,14 +205,6 @@ func (s Solution) MarshalJSON() ([]byte, error) {
 		Unit     string   `json:"unit"`
 		StdErrLn *float64 `json:"stderr_ln"`
 	}
-	type cal struct {
-		Method string        `json:"method"`
-		Source string        `json:"source"`
-		D0     float64       `json:"D0"`
-		Q      float64       `json:"Q"`
-		Cov    [2][2]float64 `json:"cov_lnD0_Q"`
-		DOF    int           `json:"dof"`
-	}
 	type adj struct {
 		Mode   string       `json:"mode"`
 		Value  float64      `json:"value"`
@@ -216,23 +213,22 @@ func (s Solution) MarshalJSON() ([]byte, error) {
 		Method string       `json:"ci_method,omitempty"`
 	}
 	type out struct {
-		SolveFor    string        `json:"solve_for"`
-		ID          string        `json:"id,omitempty"`
-		Temperature Quantity      `json:"temperature_K"`
-		Time        Quantity      `json:"time_s"`
-		Dt          dt            `json:"Dt"`
-		Level       float64       `json:"ci_level"`
-		Calibration cal           `json:"calibration"`
-		MonteCarlo  *MonteCarlo   `json:"monte_carlo,omitempty"`
-		Adjustment  *adj          `json:"level_adjustment,omitempty"`
-		Warnings    []fit.Warning `json:"warnings"`
-		Cautions    []string      `json:"cautions"`
+		SolveFor    string          `json:"solve_for"`
+		ID          string          `json:"id,omitempty"`
+		Temperature Quantity        `json:"temperature_K"`
+		Time        Quantity        `json:"time_s"`
+		Dt          dt              `json:"Dt"`
+		Level       float64         `json:"ci_level"`
+		Calibration CalibrationJSON `json:"calibration"`
+		MonteCarlo  *MonteCarlo     `json:"monte_carlo,omitempty"`
+		Adjustment  *adj            `json:"level_adjustment,omitempty"`
+		Warnings    []fit.Warning   `json:"warnings"`
+		Cautions    []string        `json:"cautions"`
 	}
 	o := out{SolveFor: s.SolveFor, ID: s.ID, Temperature: s.Temperature, Time: s.Time,
 		Dt:    dt{Value: math.Exp(s.LnDt), Unit: "m2", StdErrLn: num(math.Sqrt(s.VarLnDt))},
 		Level: s.Level, MonteCarlo: s.MonteCarlo, Warnings: s.Warnings, Cautions: s.Cautions,
-		Calibration: cal{Method: s.Calibration.Method, Source: s.Calibration.Source, D0: s.Calibration.D0(),
-			Q: s.Calibration.Q, Cov: s.Calibration.Cov, DOF: s.Calibration.DOF}}
+		Calibration: s.Calibration.JSON()}
 	if s.Adjustment != nil {
 		a := s.Adjustment
 		o.Adjustment = &adj{Mode: s.AdjustMode, Value: a.Value, Unit: a.Unit, CI: a.CI, Method: a.Method}
@@ -297,6 +293,7 @@ func SolveTemperature(obs Observation, cal Calibration, o *SolveOptions) (*Solut
 		return nil, badInput(obs.ID, "time", "time %g s must be > 0", t)
 	}
 	s := newSolution("temperature", obs, cal, opt)
+	obs.VarLnDt += cal.ExcessVar // a single part scatters about the line as the coupons did
 	s.Time = Quantity{Value: t, Unit: "s", Given: true}
 	y := obs.LnDt - math.Log(t) // ln D of the part
 	xc, b, vb, vq := cal.centered()
@@ -330,7 +327,7 @@ func SolveTemperature(obs Observation, cal Calibration, o *SolveOptions) (*Solut
 	}
 	s.rangeWarnings(T)
 	if T > hotLimit {
-		s.warn("implausible-temperature", fmt.Sprintf("The back-calculated temperature %.0f K is above any heat-treatment temperature: check the time, the profile fit and the calibration.", T))
+		s.warn("implausible-temperature", "The back-calculated temperature "+tk(T)+" is above any heat-treatment temperature: check the time, the profile fit and the calibration.")
 	}
 	return s, nil
 }
@@ -383,6 +380,7 @@ func SolveTime(obs Observation, cal Calibration, o *SolveOptions) (*Solution, er
 		return nil, badInput(obs.ID, "temperature uncertainty", "σ_T = %g K must be a number ≥ 0", sT)
 	}
 	s := newSolution("time", obs, cal, opt)
+	obs.VarLnDt += cal.ExcessVar // a single part scatters about the line as the coupons did
 	s.Temperature = Quantity{Value: T, Unit: "K", Given: true}
 	if obs.Time > 0 {
 		s.warn("time-already-known", fmt.Sprintf("The profile states a hold time of %g s; the solved time ignores it and uses only ln(Dt).", obs.Time))
@@ -432,6 +430,9 @@ func newSolution(what string, obs Observation, cal Calibration, opt SolveOptions
 	if cal.NoInterval {
 		s.warn("no-interval", "The calibration rests on only two temperatures: the result carries no interval. Calibrate at a third temperature.")
 	}
+	if cal.Method == "reference" {
+		s.warn("reference-literature", ReferenceNote)
+	}
 	if !cal.hasCov() && !cal.NoInterval {
 		s.warn("calibration-without-uncertainty", "The calibration carries no uncertainty (reference or explicit values without one): the interval covers only the part's profile fit and is too narrow.")
 	}
@@ -440,6 +441,9 @@ func newSolution(what string, obs Observation, cal Calibration, opt SolveOptions
 	}
 	if obs.VarLnDt == 0 {
 		s.warn("observation-without-uncertainty", "The part's Dt carries no uncertainty: the interval covers only the calibration.")
+	}
+	if cal.ExcessVar > 0 {
+		s.warn("part-scatter", fmt.Sprintf("The calibration coupons scatter about their line more than their own profile fits explain (by a standard deviation of %.2g in ln D); a single part is taken to scatter as much, and the interval includes it.", math.Sqrt(cal.ExcessVar)))
 	}
 	return s
 }
@@ -452,7 +456,7 @@ func (s *Solution) warn(code, msg string) {
 func (s *Solution) rangeWarnings(T float64) {
 	c := s.Calibration
 	if c.TMin > 0 && c.TMax > 0 && (T < c.TMin-1e-9 || T > c.TMax+1e-9) {
-		s.warn("extrapolation", fmt.Sprintf("%.1f K (%.1f °C) lies outside the calibration's %.1f–%.1f K: the result is an extrapolation of the Arrhenius line and assumes no change of mechanism or phase.", T, celsius(T), c.TMin, c.TMax))
+		s.warn("extrapolation", tk(T)+" lies outside the calibration's range "+tk(c.TMin)+" to "+tk(c.TMax)+": the result is an extrapolation of the Arrhenius line and assumes no change of mechanism or phase.")
 	}
 }
 
@@ -544,6 +548,8 @@ func SolveHistoryLevel(obs Observation, cal Calibration, h *profile.History, mod
 		return nil, noAnswer(obs.ID, "level", "no %s of this log makes ∫D dt equal the measured Dt = %.3g m² within 0–10 000 K: check the log, the profile fit and the calibration", mode, math.Exp(obs.LnDt))
 	}
 	s := newSolution("hold-temperature", obs, cal, opt)
+	s.Warnings = append(s.Warnings, spikeWarnings(h, cal.Q)...)
+	obs.VarLnDt += cal.ExcessVar // a single part scatters about the line as the coupons did
 	s.AdjustMode = mode.String()
 	unit := "K"
 	if mode == Scale {

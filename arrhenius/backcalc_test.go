@@ -10,27 +10,28 @@ import (
 	"github.com/fickfit/fickfit/fit"
 )
 
-// TestSolveTemperatureTextbook: external check, a textbook inverse
-// problem. Callister & Rethwisch, 8th ed. (2010), Example Problem 5.4
-// (number and values from memory) computes D of Mg in Al at 550 °C from
-// Table 5.2 (D0 = 1.2e-4 m²/s, Qd = 131 kJ/mol) as 5.8e-13 m²/s. Solving
-// back for the temperature from D = 5.8e-13 m²/s must give 823 K: ±1.5 K
-// covers the two-figure rounding of D (±0.9 %, ±0.6 K) and the book's
-// R = 8.31 (0.05 %, 0.4 K).
-func TestSolveTemperatureTextbook(t *testing.T) {
+// TestSolveTemperatureRoundTrip: self-check. D of Mg in Al from the table
+// row at 550 °C, solved back for the temperature with the row taken as
+// exact (no spread), gives 823.15 K again, and says that the calibration
+// carries no uncertainty.
+func TestSolveTemperatureRoundTrip(t *testing.T) {
 	ref, err := LookupReference("Mg-in-Al")
 	if err != nil {
 		t.Fatal(err)
 	}
-	obs := Observation{ID: "Mg in Al", LnDt: math.Log(5.8e-13 * 3600)}
-	s, err := SolveTemperature(obs, ref.Calibration(), &SolveOptions{Time: 3600})
+	cal, err := ref.CalibrationWithSpread(1, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if math.Abs(s.Temperature.Value-823.15) > 1.5 {
-		t.Errorf("T = %g K, book 823 K (550 °C)", s.Temperature.Value)
+	obs := Observation{ID: "Mg in Al", LnDt: math.Log(ref.D(823.15) * 3600)}
+	s, err := SolveTemperature(obs, cal, &SolveOptions{Time: 3600})
+	if err != nil {
+		t.Fatal(err)
 	}
-	if !hasWarning(s.Warnings, "calibration-without-uncertainty") || !hasWarning(s.Warnings, "observation-without-uncertainty") {
+	if math.Abs(s.Temperature.Value-823.15) > 1e-9 {
+		t.Errorf("T = %g K, want 823.15 K", s.Temperature.Value)
+	}
+	if !hasWarning(s.Warnings, "calibration-without-uncertainty") || !hasWarning(s.Warnings, "observation-without-uncertainty") || !hasWarning(s.Warnings, "reference-literature") {
 		t.Errorf("warnings %v", s.Warnings)
 	}
 	if len(s.Cautions) != len(Cautions) {

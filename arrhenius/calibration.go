@@ -5,6 +5,7 @@ import (
 
 	"github.com/fickfit/fickfit/internal/phys"
 	"github.com/fickfit/fickfit/internal/stats"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 )
 
 // R is the molar gas constant in J mol⁻¹ K⁻¹ (CODATA 2018; exact in the SI
@@ -45,10 +46,43 @@ type Calibration struct {
 	// TMin and TMax bound the temperatures behind the calibration (K); 0
 	// when unknown. Results outside are flagged as extrapolations.
 	TMin, TMax float64
+	// PartVar is the variance of ln D of a single new part about the line
+	// (Line.PartVar): it widens a prediction for one part beyond the band
+	// of the mean line. 0 when unknown.
+	PartVar float64
+	// ExcessVar is the part of PartVar beyond the points' stated errors
+	// ((B² − 1)·mean Var ln D when the Birge ratio B exceeds 1): the real
+	// scatter of single coupons about the line, which a back-calculated
+	// part carries as well. 0 when the points scatter as stated.
+	ExcessVar float64
+	// Spread says, for a reference row, what spread was put on it and on
+	// what basis ("" otherwise).
+	Spread string
 }
 
 // D0 returns the pre-exponential factor in m²/s.
 func (c Calibration) D0() float64 { return math.Exp(c.LnD0) }
+
+// CalibrationJSON is the wire form of a calibration inside a
+// back-calculation or prediction: {"method","source","D0","Q",
+// "cov_lnD0_Q","dof","part_var_lnD","excess_var_lnD","spread"}.
+type CalibrationJSON struct {
+	Method    string        `json:"method"`
+	Source    string        `json:"source"`
+	D0        float64       `json:"D0"`
+	Q         float64       `json:"Q"`
+	Cov       [2][2]float64 `json:"cov_lnD0_Q"`
+	DOF       int           `json:"dof"`
+	PartVar   float64       `json:"part_var_lnD"`
+	ExcessVar float64       `json:"excess_var_lnD"`
+	Spread    string        `json:"spread,omitempty"`
+}
+
+// JSON returns the calibration's wire form.
+func (c Calibration) JSON() CalibrationJSON {
+	return CalibrationJSON{Method: c.Method, Source: c.Source, D0: c.D0(), Q: c.Q, Cov: c.Cov, DOF: c.DOF,
+		PartVar: c.PartVar, ExcessVar: c.ExcessVar, Spread: tempfmt.Plain(c.Spread)}
+}
 
 // LnD returns ln D at temperature T (K) and its variance from the
 // calibration: Var = Var(ln D0) + x²Var(Q) − 2x Cov(ln D0, Q), x = 1/(RT).
@@ -171,5 +205,6 @@ func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 var nan = math.NaN()
 
-// celsius converts K to °C for messages only.
-func celsius(T float64) float64 { return T - 273.15 }
+// tk marks an absolute temperature (K) in a message; the writer renders
+// it in the reader's unit (package internal/tempfmt).
+func tk(T float64) string { return tempfmt.Mark(T) }

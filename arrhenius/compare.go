@@ -11,6 +11,8 @@ import (
 
 	"github.com/fickfit/fickfit/fit"
 	"github.com/fickfit/fickfit/internal/jsonx"
+	"github.com/fickfit/fickfit/internal/stats"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 )
 
 // CompareOptions control a lot comparison. The zero value groups by lot,
@@ -65,6 +67,24 @@ type Ratio struct {
 	Model string `json:"model"`
 }
 
+// Pair compares two groups at TRef: the ratio of D of B to D of A, its
+// interval at the comparison's level, the two-sided p-value of the Wald
+// t-test of ratio = 1 and the p-value adjusted for the number of pairs by
+// Holm's step-down method. Differ tells whether the adjusted p-value is
+// below the comparison's Alpha. The interval is that of the pair alone
+// (not simultaneous); the adjustment is for the decision.
+type Pair struct {
+	A, B      string
+	TRef      float64
+	Ratio     float64
+	CI        fit.Interval
+	P         float64
+	PAdjusted float64
+	Differ    bool
+	// Model is "separate lines" or "common Q", as for Ratio.
+	Model string
+}
+
 // Comparison is the result of Compare.
 type Comparison struct {
 	By      string   `json:"by"`
@@ -72,7 +92,12 @@ type Comparison struct {
 	NPoints []int    `json:"n_points"`
 	Tests   []FTest  `json:"tests"`
 	Ratios  []Ratio  `json:"ratios"`
-	// Differ tells whether the main test rejects "one common line" at Alpha.
+	// Pairs compares every pair of groups when there are three or more
+	// (nil for two groups, whose one pair is Ratios[0]).
+	Pairs []Pair `json:"pairs,omitempty"`
+	// Differ tells whether the main test rejects "one common line" at
+	// Alpha. With three or more groups it says that not all groups share a
+	// line, not which differ: see Pairs.
 	Differ  bool    `json:"differ"`
 	PMain   float64 `json:"p"`
 	Alpha   float64 `json:"alpha"`
@@ -317,18 +342,16 @@ func Compare(pts []Point, o *CompareOptions) (*Comparison, error) {
 	if m2 == nil {
 		model = "common Q"
 	}
-	for g := range names {
-		if g == ref {
-			continue
-		}
+	// contrast returns ln D_g − ln D_h at uref, its interval and p-value.
+	contrast := func(g, h int) (est float64, ci fit.Interval, p float64) {
 		cv := make([]float64, full.p)
 		if m2 != nil {
 			cv[g], cv[G+g] = 1, uref
-			cv[ref], cv[G+ref] = -1, -uref
+			cv[h], cv[G+h] = -1, -uref
 		} else {
-			cv[g], cv[ref] = 1, -1
+			cv[g], cv[h] = 1, -1
 		}
-		var est, v float64
+		var v float64
 		for a := range cv {
 			est += cv[a] * full.beta[a]
 			for b := range cv {
@@ -336,9 +359,30 @@ func Compare(pts []Point, o *CompareOptions) (*Comparison, error) {
 			}
 		}
 		se := math.Sqrt(v * c.Scale)
-		p := 2 * tdist.Survival(math.Abs(est)/se)
+		p = 2 * tdist.Survival(math.Abs(est)/se)
+		return est, fit.Interval{Lo: math.Exp(est - k*se), Hi: math.Exp(est + k*se)}, p
+	}
+	for g := range names {
+		if g == ref {
+			continue
+		}
+		est, ci, p := contrast(g, ref)
 		c.Ratios = append(c.Ratios, Ratio{Group: names[g], Reference: names[ref], TRef: tref, Value: math.Exp(est),
-			CI: fit.Interval{Lo: math.Exp(est - k*se), Hi: math.Exp(est + k*se)}, P: p, Model: model})
+			CI: ci, P: p, Model: model})
+	}
+	if G >= 3 {
+		var ps []float64
+		for a := 0; a < G; a++ {
+			for b := a + 1; b < G; b++ {
+				est, ci, p := contrast(b, a)
+				c.Pairs = append(c.Pairs, Pair{A: names[a], B: names[b], TRef: tref, Ratio: math.Exp(est), CI: ci, P: p, Model: model})
+				ps = append(ps, p)
+			}
+		}
+		for i, pa := range stats.Holm(ps) {
+			c.Pairs[i].PAdjusted = pa
+			c.Pairs[i].Differ = pa < alpha
+		}
 	}
 	c.Verdict = c.verdict(names[ref])
 	return c, nil
@@ -352,16 +396,42 @@ func fmtP(p float64) string {
 	return fmt.Sprintf("p = %.2g", p)
 }
 
-// verdict writes the plain-language conclusion.
+// fmtRatio writes a ratio and its interval with the digits the interval
+// supports: the smaller half-width to two significant digits, the value
+// and the ends at the same decimal place ("1.001", "0.951–1.053").
+func fmtRatio(v float64, ci fit.Interval) (value, interval string) {
+	h := math.Min(math.Abs(v-ci.Lo), math.Abs(ci.Hi-v))
+	dec := 2
+	if h > 0 && !math.IsInf(h, 0) && !math.IsNaN(h) {
+		dec = 1 - int(math.Floor(math.Log10(h)))
+	}
+	dec = min(max(dec, 1), 6)
+	f := func(x float64) string { return strconv.FormatFloat(x, 'f', dec, 64) }
+	return f(v), f(ci.Lo) + "–" + f(ci.Hi)
+}
+
+// joinAnd writes "A", "A and B", "A, B and C".
+func joinAnd(s []string) string {
+	switch len(s) {
+	case 0:
+		return ""
+	case 1:
+		return s[0]
+	}
+	return strings.Join(s[:len(s)-1], ", ") + " and " + s[len(s)-1]
+}
+
+// verdict writes the plain-language conclusion. Temperatures are marks
+// (internal/tempfmt): the writers render them in the reader's unit.
 func (c *Comparison) verdict(ref string) string {
 	var b strings.Builder
 	r := []rune(c.By)
 	label := strings.ToUpper(string(r[:1])) + string(r[1:]) + "s"
-	list := strings.Join(c.Groups, ", ")
-	if len(c.Groups) == 2 {
-		list = c.Groups[0] + " and " + c.Groups[1]
-	}
+	list := joinAnd(c.Groups)
 	pct := fmt.Sprintf("%.3g %%", 100*c.Level)
+	if len(c.Groups) >= 3 && len(c.Pairs) > 0 {
+		return c.verdictPairs(label, list, pct)
+	}
 	if c.Differ {
 		fmt.Fprintf(&b, "%s %s differ (%s)", label, list, fmtP(c.PMain))
 	} else {
@@ -372,11 +442,49 @@ func (c *Comparison) verdict(ref string) string {
 		if i > 0 {
 			sep = "; "
 		}
-		fmt.Fprintf(&b, "%sD of %s is %.3g times D of %s at %s °C (%.2f K) (%s CI %.3g–%.3g)", sep, r.Group, r.Value, ref, oneDecimal(celsius(r.TRef)), r.TRef, pct, r.CI.Lo, r.CI.Hi)
+		v, iv := fmtRatio(r.Value, r.CI)
+		fmt.Fprintf(&b, "%sD of %s is %s times D of %s at %s (%s CI %s)", sep, r.Group, v, ref, tk(r.TRef), pct, iv)
 	}
 	b.WriteString(".")
 	if !c.Differ {
 		b.WriteString(" This does not show that they are equal: the interval says how large a difference the data still allow.")
+	}
+	return b.String()
+}
+
+// verdictPairs writes the conclusion for three or more groups: the
+// overall test, then every pair in words with its Holm-adjusted p-value.
+func (c *Comparison) verdictPairs(label, list, pct string) string {
+	var b strings.Builder
+	if c.Differ {
+		fmt.Fprintf(&b, "%s %s do not all follow one Arrhenius line (overall F-test, %s).", label, list, fmtP(c.PMain))
+	} else {
+		fmt.Fprintf(&b, "No significant difference among %s %s at the %.3g %% level (overall F-test, %s).", strings.ToLower(label), list, 100*c.Alpha, fmtP(c.PMain))
+	}
+	fmt.Fprintf(&b, " Pair by pair at %s, p-values adjusted for %d comparisons (Holm): ", tk(c.Pairs[0].TRef), len(c.Pairs))
+	var differ []string
+	for i, p := range c.Pairs {
+		if i > 0 {
+			b.WriteString("; ")
+		}
+		v, iv := fmtRatio(p.Ratio, p.CI)
+		adj := "adjusted " + fmtP(p.PAdjusted)
+		if p.Differ {
+			differ = append(differ, p.A+"–"+p.B)
+			fmt.Fprintf(&b, "%s and %s differ (D of %s is %s times D of %s, %s CI %s, %s)", p.A, p.B, p.B, v, p.A, pct, iv, adj)
+		} else {
+			fmt.Fprintf(&b, "%s and %s: no significant difference (D ratio %s/%s %s, %s CI %s, %s)", p.A, p.B, p.B, p.A, v, pct, iv, adj)
+		}
+	}
+	b.WriteString(".")
+	switch {
+	case c.Differ && len(differ) == 0:
+		b.WriteString(" No single pair differs significantly after the adjustment: the lines may differ in slope rather than at this temperature, or the data cannot tell which group departs.")
+	case !c.Differ && len(differ) > 0:
+		b.WriteString(" The overall test and the pairs disagree: treat the difference as unconfirmed.")
+	}
+	if len(differ) < len(c.Pairs) {
+		b.WriteString(" No significant difference does not show that two groups are equal: the interval says how large a difference the data still allow.")
 	}
 	return b.String()
 }
@@ -404,6 +512,20 @@ type RatioJSON struct {
 	Model     string       `json:"model"`
 }
 
+// PairJSON is the wire form of a Pair: {a, b, temperature_K, ratio, ci,
+// p, p_adjusted, differ, model}.
+type PairJSON struct {
+	A         string       `json:"a"`
+	B         string       `json:"b"`
+	TRef      float64      `json:"temperature_K"`
+	Ratio     float64      `json:"ratio"`
+	CI        fit.Interval `json:"ci"`
+	P         *float64     `json:"p"`
+	PAdjusted *float64     `json:"p_adjusted"`
+	Differ    bool         `json:"differ"`
+	Model     string       `json:"model"`
+}
+
 // ComparisonJSON is the wire form of a Comparison. It has no MarshalJSON
 // of its own, so that a document can embed it beside keys of its own.
 type ComparisonJSON struct {
@@ -412,6 +534,7 @@ type ComparisonJSON struct {
 	NPoints  []int         `json:"n_points"`
 	Tests    []FTestJSON   `json:"tests"`
 	Ratios   []RatioJSON   `json:"ratios"`
+	Pairs    []PairJSON    `json:"pairs,omitempty"`
 	Differ   bool          `json:"differ"`
 	PMain    *float64      `json:"p"`
 	Alpha    float64       `json:"alpha"`
@@ -425,13 +548,16 @@ type ComparisonJSON struct {
 // tests, ratios and warnings [] when empty.
 func (c Comparison) JSON() ComparisonJSON {
 	out := ComparisonJSON{By: c.By, Groups: c.Groups, NPoints: c.NPoints, Differ: c.Differ, PMain: num(c.PMain),
-		Alpha: c.Alpha, Level: c.Level, Verdict: c.Verdict, Scale: c.Scale, Warnings: c.Warnings,
+		Alpha: c.Alpha, Level: c.Level, Verdict: tempfmt.Plain(c.Verdict), Scale: c.Scale, Warnings: c.Warnings,
 		Tests: []FTestJSON{}, Ratios: []RatioJSON{}}
 	for _, t := range c.Tests {
 		out.Tests = append(out.Tests, FTestJSON{t.Name, t.Description, num(t.F), t.DF1, t.DF2, num(t.P), t.RSSReduced, t.RSSFull})
 	}
 	for _, r := range c.Ratios {
 		out.Ratios = append(out.Ratios, RatioJSON{r.Group, r.Reference, r.TRef, r.Value, r.CI, num(r.P), r.Model})
+	}
+	for _, p := range c.Pairs {
+		out.Pairs = append(out.Pairs, PairJSON{p.A, p.B, p.TRef, p.Ratio, p.CI, num(p.P), num(p.PAdjusted), p.Differ, p.Model})
 	}
 	if out.Warnings == nil {
 		out.Warnings = []fit.Warning{}
@@ -441,8 +567,3 @@ func (c Comparison) JSON() ComparisonJSON {
 
 // MarshalJSON writes the comparison's wire form (JSON).
 func (c Comparison) MarshalJSON() ([]byte, error) { return jsonx.Marshal(c.JSON()) }
-
-// oneDecimal writes v with at most one decimal ("925", "924.1").
-func oneDecimal(v float64) string {
-	return strings.TrimSuffix(strconv.FormatFloat(v, 'f', 1, 64), ".0")
-}

@@ -1,10 +1,12 @@
 package arrhenius
 
 import (
+	"errors"
 	"fmt"
 	"strings"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 )
 
 // Error is an error from this package. It says what it concerns (file,
@@ -20,8 +22,11 @@ type Error struct {
 	Kind   error  // fit.ErrBadInput or fit.ErrNoAnswer
 }
 
-// Error implements error.
-func (e *Error) Error() string {
+// Error implements error. Temperatures in the message are written in kelvin.
+func (e *Error) Error() string { return e.text(tempfmt.Plain(e.Msg)) }
+
+// text is the message with its position, msg being the message proper.
+func (e *Error) text(msg string) string {
 	var b strings.Builder
 	b.WriteString("arrhenius")
 	if e.Source != "" {
@@ -38,8 +43,29 @@ func (e *Error) Error() string {
 		fmt.Fprintf(&b, ": %s", e.Field)
 	}
 	b.WriteString(": ")
-	b.WriteString(e.Msg)
+	b.WriteString(msg)
 	return b.String()
+}
+
+// Render is Error with the temperatures of the message written by f
+// (the reader's unit) instead of in kelvin.
+func (e *Error) Render(f func(kelvin float64) string) string {
+	return e.text(tempfmt.Render(e.Msg, f))
+}
+
+// MarkedText is err's message with the temperatures of an arrhenius
+// Error in it kept as marks (internal/tempfmt), for a caller that stores
+// the message and lets its writers render it in the reader's unit.
+func MarkedText(err error) string {
+	if err == nil {
+		return ""
+	}
+	s := err.Error()
+	var e *Error
+	if errors.As(err, &e) {
+		s = strings.Replace(s, e.Error(), e.text(e.Msg), 1)
+	}
+	return s
 }
 
 // Unwrap returns the error kind (fit.ErrBadInput or fit.ErrNoAnswer).

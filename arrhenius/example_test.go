@@ -39,8 +39,8 @@ func ExampleSolveTemperature() {
 	fmt.Printf("T = %.0f K (%.0f–%.0f K, %s)\n", T.Value, T.CI.Lo, T.CI.Hi, T.Method)
 	fmt.Println(s.Warnings[0].Code)
 	// Output:
-	// T = 1224 K (1211–1237 K, fieller)
-	// calibration-without-uncertainty
+	// T = 1224 K (1159–1296 K, fieller)
+	// reference-literature
 }
 
 // Plan a carburizing time: the hold needed for 0.4 wt% C at 0.8 mm.
@@ -56,7 +56,7 @@ func ExampleTimeToDepth() {
 }
 
 func ExampleLookupReference() {
-	_, err := arrhenius.LookupReference("N-in-gamma-Fe")
+	_, err := arrhenius.LookupReference("B-in-gamma-Fe")
 	fmt.Println(err)
-	// Output: arrhenius: N-in-gamma-Fe: reference: no such reference entry; valid names: Al-in-Al, C-in-alpha-Fe, C-in-gamma-Fe, Cu-in-Al, Cu-in-Cu, Fe-in-alpha-Fe, Fe-in-gamma-Fe, Mg-in-Al, Zn-in-Cu
+	// Output: arrhenius: B-in-gamma-Fe: reference: no such reference entry; valid names: Al-in-Al, C-in-alpha-Fe, C-in-gamma-Fe, Cu-in-Al, Cu-in-Cu, Fe-in-alpha-Fe, Fe-in-gamma-Fe, Mg-in-Al, N-in-alpha-Fe, N-in-gamma-Fe, Zn-in-Cu
 }

@@ -80,7 +80,7 @@ func Global(ps []profile.Profile, o *GlobalOptions) (*Line, error) {
 	}
 	nT := distinctTemperatures(T)
 	if nT < 2 {
-		return nil, badInput("", "temperature", "all %d profiles are at one temperature (%g K); an Arrhenius line needs 2 or more distinct temperatures (3 or more for a confidence interval)", n, T[0])
+		return nil, badInput("", "temperature", "all %d profiles are at one temperature (%s); an Arrhenius line needs 2 or more distinct temperatures (3 or more for a confidence interval)", n, tk(T[0]))
 	}
 	m := g.Fit.Custom
 	if m == nil {

@@ -1,9 +1,12 @@
 package arrhenius
 
 import (
+	"fmt"
 	"math"
 	"strconv"
 
+	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -33,7 +36,7 @@ func checkHistory(h *profile.History) error {
 			return at(i, "time", "time %g is not a number", h.Time[i])
 		}
 		if !finite(h.Temp[i]) || h.Temp[i] <= 0 {
-			return at(i, "temperature", "temperature %g K is not a positive number of kelvin", h.Temp[i])
+			return at(i, "temperature", "temperature %s is not a positive number of kelvin", tempfmt.Kelvin(h.Temp[i]))
 		}
 		if i > 0 && !(h.Time[i] > h.Time[i-1]) {
 			return at(i, "time", "time %g s is not later than the previous row's %g s: the log must be in increasing time order without repeats (sort it, or remove the duplicate row)", h.Time[i], h.Time[i-1])
@@ -209,7 +212,7 @@ func EquivalentTime(h *profile.History, Q, Tref float64) (float64, error) {
 		return 0, badInput("", "Q", "Q = %g J/mol must be a positive number", Q)
 	}
 	if !(Tref > 0) || !finite(Tref) {
-		return 0, badInput("", "reference temperature", "Tref = %g K must be a positive number of kelvin", Tref)
+		return 0, badInput("", "reference temperature", "Tref = %s must be a positive number of kelvin", tempfmt.Kelvin(Tref))
 	}
 	e := integrateLog(h, 0, Q, Shift, 0)
 	return math.Exp(e.lnI + Q/(R*Tref)), nil
@@ -252,7 +255,7 @@ func (e Exposure) lnDt(c Calibration) (lnDt, variance, x float64, err error) {
 			return 0, 0, 0, badInput("", "time", "time %g s must be > 0", e.Time)
 		}
 		if !(e.Temperature > 0) || !finite(e.Temperature) {
-			return 0, 0, 0, badInput("", "temperature", "temperature %g K must be a positive number of kelvin", e.Temperature)
+			return 0, 0, 0, badInput("", "temperature", "temperature %s must be a positive number of kelvin", tempfmt.Kelvin(e.Temperature))
 		}
 		x = 1 / (R * e.Temperature)
 		lnDt = c.LnD0 - c.Q*x + math.Log(e.Time)
@@ -292,5 +295,82 @@ func WithHistory(p profile.Profile, h *profile.History, Q, Tref float64) (profil
 	out.Meta["history"] = h.Source
 	out.Meta["history_Q_J_per_mol"] = strconv.FormatFloat(Q, 'g', -1, 64)
 	out.Meta["equivalent_time_s"] = strconv.FormatFloat(teq, 'g', -1, 64)
+	out.Notes = append([]profile.Note(nil), p.Notes...)
+	for _, w := range spikeWarnings(h, Q) {
+		out.Notes = append(out.Notes, profile.Note{Code: w.Code, Message: w.Message})
+	}
 	return out, nil
+}
+
+// Spike is a single reading of a log that departs from both neighbours in
+// the same direction by far more than they differ from each other — a
+// thermocouple glitch or a typing error, rarely a real excursion.
+// Expected is the temperature interpolated from the neighbours (K).
+type Spike struct {
+	Index, Line int
+	T, Expected float64
+}
+
+// Thresholds of Spikes (common practice, no source): a controlled furnace
+// does not leave and regain its set point within one logging interval by
+// tens of kelvin while both neighbours agree.
+const (
+	spikeMin    = 30 // K: least departure from the interpolated value
+	spikeFactor = 5  // times the neighbours' own difference
+)
+
+// Spikes finds the single-sample spikes of a log: an interior row whose
+// temperature lies on the same side of both neighbours and departs from
+// the value interpolated between them (linearly in time) by more than
+// spikeMin and more than spikeFactor times the neighbours' own difference.
+// The first and last rows are not judged (a ramp starts and ends there).
+func Spikes(h *profile.History) []Spike {
+	var out []Spike
+	for i := 1; i+1 < len(h.Time); i++ {
+		t0, t1, t2 := h.Time[i-1], h.Time[i], h.Time[i+1]
+		a, b, c := h.Temp[i-1], h.Temp[i], h.Temp[i+1]
+		exp := a + (c-a)*(t1-t0)/(t2-t0)
+		dev := b - exp
+		same := (b-a)*(b-c) > 0
+		if same && math.Abs(dev) > spikeMin && math.Abs(dev) > spikeFactor*math.Abs(c-a) {
+			s := Spike{Index: i, T: b, Expected: exp}
+			if i < len(h.Line) {
+				s.Line = h.Line[i]
+			}
+			out = append(out, s)
+		}
+	}
+	return out
+}
+
+// spikeWarnings says of each spike of the log where it is, what it reads
+// and, for activation energy q (J/mol; none when q ≤ 0), how much it
+// changes ∫D dt against the row replaced by its neighbours' interpolation.
+func spikeWarnings(h *profile.History, q float64) []fit.Warning {
+	sp := Spikes(h)
+	if len(sp) == 0 {
+		return nil
+	}
+	var ws []fit.Warning
+	for _, s := range sp {
+		where := fmt.Sprintf("row %d", s.Index+1)
+		if s.Line > 0 {
+			where = fmt.Sprintf("line %d", s.Line)
+		}
+		msg := fmt.Sprintf("The log %s reads %s at %s, between %s and %s: a single-sample spike (a thermocouple glitch or a typing error?).",
+			h.Source, tk(s.T), where, tk(h.Temp[s.Index-1]), tk(h.Temp[s.Index+1]))
+		if q > 0 && finite(q) {
+			fixed := *h
+			fixed.Temp = append([]float64(nil), h.Temp...)
+			fixed.Temp[s.Index] = s.Expected
+			with := integrateLog(h, 0, q, Shift, 0)
+			without := integrateLog(&fixed, 0, q, Shift, 0)
+			if r := math.Exp(with.lnI - without.lnI); finite(r) {
+				msg += fmt.Sprintf(" With it, ∫D dt is %.3g times what it is with the row interpolated from its neighbours;", r)
+			}
+		}
+		msg += " check the log, and correct or remove the row if the furnace did not do this."
+		ws = append(ws, fit.Warning{Code: "history-spike", Message: msg})
+	}
+	return ws
 }

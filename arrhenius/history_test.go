@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -200,5 +201,27 @@ func TestWithHistory(t *testing.T) {
 	lnD, se, _ := r.LnD()
 	if math.Abs(lnD-simLnD(Tref)) > 4*se {
 		t.Errorf("D at Tref: ln D = %g ± %g, true %g", lnD, se, simLnD(Tref))
+	}
+}
+
+// TestSpikes: a single 1500 °C row in a 925 °C hold is a spike, named with
+// its line and its effect on ∫D dt; a ramp, a step to a new level and the
+// ends of the log are not.
+func TestSpikes(t *testing.T) {
+	h := &profile.History{Source: "log.csv", Time: []float64{0, 600, 1200, 1800, 2400, 3000, 3600},
+		Temp: []float64{300, 1198.15, 1198.15, 1773.15, 1199.15, 1198.15, 1273.15}, Line: []int{2, 3, 4, 5, 6, 7, 8}}
+	sp := Spikes(h)
+	if len(sp) != 1 || sp[0].Line != 5 || math.Abs(sp[0].Expected-1198.65) > 1e-9 {
+		t.Fatalf("spikes %+v", sp)
+	}
+	ws := spikeWarnings(h, 148e3)
+	if len(ws) != 1 || ws[0].Code != "history-spike" || !strings.Contains(tempfmt.Plain(ws[0].Message), "reads 1773.15 K at line 5") ||
+		!strings.Contains(ws[0].Message, "times what it is") {
+		t.Errorf("warning %+v", ws)
+	}
+	// A ramp and a new level are not spikes.
+	ramp := &profile.History{Time: []float64{0, 600, 1200, 1800}, Temp: []float64{900, 1000, 1100, 1100}}
+	if sp := Spikes(ramp); len(sp) != 0 {
+		t.Errorf("ramp: %+v", sp)
 	}
 }

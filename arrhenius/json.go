@@ -57,6 +57,19 @@ type PointJSON struct {
 	DLine    float64      `json:"D_line"`
 	Residual float64      `json:"residual_ln"`
 	Weight   *float64     `json:"weight"`
+	// Regression diagnostics (influence.go); null where not defined.
+	Leverage    *float64 `json:"leverage"`
+	Studentized *float64 `json:"studentized_residual"`
+	Cook        *float64 `json:"cooks_distance"`
+}
+
+// DOnLineJSON is D on the line at one temperature: the band of the mean
+// line ("ci") and the prediction interval of a single new part.
+type DOnLineJSON struct {
+	T  float64      `json:"temperature_K"`
+	D  float64      `json:"D"`
+	CI fit.Interval `json:"ci"`
+	PI fit.Interval `json:"prediction_interval"`
 }
 
 // BudgetJSON is the wire form of a TemperatureBudget.
@@ -90,6 +103,8 @@ type LineJSON struct {
 	TRange        [2]float64    `json:"temperature_range_K"`
 	Points        []PointJSON   `json:"points"`
 	Budget        *BudgetJSON   `json:"temperature_uncertainty,omitempty"`
+	PartVar       *float64      `json:"part_var_lnD"`
+	DOnLine       []DOnLineJSON `json:"d_on_line"`
 	Iterations    int           `json:"iterations,omitempty"`
 	Warnings      []fit.Warning `json:"warnings"`
 }
@@ -125,7 +140,15 @@ func (l Line) JSON() LineJSON {
 		se := math.Sqrt(p.VarLnD)
 		j.Points[i] = PointJSON{ID: p.ID, Source: p.Source, Lot: p.Lot, T: p.T, SigmaT: p.SigmaT,
 			D: math.Exp(p.LnD), CI: ci, StdErrLn: num(se), DLine: math.Exp(p.Fitted),
-			Residual: p.Residual, Weight: num(p.Weight)}
+			Residual: p.Residual, Weight: num(p.Weight),
+			Leverage: num(p.Leverage), Studentized: num(p.Studentized), Cook: num(p.Cook)}
+	}
+	j.PartVar = num(l.PartVar())
+	j.DOnLine = []DOnLineJSON{}
+	for _, T := range l.DOnLineTemperatures() {
+		d, ci := l.DAt(T)
+		_, pi := l.PredictAt(T)
+		j.DOnLine = append(j.DOnLine, DOnLineJSON{T: T, D: d, CI: ci, PI: pi})
 	}
 	if b := l.TempBudget; b != nil {
 		j.Budget = &BudgetJSON{HalfWidthQ: num(b.HalfWidthQ), HalfWidthQProfiles: num(b.HalfWidthQProfiles),
@@ -155,6 +178,7 @@ func (l *Line) UnmarshalJSON(b []byte) error {
 		l.Points = append(l.Points, LinePoint{
 			Point:  Point{ID: p.ID, Source: p.Source, Lot: p.Lot, T: p.T, SigmaT: p.SigmaT, LnD: math.Log(p.D), VarLnD: se * se, CI: p.CI},
 			Fitted: math.Log(p.DLine), Residual: p.Residual, Weight: val(p.Weight),
+			Influence: Influence{Leverage: val(p.Leverage), Studentized: val(p.Studentized), Cook: val(p.Cook), OutlierP: nan},
 		})
 	}
 	if bj := j.Budget; bj != nil {

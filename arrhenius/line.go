@@ -53,6 +53,9 @@ type LinePoint struct {
 	// Weight is the final weight 1/(Var ln D + (Q/RT²)²σ_T²) (two-stage) or
 	// 1/Var(ln D) of the separate fit (global).
 	Weight float64
+	// Influence is the point's leverage, studentized residual and Cook's
+	// distance about the weighted line (influence.go).
+	Influence
 }
 
 // TemperatureBudget tells how much of Q's uncertainty comes from the
@@ -136,6 +139,68 @@ func (l *Line) DAt(T float64) (D float64, ci fit.Interval) {
 	return math.Exp(lnD), fit.Interval{Lo: math.Exp(lnD - h), Hi: math.Exp(lnD + h)}
 }
 
+// scale is the factor of the stated variances behind the intervals: the
+// squared Birge ratio when the covariance was scaled, else 1.
+func (l *Line) scale() float64 {
+	if l.Scaled && l.BirgeRatio > 0 {
+		return l.BirgeRatio * l.BirgeRatio
+	}
+	return 1
+}
+
+// meanPointVar is the mean of the points' variances 1/wᵢ (their stated
+// Var ln D, with the temperature term where one was given); NaN without
+// weights.
+func (l *Line) meanPointVar() float64 {
+	var s float64
+	n := 0
+	for _, p := range l.Points {
+		if p.Weight > 0 && finite(p.Weight) {
+			s += 1 / p.Weight
+			n++
+		}
+	}
+	if n == 0 {
+		return nan
+	}
+	return s / float64(n)
+}
+
+// PartVar is the variance of ln D of a single new part about the true
+// line, measured as the calibration points were: c·mean(1/wᵢ), with c the
+// squared Birge ratio when the covariance was scaled and 1 when the stated
+// errors were kept (the variance of a new observation in weighted
+// regression, σ²/w_new with 1/w_new the points' mean variance: Draper &
+// Smith, Applied Regression Analysis, 3rd ed., 1998, §1.4 and ch. 9 on
+// weighted least squares; sections from memory).
+func (l *Line) PartVar() float64 { return l.scale() * l.meanPointVar() }
+
+// PredictAt returns D on the line at T (K) and the prediction interval of
+// a single new part, exp(ln D ± k·√(se² + PartVar)), with the quantile k of
+// the mean band (DAt). Open without CI.
+func (l *Line) PredictAt(T float64) (D float64, pi fit.Interval) {
+	lnD, se := l.LnDAt(T)
+	v := l.PartVar()
+	if !l.HasCI || !finite(v) {
+		return math.Exp(lnD), fit.Interval{Lo: nan, Hi: nan}
+	}
+	h := l.k() * math.Sqrt(se*se+v)
+	return math.Exp(lnD), fit.Interval{Lo: math.Exp(lnD - h), Hi: math.Exp(lnD + h)}
+}
+
+// DOnLineTemperatures are the temperatures (K) at which the JSON gives D
+// on the line: the ends of the measured range and its centre in 1/T.
+func (l *Line) DOnLineTemperatures() []float64 {
+	lo, hi := l.TRange()
+	switch {
+	case !(lo > 0):
+		return nil
+	case !(hi > lo):
+		return []float64{lo}
+	}
+	return []float64{lo, 2 / (1/lo + 1/hi), hi}
+}
+
 // TRange returns the lowest and highest temperature of the points (K).
 func (l *Line) TRange() (lo, hi float64) {
 	lo, hi = math.Inf(1), math.Inf(-1)
@@ -159,6 +224,10 @@ func (l *Line) Calibration() Calibration {
 		c.Source += fmt.Sprintf(" (%s %s)", l.By, l.Group)
 	}
 	c.TMin, c.TMax = l.TRange()
+	if v := l.meanPointVar(); finite(v) {
+		c.PartVar = l.scale() * v
+		c.ExcessVar = math.Max(l.scale()-1, 0) * v
+	}
 	if c.DOF < 0 {
 		c.DOF = 0
 	}

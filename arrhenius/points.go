@@ -67,10 +67,10 @@ func PointFromResult(r *fit.Result) (Point, error) {
 		return Point{}, e("D", "D was fixed in the fit, not measured; free it to use this profile")
 	}
 	if r.Time <= 0 {
-		return Point{}, e("time", "the hold time is unknown, so the fit gave Dt (m²), not D; give the time (e.g. --time 4h or a `# time:` line) or use the profile for back-calculation instead")
+		return Point{}, e("time", "the hold time is unknown, so the fit gave Dt (m²), not D; give the hold time (e.g. a `# time: 4 h` line) or use the profile for back-calculation instead")
 	}
 	if !(r.Temperature > 0) {
-		return Point{}, e("temperature", "the hold temperature is not given; add a `# temperature:` line or --temperature")
+		return Point{}, e("temperature", "the hold temperature is not given; add it (e.g. a `# temperature: 925 C` line)")
 	}
 	if !(d.Value > 0) || !finite(d.Value) {
 		return Point{}, e("D", "D = %g is not a positive number", d.Value)

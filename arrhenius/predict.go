@@ -1,7 +1,6 @@
 package arrhenius
 
 import (
-	"fmt"
 	"math"
 
 	"github.com/fickfit/fickfit/fit"
@@ -17,21 +16,27 @@ type PredictOptions struct {
 	ColdOK bool
 }
 
-// ProfilePoint is one depth of a predicted profile with its band.
+// ProfilePoint is one depth of a predicted profile with its band (Lo,
+// Hi: the mean line) and the prediction interval of a single part
+// (PartLo, PartHi).
 type ProfilePoint struct {
-	Depth  float64 `json:"depth_m"`
-	Value  float64 `json:"value"`
-	Lo, Hi float64 `json:"-"`
+	Depth          float64 `json:"depth_m"`
+	Value          float64 `json:"value"`
+	Lo, Hi         float64 `json:"-"`
+	PartLo, PartHi float64 `json:"-"`
 }
 
-// MarshalJSON writes {"depth_m","value","lo","hi"} (null for an open end).
+// MarshalJSON writes {"depth_m","value","lo","hi","part_lo","part_hi"}
+// (null for an open end or no interval).
 func (p ProfilePoint) MarshalJSON() ([]byte, error) {
 	return jsonx.Marshal(struct {
-		Depth float64  `json:"depth_m"`
-		Value float64  `json:"value"`
-		Lo    *float64 `json:"lo"`
-		Hi    *float64 `json:"hi"`
-	}{p.Depth, p.Value, num(p.Lo), num(p.Hi)})
+		Depth  float64  `json:"depth_m"`
+		Value  float64  `json:"value"`
+		Lo     *float64 `json:"lo"`
+		Hi     *float64 `json:"hi"`
+		PartLo *float64 `json:"part_lo"`
+		PartHi *float64 `json:"part_hi"`
+	}{p.Depth, p.Value, num(p.Lo), num(p.Hi), num(p.PartLo), num(p.PartHi)})
 }
 
 // Prediction is a forward use of a calibration for schedule planning.
@@ -70,32 +75,24 @@ type Prediction struct {
 //	 "ci_level":0.95,"calibration":{"method","source","D0","Q","cov_lnD0_Q","dof"},
 //	 "warnings":[…],"cautions":[…]}
 func (p Prediction) MarshalJSON() ([]byte, error) {
-	type cal struct {
-		Method string        `json:"method"`
-		Source string        `json:"source"`
-		D0     float64       `json:"D0"`
-		Q      float64       `json:"Q"`
-		Cov    [2][2]float64 `json:"cov_lnD0_Q"`
-		DOF    int           `json:"dof"`
-	}
 	out := struct {
-		Kind        string         `json:"kind"`
-		Temperature Quantity       `json:"temperature_K"`
-		Time        Quantity       `json:"time_s"`
-		History     string         `json:"history,omitempty"`
-		Dt          Quantity       `json:"Dt"`
-		Cs          float64        `json:"Cs"`
-		C0          float64        `json:"C0"`
-		Threshold   *float64       `json:"threshold,omitempty"`
-		CaseDepth   *Quantity      `json:"case_depth_m,omitempty"`
-		Profile     []ProfilePoint `json:"profile,omitempty"`
-		Level       float64        `json:"ci_level"`
-		Calibration cal            `json:"calibration"`
-		Warnings    []fit.Warning  `json:"warnings"`
-		Cautions    []string       `json:"cautions"`
+		Kind        string          `json:"kind"`
+		Temperature Quantity        `json:"temperature_K"`
+		Time        Quantity        `json:"time_s"`
+		History     string          `json:"history,omitempty"`
+		Dt          Quantity        `json:"Dt"`
+		Cs          float64         `json:"Cs"`
+		C0          float64         `json:"C0"`
+		Threshold   *float64        `json:"threshold,omitempty"`
+		CaseDepth   *Quantity       `json:"case_depth_m,omitempty"`
+		Profile     []ProfilePoint  `json:"profile,omitempty"`
+		Level       float64         `json:"ci_level"`
+		Calibration CalibrationJSON `json:"calibration"`
+		Warnings    []fit.Warning   `json:"warnings"`
+		Cautions    []string        `json:"cautions"`
 	}{Kind: p.Kind, Temperature: p.Temperature, Time: p.Time, History: p.HistorySource, Dt: p.Dt,
 		Cs: p.Cs, C0: p.C0, CaseDepth: p.CaseDepth, Profile: p.Profile, Level: p.Level,
-		Calibration: cal{p.Calibration.Method, p.Calibration.Source, p.Calibration.D0(), p.Calibration.Q, p.Calibration.Cov, p.Calibration.DOF},
+		Calibration: p.Calibration.JSON(),
 		Warnings:    p.Warnings, Cautions: p.Cautions}
 	if p.Kind != "profile" {
 		out.Threshold = num(p.Threshold)
@@ -140,7 +137,11 @@ func newPrediction(kind string, cal Calibration, e Exposure, cs, c0 float64, o *
 	}
 	p := &Prediction{Kind: kind, Cs: cs, C0: c0, Level: level, Calibration: cal,
 		Cautions: append([]string(nil), Cautions...), Warnings: []fit.Warning{}, Threshold: nan}
+	if cal.Method == "reference" {
+		p.warn("reference-literature", ReferenceNote)
+	}
 	if e.History != nil {
+		p.Warnings = append(p.Warnings, spikeWarnings(e.History, cal.Q)...)
 		p.HistorySource = e.History.Source
 		p.Temperature = Quantity{Value: tEffOf(x), Unit: "K", Given: true}
 		p.Time = Quantity{Value: e.History.Time[len(e.History.Time)-1] - e.History.Time[0], Unit: "s", Given: true}
@@ -159,15 +160,23 @@ func newPrediction(kind string, cal Calibration, e Exposure, cs, c0 float64, o *
 	} else {
 		k := cal.quantile(level)
 		p.Dt.CI = fit.Interval{Lo: math.Exp(lnDt - k*se), Hi: math.Exp(lnDt + k*se)}
+		if cal.PartVar > 0 {
+			sp := math.Sqrt(v + cal.PartVar)
+			p.Dt.PI = &fit.Interval{Lo: math.Exp(lnDt - k*sp), Hi: math.Exp(lnDt + k*sp)}
+		}
 		if !cal.hasCov() {
 			p.warn("calibration-without-uncertainty", "The calibration carries no uncertainty (reference or explicit values without one): the band has zero width and says nothing about the real spread.")
 		}
 	}
 	T := p.Temperature.Value
 	if cal.TMin > 0 && cal.TMax > 0 && (T < cal.TMin-1e-9 || T > cal.TMax+1e-9) {
-		p.warn("extrapolation", fmt.Sprintf("%.1f K (%.1f °C) lies outside the calibration's %.1f–%.1f K: the prediction extrapolates the Arrhenius line and assumes no change of mechanism or phase.", T, celsius(T), cal.TMin, cal.TMax))
+		p.warn("extrapolation", tk(T)+" lies outside the calibration's range "+tk(cal.TMin)+" to "+tk(cal.TMax)+": the prediction extrapolates the Arrhenius line and assumes no change of mechanism or phase.")
 	}
-	p.warn("mean-line-band", "The band is that of the mean Arrhenius line (calibration uncertainty); a single part also varies about the line.")
+	if p.Dt.PI != nil {
+		p.warn("mean-line-band", "The band is that of the mean Arrhenius line (calibration uncertainty). A single part also varies about the line, as the calibration coupons did: its prediction interval is given beside the band, and a failure analyst's part is one part.")
+	} else {
+		p.warn("mean-line-band", "The band is that of the mean Arrhenius line (calibration uncertainty); a single part also varies about the line, by an amount this calibration does not tell.")
+	}
 	return p, lnDt, se, nil
 }
 
@@ -192,11 +201,16 @@ func PredictProfile(cal Calibration, e Exposure, cs, c0 float64, depths []float6
 		if !(x >= 0) || !finite(x) {
 			return nil, badInput("", "depth", "depth %d (%g m) must be a number ≥ 0", i+1, x)
 		}
-		pp := ProfilePoint{Depth: x, Value: erfProfile(x, p.Dt.Value, cs, c0), Lo: nan, Hi: nan}
+		pp := ProfilePoint{Depth: x, Value: erfProfile(x, p.Dt.Value, cs, c0), Lo: nan, Hi: nan, PartLo: nan, PartHi: nan}
 		if !p.Dt.CI.Open() {
 			a := erfProfile(x, p.Dt.CI.Lo, cs, c0)
 			b := erfProfile(x, p.Dt.CI.Hi, cs, c0)
 			pp.Lo, pp.Hi = math.Min(a, b), math.Max(a, b)
+		}
+		if pi := p.Dt.PI; pi != nil {
+			a := erfProfile(x, pi.Lo, cs, c0)
+			b := erfProfile(x, pi.Hi, cs, c0)
+			pp.PartLo, pp.PartHi = math.Min(a, b), math.Max(a, b)
 		}
 		p.Profile = append(p.Profile, pp)
 	}
@@ -235,6 +249,9 @@ func PredictCaseDepth(cal Calibration, e Exposure, cs, c0, threshold float64, o 
 	if !p.Dt.CI.Open() {
 		q.CI = fit.Interval{Lo: depth(p.Dt.CI.Lo), Hi: depth(p.Dt.CI.Hi)}
 	}
+	if pi := p.Dt.PI; pi != nil {
+		q.PI = &fit.Interval{Lo: depth(pi.Lo), Hi: depth(pi.Hi)}
+	}
 	p.CaseDepth = q
 	return p, nil
 }
@@ -271,6 +288,10 @@ func TimeToDepth(cal Calibration, T, cs, c0, threshold, depth float64, o *Predic
 		k := cal.quantile(p.Level)
 		p.Time.CI = fit.Interval{Lo: t * math.Exp(-k*se), Hi: t * math.Exp(k*se)}
 		p.Time.Method = "wald-log"
+		if cal.PartVar > 0 {
+			sp := math.Sqrt(se*se + cal.PartVar)
+			p.Time.PI = &fit.Interval{Lo: t * math.Exp(-k*sp), Hi: t * math.Exp(k*sp)}
+		}
 	}
 	return p, nil
 }

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 	"gonum.org/v1/gonum/stat/distuv"
 )
 
@@ -73,17 +74,17 @@ func checkTemperatures(ids []string, srcs []string, T []float64, coldOK bool) er
 	var cold []string
 	for i, t := range T {
 		if !finite(t) || t <= 0 {
-			e := badInput(ids[i], "temperature", "temperature %g K is not a positive number of kelvin", t)
+			e := badInput(ids[i], "temperature", "temperature %s is not a positive number of kelvin", tempfmt.Kelvin(t))
 			e.Source = srcs[i]
 			return e
 		}
 		if t > hotLimit {
-			e := badInput(ids[i], "temperature", "temperature %g K is above %g K: check the unit (°F read as K?)", t, float64(hotLimit))
+			e := badInput(ids[i], "temperature", "temperature %s is above %s: check the unit (°F read as K?)", tk(t), tempfmt.Kelvin(hotLimit))
 			e.Source = srcs[i]
 			return e
 		}
 		if t < coldLimit && !coldOK {
-			cold = append(cold, fmt.Sprintf("%s (%g)", ids[i], t))
+			cold = append(cold, fmt.Sprintf("%s (%s)", ids[i], tempfmt.Kelvin(t)))
 		}
 	}
 	if len(cold) > 0 {
@@ -279,11 +280,17 @@ func TwoStage(pts []Point, o *Options) (*Line, error) {
 	}
 	nT := distinctTemperatures(T)
 	if nT < 2 {
-		return nil, badInput("", "temperature", "all %d points are at one temperature (%g K); an Arrhenius line needs D at 2 or more distinct temperatures (3 or more for a confidence interval)", n, T[0])
+		return nil, badInput("", "temperature", "all %d points are at one temperature (%s); an Arrhenius line needs D at 2 or more distinct temperatures (3 or more for a confidence interval)", n, tk(T[0]))
 	}
 
 	f := fitEffectiveVariance(x, y, v, T, sT, opt.MaxIter, opt.Tol)
 	if err := checkQ(f.q, T); err != nil {
+		// Name the point that most likely caused it.
+		if e, ok := err.(*Error); ok && n >= 4 {
+			if ss := suspects(ids, T, y, f.w, influence(x, y, f.w), 1-opt.Level); len(ss) > 0 {
+				e.Msg += ". " + strings.Join(ss, " ")
+			}
+		}
 		return nil, err
 	}
 	l := &Line{Method: "two-stage", Q: f.q, Level: opt.Level, DOF: n - 2, NTemperatures: nT, Iterations: f.iter}
@@ -357,13 +364,13 @@ func (l *Line) standardWarnings(opt Options) []fit.Warning {
 	if l.NTemperatures == 2 {
 		w = append(w, fit.Warning{Code: "two-temperatures", Message: "Only two distinct temperatures: D0 and Q are determined but carry no confidence interval, and the straight line cannot be checked. Measure at a third temperature (3 or more are needed for an interval)."})
 	}
-	if l.Scaled && !opt.Unweighted {
+	if l.Scaled && !opt.Unweighted && l.ChiSqP < 1-l.Level {
 		w = append(w, fit.Warning{Code: "scatter-exceeds-errors", Message: fmt.Sprintf("The points scatter more about the line than their stated errors allow (Birge ratio %.3g, χ² p = %.2g); the intervals were widened by that ratio. Look for a mislabelled temperature, a wrong time, or lot-to-lot differences.", l.BirgeRatio, l.ChiSqP)})
 	}
-	if opt.NoBirge && l.BirgeRatio > 1 {
+	if opt.NoBirge && l.BirgeRatio > 1 && !(l.ChiSqP >= 1-l.Level) {
 		w = append(w, fit.Warning{Code: "scatter-not-scaled", Message: fmt.Sprintf("The points scatter more than their stated errors (Birge ratio %.3g) but the intervals were not widened on request: they are too narrow.", l.BirgeRatio)})
 	}
-	return w
+	return append(w, l.lineDiagnostics()...)
 }
 
 // newBudget splits Var(Q) into temperature and profile parts from the

@@ -62,6 +62,9 @@ type Options struct {
 	Solve arrhenius.SolveOptions
 	// Version is the software version written into every output; "" means DefaultVersion.
 	Version string
+	// KeepGoing leaves out inputs that cannot be read (recorded in
+	// Result.NotRead, with where and why) instead of stopping.
+	KeepGoing bool
 	// Progress, when not nil, is called as the work proceeds with a stage
 	// name and the count done out of total: the stages "read", "fit" and
 	// "arrhenius", each once and in that order. It is called from one
@@ -161,8 +164,14 @@ type Result struct {
 	ComparisonError string
 	// Parts are the profiles marked unknown, back-calculated.
 	Parts []Part
+	// NotRead are the inputs left out because they could not be read
+	// (Options.KeepGoing).
+	NotRead []profile.Skipped
 	// Notes are campaign-level remarks in plain words (profiles left out of
-	// the calibration and why).
+	// the calibration and why). Like the Error texts of GroupFailure and
+	// Part and ComparisonError, they may hold absolute temperatures as
+	// marks of internal/tempfmt, which package report renders in the
+	// reader's unit (kelvin in JSON); tempfmt.Plain renders them in kelvin.
 	Notes    []string
 	Options  AuditOptions
 	Cautions []string
@@ -255,6 +264,22 @@ func Run(inputs []string, opts Options) (*Result, error) {
 		return nil, fmt.Errorf("%w: no input files or folders given", fit.ErrBadInput)
 	}
 	opts.progress("read", 0, len(inputs))
+	if opts.KeepGoing {
+		ps, skipped := profile.ReadAllKeepGoing(inputs)
+		audit := hashReadable(inputs)
+		opts.progress("read", len(inputs), len(inputs))
+		if len(ps) == 0 {
+			if len(skipped) > 0 {
+				return nil, fmt.Errorf("no input could be read; the first: %w", skipped[0].Err)
+			}
+			return nil, fmt.Errorf("%w: the inputs hold no profiles", fit.ErrBadInput)
+		}
+		res, err := run(ps, audit, opts)
+		if res != nil {
+			res.NotRead = skipped
+		}
+		return res, err
+	}
 	audit, err := hashInputs(inputs)
 	if err != nil {
 		return nil, err
@@ -380,6 +405,34 @@ func hashInputs(inputs []string) ([]InputFile, error) {
 		out = append(out, InputFile{Name: f, SHA256: hex.EncodeToString(h.Sum(nil)), Bytes: n})
 	}
 	return out, nil
+}
+
+// hashReadable is hashInputs for KeepGoing: a path or file that cannot be
+// opened is left out of the audit (it is listed among the inputs not read).
+func hashReadable(inputs []string) []InputFile {
+	var out []InputFile
+	for _, in := range inputs {
+		got, err := hashInputs([]string{in})
+		if err == nil {
+			out = append(out, got...)
+			continue
+		}
+		fi, serr := os.Stat(in)
+		if serr != nil || !fi.IsDir() {
+			continue
+		}
+		entries, _ := os.ReadDir(in)
+		for _, e := range entries {
+			n := e.Name()
+			if e.IsDir() || strings.HasPrefix(n, ".") || strings.HasPrefix(n, "~$") || !readable[strings.ToLower(filepath.Ext(n))] {
+				continue
+			}
+			if got, err := hashInputs([]string{filepath.Join(in, n)}); err == nil {
+				out = append(out, got...)
+			}
+		}
+	}
+	return out
 }
 
 // DefaultVersion is the software version recorded when Options.Version is "".

@@ -159,6 +159,11 @@ func run(ps []profile.Profile, audit []InputFile, opts Options) (*Result, error)
 		}
 		if u != "" {
 			parts = append(parts, partIdx{i, u})
+			if u == "time" && rs[i] != nil {
+				// The time is what the campaign back-calculates: the fit's
+				// "time missing" warning would only repeat the question.
+				rs[i].Warnings = dropWarning(rs[i].Warnings, "time-missing")
+			}
 			continue
 		}
 		if rs[i] == nil {
@@ -294,6 +299,17 @@ func lineFor(p *profile.Profile, res *Result) (*arrhenius.Line, string, error) {
 	return nil, "", fmt.Errorf("there is no Arrhenius line for %s %s (its calibration profiles are missing or could not be fitted)", res.By, g)
 }
 
+// dropWarning returns ws without the warnings of the given code.
+func dropWarning(ws []fit.Warning, code string) []fit.Warning {
+	out := ws[:0:0]
+	for _, w := range ws {
+		if w.Code != code {
+			out = append(out, w)
+		}
+	}
+	return out
+}
+
 // exclusionNotes says in words what the exclusions did, for the notes.
 func exclusionNotes(a *profile.Applied, source string) []string {
 	var out []string
@@ -324,13 +340,10 @@ func because(reason string) string {
 	return " (" + reason + ")"
 }
 
-// plainError returns an error's message (empty for nil).
-func plainError(err error) string {
-	if err == nil {
-		return ""
-	}
-	return err.Error()
-}
+// plainError returns an error's message (empty for nil), with the
+// temperatures in it kept as marks (internal/tempfmt): the writers render
+// them in the reader's unit (report) or in kelvin (JSON).
+func plainError(err error) string { return arrhenius.MarkedText(err) }
 
 func copyMeta(m map[string]string) map[string]string {
 	out := make(map[string]string, len(m)+1)

@@ -45,6 +45,7 @@ func fitInto(p *profile.Profile, o Options, into *Result) (*Result, error) {
 	if err != nil {
 		return nil, errAt(p, err)
 	}
+	r.noteInput(p)
 	return r, nil
 }
 
@@ -54,7 +55,17 @@ func FitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 	if err != nil {
 		return nil, errAt(p, err)
 	}
+	r.noteInput(p)
 	return r, nil
+}
+
+// noteInput carries what reading and converting the profile left to say:
+// its notes become warnings, its values below a detection limit are listed.
+func (r *Result) noteInput(p *profile.Profile) {
+	for _, n := range p.Notes {
+		r.Warn(n.Code, "%s", n.Message)
+	}
+	r.BelowLimit = append([]profile.BelowLimit(nil), p.BelowLimit...)
 }
 
 // errAt prefixes an error with the profile's id and source.
@@ -200,10 +211,10 @@ func fitModel(p *profile.Profile, m Model, o Options, into *Result) (*Result, er
 		return nil, fmt.Errorf("%w: every parameter is fixed; free at least one", ErrBadInput)
 	}
 	if n < k+2 {
-		return nil, fmt.Errorf("%w: %d %s cannot support %d free parameters with an error estimate (need at least %d points); add points or fix a parameter with --fix", ErrBadInput, n, plural(n, "point", "points"), k, k+2)
+		return nil, fmt.Errorf("%w: %d %s cannot support %d free parameters with an error estimate (need at least %d points); add points or hold a parameter at a known value", ErrBadInput, n, plural(n, "point", "points"), k, k+2)
 	}
 	if nd := distinctDepths(d.X); nd < k {
-		return nil, fmt.Errorf("%w: the points lie at only %d distinct %s, which cannot determine the %d free parameters of the %s model (need at least %d distinct depths); add points at other depths or fix a parameter with --fix", ErrNoAnswer, nd, plural(nd, "depth", "depths"), k, m.Name(), k)
+		return nil, fmt.Errorf("%w: the points lie at only %d distinct %s, which cannot determine the %d free parameters of the %s model (need at least %d distinct depths); add points at other depths or hold a parameter at a known value", ErrNoAnswer, nd, plural(nd, "depth", "depths"), k, m.Name(), k)
 	}
 	if constant(d.Y) {
 		return nil, fmt.Errorf("%w: all %d values are equal (%g): there is no profile to fit", ErrBadInput, n, d.Y[0])
@@ -215,7 +226,7 @@ func fitModel(p *profile.Profile, m Model, o Options, into *Result) (*Result, er
 	sol := rb.Sol
 	limit := atLimit(m.Params(), sol, p0)
 	if !sol.Converged && limit < 0 {
-		return nil, fmt.Errorf("%w: the %s fit did not converge: %s. Try fixing a parameter (--fix), adding deeper or shallower points, or another model", ErrNoAnswer, m.Name(), failureReason(m, sol, free, p0))
+		return nil, fmt.Errorf("%w: the %s fit did not converge: %s. Try holding a parameter at a known value, adding deeper or shallower points, or another model", ErrNoAnswer, m.Name(), failureReason(m, sol, free, p0))
 	}
 	r := into
 	if r == nil {

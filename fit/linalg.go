@@ -180,14 +180,3 @@ func cholSubst(l, b, x []float64, k int) {
 		x[i] = t / l[i*k+i]
 	}
 }
-
-// cholSolve solves a x = b for symmetric positive definite a (k×k,
-// row-major), overwriting a with its Cholesky factor. It reports false when
-// a is not numerically positive definite.
-func cholSolve(a, b, x []float64, k int) bool {
-	if !cholesky(a, k, 0) {
-		return false
-	}
-	cholSubst(a, b, x, k)
-	return true
-}

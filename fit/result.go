@@ -6,6 +6,8 @@ import (
 	"math"
 
 	"github.com/fickfit/fickfit/internal/jsonx"
+	"github.com/fickfit/fickfit/internal/tempfmt"
+	"github.com/fickfit/fickfit/profile"
 )
 
 // Interval is a confidence interval. An open end is NaN (or ±Inf) and is
@@ -204,8 +206,23 @@ type Residual struct {
 // Warning is a plain-language note on what the data cannot support.
 // Code is short and stable, for scripts; Message is for people.
 type Warning struct {
-	Code    string `json:"code"`
+	Code string `json:"code"`
+	// Message may hold absolute temperatures as marks of package
+	// internal/tempfmt, rendered in the reader's unit by the writers of
+	// package report and in kelvin in JSON; use Text to read it.
 	Message string `json:"message"`
+}
+
+// Text is the message with its temperatures written in kelvin.
+func (w Warning) Text() string { return tempfmt.Plain(w.Message) }
+
+// MarshalJSON writes {"code","message"} with the temperatures of the
+// message in kelvin (JSON is a machine output: kelvin, docs/output.md).
+func (w Warning) MarshalJSON() ([]byte, error) {
+	return jsonx.Marshal(struct {
+		Code    string `json:"code"`
+		Message string `json:"message"`
+	}{w.Code, tempfmt.Plain(w.Message)})
 }
 
 // Result is everything known about one fitted profile: the answer and how
@@ -252,6 +269,10 @@ type Result struct {
 	// Selection records the model comparison when the model was chosen
 	// automatically (--model auto).
 	Selection *Selection `json:"selection,omitempty"`
+	// BelowLimit lists the values the profile gave as below a detection
+	// limit, left out of the fit (profile.BelowLimit); a warning says so.
+	BelowLimit []profile.BelowLimit `json:"below_limit,omitempty"`
+
 	// CaseDepth and DecarbDepth are filled when asked for (--case-threshold,
 	// --decarb-fraction).
 	CaseDepth   *DepthEstimate `json:"case_depth,omitempty"`

@@ -37,7 +37,7 @@ func init() {
 			if d.Thickness > 0 {
 				return true, ""
 			}
-			return false, "slab not tried: the specimen thickness is not known (add `# thickness: 12 mm` or --thickness)."
+			return false, "slab not tried: the specimen thickness is not known (give it, e.g. a `# thickness: 12 mm` line)."
 		}}, func() Model { return Slab{} })
 }
 
@@ -192,14 +192,14 @@ func (Slab) Eval(p []float64, d *Data, f, jac []float64) {
 // squares, as in MassTransfer.Start).
 func (Slab) Start(d *Data, p []float64) error {
 	if !(d.Thickness > 0) {
-		return fmt.Errorf("%w: the slab model needs the specimen thickness: add `# thickness: 12 mm` or --thickness", ErrBadInput)
+		return fmt.Errorf("%w: the slab model needs the specimen thickness: give it, e.g. a `# thickness: 12 mm` line", ErrBadInput)
 	}
 	if d.Faces != 1 && d.Faces != 2 {
-		return fmt.Errorf("%w: the slab model takes 1 exposed face (far face sealed) or 2 (both faces exposed), not %d: use --faces 1 or --faces 2", ErrBadInput, d.Faces)
+		return fmt.Errorf("%w: the slab model takes 1 exposed face (far face sealed) or 2 (both faces exposed), not %d", ErrBadInput, d.Faces)
 	}
 	for i, x := range d.X {
 		if x < 0 || x > d.Thickness*(1+1e-9) {
-			return fmt.Errorf("%w: point %d at depth %s lies outside the specimen (thickness %s, depths measured from an exposed face): check the thickness (`# thickness:` or --thickness) and the depth unit", ErrBadInput, i+1, fmtLength(x), fmtLength(d.Thickness))
+			return fmt.Errorf("%w: point %d at depth %s lies outside the specimen (thickness %s, depths measured from an exposed face): check the specimen thickness and the depth unit", ErrBadInput, i+1, fmtLength(x), fmtLength(d.Thickness))
 		}
 	}
 	L := slabLength(d)

@@ -189,8 +189,8 @@ func TestSlabBadInput(t *testing.T) {
 		d    Data
 		want string
 	}{
-		{"no thickness", Data{X: x, Y: y, Time: 1, Faces: 2}, "needs the specimen thickness: add `# thickness: 12 mm` or --thickness"},
-		{"faces", Data{X: x, Y: y, Time: 1, Faces: 3, Thickness: 2e-3}, "--faces 1 or --faces 2"},
+		{"no thickness", Data{X: x, Y: y, Time: 1, Faces: 2}, "needs the specimen thickness: give it"},
+		{"faces", Data{X: x, Y: y, Time: 1, Faces: 3, Thickness: 2e-3}, "1 exposed face (far face sealed) or 2"},
 		{"too deep", Data{X: x, Y: y, Time: 1, Faces: 2, Thickness: 0.5e-3}, "outside the specimen"},
 	} {
 		err := (Slab{}).Start(&tc.d, p)

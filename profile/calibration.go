@@ -27,7 +27,63 @@ type Calibration struct {
 	Hardness, Concentration []float64
 	Line                    []int
 
+	// Margin is how far (in the hardness scale) a reading may lie beyond
+	// an end of the calibrated range and still be used, clamped to the end
+	// value (Apply); 0 means DefaultMarginFraction of the range.
+	Margin float64
+
 	f *Monotone // hardness → concentration
+}
+
+// DefaultMarginFraction is the default clamping margin of Apply, as a
+// fraction of the calibrated hardness range: the scatter of single
+// microhardness readings in a homogeneous core is of the order of a few
+// per cent of the hardness (common practice, no source), so a reading
+// just past an end is ordinary scatter, not a different material.
+const DefaultMarginFraction = 0.05
+
+// margin is the clamping margin in the hardness scale.
+func (c *Calibration) margin() float64 {
+	if c.Margin > 0 {
+		return c.Margin
+	}
+	lo, hi := c.f.Domain()
+	return DefaultMarginFraction * (hi - lo)
+}
+
+// SetMargin sets the clamping margin from "10HV", "10" (in the
+// calibration's scale) or "5%" (of the calibrated range); "" keeps the
+// default.
+func (c *Calibration) SetMargin(s string) error {
+	t := strings.TrimSpace(s)
+	if t == "" {
+		return nil
+	}
+	lo, hi := c.f.Domain()
+	if p, ok := strings.CutSuffix(t, "%"); ok {
+		v, err := parseNumber(p, true)
+		if err != nil || v < 0 || v > 100 {
+			return errorf(ErrValue, "calibration margin %s: give a percentage between 0 and 100 of the calibrated range", quote(s))
+		}
+		c.Margin = v / 100 * (hi - lo)
+		if c.Margin == 0 {
+			c.Margin = math.SmallestNonzeroFloat64 // 0 %: no clamping at all
+		}
+		return nil
+	}
+	n := numberPrefix(t)
+	v, err := parseNumber(t[:n], true)
+	if n == 0 || err != nil || v < 0 {
+		return errorf(ErrValue, "calibration margin %s: give a hardness such as 10HV or a share of the range such as 5%%", quote(s))
+	}
+	if unit := strings.TrimSpace(t[n:]); unit != "" && !sameScale(unit, c.Scale) && !strings.EqualFold(unit, c.Scale) {
+		return errorf(ErrUnit, "calibration margin %s is not in the calibration's scale %s", quote(s), c.Scale)
+	}
+	c.Margin = v
+	if c.Margin == 0 {
+		c.Margin = math.SmallestNonzeroFloat64
+	}
+	return nil
 }
 
 // ReadCalibration reads a calibration table from a CSV file (opened
@@ -243,8 +299,12 @@ func (c *Calibration) ToHardness(conc float64) (float64, error) {
 // profile's value unit must be the calibration's scale (HV0.5 and HV0.5;
 // a scale without test force, "HV", matches any HV). Sigma, when given, is
 // carried through the local slope: σc = |dc/dh|·σh (first-order
-// propagation, common practice). A point outside the calibrated range is
-// an *Error of kind ErrRange naming its line.
+// propagation, common practice). A reading beyond an end of the calibrated
+// range by at most the margin (Margin; by default 5 % of the range) is
+// converted as that end and counted in a note; a reading further out is
+// left out of the profile and listed in a note (profile.Note, carried to
+// the fit's warnings). Nothing is extrapolated. A profile none of whose
+// readings can be used is an *Error of kind ErrRange.
 func (c *Calibration) Apply(p *Profile) (Profile, error) {
 	file, sheet := splitSource(p.Source)
 	if !sameScale(p.ValueUnit, c.Scale) {
@@ -253,25 +313,68 @@ func (c *Calibration) Apply(p *Profile) (Profile, error) {
 			Hint: "use a calibration measured on the same hardness scale and test force"}
 	}
 	q := *p
-	q.Value = make([]float64, len(p.Value))
+	q.Depth, q.Value, q.Line, q.Sigma = nil, nil, nil, nil
 	if p.Sigma != nil {
-		q.Sigma = make([]float64, len(p.Sigma))
+		q.Sigma = []float64{}
+	}
+	lo, hi := c.f.Domain()
+	m := c.margin()
+	var clamped, dropped []string
+	where := func(i int) string {
+		at := fmt.Sprintf("%s %s at %s mm", fmtNum(p.Value[i]), c.Scale, fmtNum(p.Depth[i]*1e3))
+		if i < len(p.Line) && p.Line[i] > 0 {
+			at += fmt.Sprintf(" (line %d)", p.Line[i])
+		}
+		return at
 	}
 	for i, h := range p.Value {
-		v, err := c.ToConcentration(h)
+		hc := h
+		switch {
+		case h < lo && lo-h <= m:
+			hc = lo
+			clamped = append(clamped, where(i))
+		case h > hi && h-hi <= m:
+			hc = hi
+			clamped = append(clamped, where(i))
+		case h < lo || h > hi:
+			dropped = append(dropped, where(i))
+			continue
+		}
+		v, err := c.ToConcentration(hc)
 		if err != nil {
-			e := &Error{File: file, Sheet: sheet, Column: p.ValueName,
-				Err:  fmt.Errorf("profile %s at depth %s mm: %w", quote(p.ID), fmtNum(p.Depth[i]*1e3), err),
-				Hint: "extend the calibration to cover this hardness, or remove the point"}
-			if i < len(p.Line) {
-				e.Line = p.Line[i]
-			}
-			return Profile{}, e
+			return Profile{}, &Error{File: file, Sheet: sheet, Column: p.ValueName, Err: err}
 		}
-		q.Value[i] = v
+		q.Depth = append(q.Depth, p.Depth[i])
+		q.Value = append(q.Value, v)
+		if i < len(p.Line) {
+			q.Line = append(q.Line, p.Line[i])
+		}
 		if p.Sigma != nil {
-			q.Sigma[i] = math.Abs(c.f.Deriv(h)) * p.Sigma[i]
+			q.Sigma = append(q.Sigma, math.Abs(c.f.Deriv(hc))*p.Sigma[i])
 		}
+	}
+	list := func(s []string) string {
+		if len(s) > 8 {
+			return strings.Join(s[:8], "; ") + fmt.Sprintf("; and %d more", len(s)-8)
+		}
+		return strings.Join(s, "; ")
+	}
+	rng := fmt.Sprintf("%s–%s %s", fmtNum(lo), fmtNum(hi), c.Scale)
+	q.Notes = append([]Note(nil), p.Notes...)
+	if len(clamped) > 0 {
+		q.Notes = append(q.Notes, Note{Code: "calibration-clamped", Message: fmt.Sprintf(
+			"%d hardness reading(s) lay beyond the calibrated range %s by at most the margin %s %s and were converted as the nearest end value: %s. Such a point stands for the end of the calibration, not for its own reading.",
+			len(clamped), rng, fmtNum(m), c.Scale, list(clamped))})
+	}
+	if len(dropped) > 0 {
+		q.Notes = append(q.Notes, Note{Code: "calibration-out-of-range", Message: fmt.Sprintf(
+			"%d hardness reading(s) lay beyond the calibrated range %s by more than the margin %s %s and were left out of the fit (no extrapolation): %s. Extend the calibration to cover them.",
+			len(dropped), rng, fmtNum(m), c.Scale, list(dropped))})
+	}
+	if len(q.Depth) == 0 {
+		return Profile{}, &Error{File: file, Sheet: sheet, Column: p.ValueName, Err: errorf(ErrRange,
+			"profile %s: every hardness reading lies beyond the calibrated range %s by more than the margin %s %s", quote(p.ID), rng, fmtNum(m), c.Scale),
+			Hint: "use a calibration measured over the hardness range of this traverse"}
 	}
 	q.ValueName, q.ValueUnit, q.Quantity = c.ConcentrationName, c.Unit, c.Quantity
 	q.Meta = maps.Clone(p.Meta)

@@ -198,11 +198,37 @@ func TestCalibrationApply(t *testing.T) {
 		q.ValueUnit != "wt%" || q.Quantity != "C" || q.Meta["calibration"] != "cal.csv" || p.Value[0] != 700 || p.Meta["calibration"] != "" {
 		t.Errorf("applied: %+v (original %+v)", q, p)
 	}
+	// A core reading a little below the lowest calibration point (190 HV,
+	// within 5 % of the 600 HV range = 30 HV) is clamped to 200 HV with a
+	// note; one far below (150 HV) is left out with a note; none is
+	// extrapolated.
+	p.Value[1] = 190
+	q, err = c.Apply(&p)
+	if err != nil || !sameFloats(q.Value, []float64{0.6, 0.1}) || len(q.Notes) != 1 || q.Notes[0].Code != "calibration-clamped" ||
+		!strings.Contains(q.Notes[0].Message, "190 HV0.5 at 0.2 mm (line 5)") || !strings.Contains(q.Notes[0].Message, "margin 30 HV0.5") {
+		t.Errorf("clamped: %v %+v", err, q)
+	}
 	p.Value[1] = 150
+	q, err = c.Apply(&p)
+	if err != nil || len(q.Value) != 1 || q.Line[0] != 4 || len(q.Notes) != 1 || q.Notes[0].Code != "calibration-out-of-range" ||
+		!strings.Contains(q.Notes[0].Message, "(line 5)") || len(q.Sigma) != 1 {
+		t.Errorf("left out: %v %+v", err, q)
+	}
+	if err := c.SetMargin("60HV0.5"); err != nil {
+		t.Fatal(err)
+	}
+	if q, _ = c.Apply(&p); len(q.Value) != 2 || q.Value[1] != 0.1 {
+		t.Errorf("margin 60 HV: %+v", q)
+	}
+	for _, bad := range []string{"-5%", "abc", "10HRC", "120%"} {
+		if err := c.SetMargin(bad); err == nil {
+			t.Errorf("margin %q accepted", bad)
+		}
+	}
+	p.Value[0], p.Value[1] = 50, 1000
 	_, err = c.Apply(&p)
-	var e *Error
-	if !errors.As(err, &e) || !errors.Is(err, ErrRange) || e.Line != 5 || !strings.Contains(err.Error(), "h.csv:5:") {
-		t.Errorf("out of range: %v", err)
+	if !errors.Is(err, ErrRange) {
+		t.Errorf("nothing usable: %v", err)
 	}
 	p.ValueUnit = "HV10"
 	if _, err := c.Apply(&p); !errors.Is(err, ErrUnit) {

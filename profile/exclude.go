@@ -20,7 +20,7 @@ import (
 //	# fickfit exclusions
 //	file,profile,depth_um,line,reason
 //	F7-2291-880-1.csv,F7-2291-880-1,50,9,oxide layer at the surface
-//	lims-export-HV-2307.csv,F7-2307-940-2,,,furnace door opened during the hold
+//	lims-export-BAR-2307.csv,F7-2307-940-2,,,furnace door opened during the hold
 //
 // Columns, by header (case-insensitive, in any order): profile (or id,
 // specimen) is required; depth_<unit> is required as a column (any length

@@ -162,7 +162,7 @@ func TestExclusionsErrors(t *testing.T) {
 }
 
 func TestReadBytesMatchesRead(t *testing.T) {
-	for _, f := range []string{"../testdata/demo/lims-export-HV-2307.csv", "../testdata/demo/coupons/F7-2291-880-1.csv"} {
+	for _, f := range []string{"../testdata/demo/lims-export-BAR-2307.csv", "../testdata/demo/coupons/F7-2291-880-1.csv"} {
 		b, err := os.ReadFile(f)
 		if err != nil {
 			t.Fatal(err)

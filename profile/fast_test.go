@@ -179,6 +179,8 @@ func randomTable(rng *rand.Rand) []byte {
 					cells[c] = "\u00a0" + cells[c]
 				case 6:
 					cells[c] = "−" + cells[c]
+				case 7:
+					cells[c] = []string{"<0.01", "n.d.", "< 0,05"}[rng.IntN(3)] // below a detection limit
 				}
 			}
 			b.WriteString(strings.Join(cells, sep))

@@ -41,6 +41,13 @@ type Profile struct {
 	// including ones the reader does not interpret, e.g. "unknown" or a
 	// grouping column used with --by.
 	Meta map[string]string
+
+	// BelowLimit lists the values written below a detection limit ("<0.01",
+	// "n.d."), left out of Depth and Value.
+	BelowLimit []BelowLimit
+	// Notes are remarks on the reading or conversion that the profile's
+	// results carry as warnings.
+	Notes []Note
 }
 
 // Len returns the number of points.

@@ -232,7 +232,8 @@ func (t *table) depthHint() string {
 		}
 		if _, u := splitHeader(c.name); u != "" {
 			if _, err := LengthUnit(u); err == nil {
-				return fmt.Sprintf("rename %s to %s (the depth column is named depth_<unit> or distance_<unit>)", quote(c.name), quote("depth_"+u))
+				return fmt.Sprintf("rename %s to %s for a depth measured from the surface, or to %s for a position across a diffusion couple's interface (which may be negative)",
+					quote(c.name), quote("depth_"+u), quote("position_"+u))
 			}
 		}
 	}
@@ -399,7 +400,7 @@ func (t *table) decideValue(cells []string, line int) error {
 			}
 			continue
 		}
-		if _, err := parseNumber(cellAt(cells, i), t.comma); err == nil || c.valueUnit != "" {
+		if _, err := parseNumber(cellAt(cells, i), t.comma); err == nil || c.valueUnit != "" || IsBelowLimit(cellAt(cells, i)) {
 			cand = append(cand, i)
 		}
 	}
@@ -588,6 +589,12 @@ func (t *table) addPoint(b *building, cells []string, line int) error {
 		return t.org.errAt(line, t.depthCol, t.cols[t.depthCol].name,
 			errorf(ErrValue, "depth %s is negative", fmtNum(d)),
 			"depth is measured from the surface and cannot be negative; check the sign (positions across a couple's interface go in a column named position_<unit>)")
+	}
+	if s := cellAt(cells, t.valueCol); t.kindAt(t.valueCol) != kindNumber && IsBelowLimit(s) {
+		// Not a number: listed, left out of the points, never read as one.
+		b.p.BelowLimit = append(b.p.BelowLimit, BelowLimit{Depth: t.cols[t.depthCol].size.si(d), Text: clip(strings.TrimSpace(s)),
+			Line: line, Cell: t.org.cell(line, t.valueCol)})
+		return nil
 	}
 	v, err := t.number(cells, t.valueCol, line)
 	if err != nil {
@@ -780,6 +787,9 @@ func (t *table) profile(b *building) Profile {
 	p.Across = t.cols[t.depthCol].signed
 	if p.Quantity == "" {
 		p.Quantity = v.quantity
+	}
+	if len(p.BelowLimit) > 0 {
+		p.Notes = append(p.Notes, belowLimitNote(&p))
 	}
 	return p
 }

@@ -15,6 +15,9 @@ import (
 // (arrhenius.LineJSON) or {"by", "groups": […]}.
 type Arrhenius struct {
 	Report *arrhenius.Report
+	// NotUsed are the inputs the lines were fitted without (--keep-going);
+	// written as "not_used" (JSON), a not_used table (CSV) and a list (text).
+	NotUsed []NotUsed
 }
 
 func (a Arrhenius) report() *arrhenius.Report {
@@ -32,23 +35,31 @@ func (a Arrhenius) WriteJSON(w io.Writer) error {
 		return writeJSON(w, struct {
 			envelope
 			arrhenius.LineJSON
-		}{head, r.Lines[0].JSON()})
+			NotUsed []NotUsed `json:"not_used,omitempty"`
+		}{head, r.Lines[0].JSON(), a.NotUsed})
 	}
 	return writeJSON(w, struct {
 		envelope
-		By     string           `json:"by,omitempty"`
-		Groups []arrhenius.Line `json:"groups"`
-	}{head, r.By, nonNil(r.Lines)})
+		By      string           `json:"by,omitempty"`
+		Groups  []arrhenius.Line `json:"groups"`
+		NotUsed []NotUsed        `json:"not_used,omitempty"`
+	}{head, r.By, nonNil(r.Lines), a.NotUsed})
 }
 
 // WriteCSV writes the tables line, point and d_on_line.
 func (a Arrhenius) WriteCSV(w io.Writer) error {
-	return writeCSVTables(w, func(c *viewCSV) { viewReportCSV(c, a.report()) })
+	return writeCSVTables(w, func(c *viewCSV) {
+		viewReportCSV(c, a.report())
+		viewNotUsedCSV(c, a.NotUsed)
+	})
 }
 
 // WriteText writes each line for people, then the cautions of Arrhenius lines.
 func (a Arrhenius) WriteText(w io.Writer, o TextOptions) error {
-	return writeTextWithCautions(w, o, viewLineCautions, false, func(bw *bufio.Writer) { viewReportText(bw, a.report(), o) })
+	return writeTextWithCautions(w, o, viewLineCautions, false, func(bw *bufio.Writer) {
+		viewReportText(bw, a.report(), o)
+		writeNotUsedText(bw, "Not used:", a.NotUsed, o.width())
+	})
 }
 
 // viewLineCautions accompany every Arrhenius line.
@@ -108,22 +119,26 @@ func viewReportCSV(c *viewCSV, r *arrhenius.Report) {
 		c.add("line", append(row, viewCodes(l.Warnings))...)
 	}
 	c.table("point", "group", "id", "lot", "source", "temperature_K", "temperature_sigma_K",
-		"D_m2_s", "D_ci_lo_m2_s", "D_ci_hi_m2_s", "stderr_lnD", "D_line_m2_s", "residual_lnD", "weight", "standardized_residual")
+		"D_m2_s", "D_ci_lo_m2_s", "D_ci_hi_m2_s", "stderr_lnD", "D_line_m2_s", "residual_lnD", "weight", "standardized_residual",
+		"leverage", "studentized_residual", "cooks_distance")
 	for i := range r.Lines {
 		l := &r.Lines[i]
 		for _, p := range l.Points {
 			ci := p.Interval(l.Level)
 			c.add("point", l.Group, p.ID, p.Lot, p.Source, csvNumber(p.T), csvNumber(p.SigmaT),
 				csvNumber(math.Exp(p.LnD)), csvNumber(ci.Lo), csvNumber(ci.Hi), csvNumber(math.Sqrt(p.VarLnD)),
-				csvNumber(math.Exp(p.Fitted)), csvNumber(p.Residual), csvNumber(p.Weight), csvNumber(p.Residual*math.Sqrt(p.Weight)))
+				csvNumber(math.Exp(p.Fitted)), csvNumber(p.Residual), csvNumber(p.Weight), csvNumber(p.Residual*math.Sqrt(p.Weight)),
+				csvNumber(p.Leverage), csvNumber(p.Studentized), csvNumber(p.Cook))
 		}
 	}
-	c.table("d_on_line", "group", "temperature_K", "D_m2_s", "D_ci_lo_m2_s", "D_ci_hi_m2_s", "ci_level")
+	c.table("d_on_line", "group", "temperature_K", "D_m2_s", "D_ci_lo_m2_s", "D_ci_hi_m2_s", "ci_level", "D_pi_lo_m2_s", "D_pi_hi_m2_s")
 	for i := range r.Lines {
 		l := &r.Lines[i]
 		for _, T := range viewDAtTemperatures(l, Kelvin) {
 			d, ci := l.DAt(T)
-			c.add("d_on_line", l.Group, csvNumber(T), csvNumber(d), csvNumber(ci.Lo), csvNumber(ci.Hi), csvNumber(l.Level))
+			_, pi := l.PredictAt(T)
+			c.add("d_on_line", l.Group, csvNumber(T), csvNumber(d), csvNumber(ci.Lo), csvNumber(ci.Hi), csvNumber(l.Level),
+				csvNumber(pi.Lo), csvNumber(pi.Hi))
 		}
 	}
 }
@@ -134,6 +149,9 @@ var viewLineTargets = map[string]string{
 	"scatter-not-scaled":               "fit",
 	"temperature-uncertainty-ignored":  "budget",
 	"effective-variance-not-converged": "budget",
+	"q-unusual":                        "Q",
+	"q-interval-below-zero":            "Q",
+	"suspect-point":                    "points",
 }
 
 func viewGroupName(l *arrhenius.Line) string {
@@ -239,8 +257,8 @@ func viewLineText(t viewText, l *arrhenius.Line) {
 	t.warn(by[""])
 
 	// Points.
-	tb := Table{Header: []string{"id", "T", "D (m²/s)", Level(l.Level) + " CI", "residual ln D", "in σ"},
-		Align: []Align{Left, Left, Right, Left, Right, Right}, Indent: "  "}
+	tb := Table{Header: []string{"id", "T", "D (m²/s)", Level(l.Level) + " CI", "residual ln D", "in σ", "leverage", "studentized", "Cook's D"},
+		Align: []Align{Left, Left, Right, Left, Right, Right, Right, Right, Right}, Indent: "  "}
 	for _, p := range l.Points {
 		d := math.Exp(p.LnD)
 		ci := p.Interval(l.Level)
@@ -257,10 +275,17 @@ func viewLineText(t viewText, l *arrhenius.Line) {
 		if p.Weight > 0 {
 			z = Number(p.Residual*math.Sqrt(p.Weight), -2)
 		}
-		tb.Add(p.ID, temp, Number(d, last), civ, Number(p.Residual, -3), z)
+		diag := func(v float64, last int) string {
+			if !finite(v) {
+				return ""
+			}
+			return Number(v, last)
+		}
+		tb.Add(p.ID, temp, Number(d, last), civ, Number(p.Residual, -3), z, diag(p.Leverage, -2), diag(p.Studentized, -1), diag(p.Cook, -2))
 	}
 	t.w.WriteString("\n")
 	tb.WriteTo(t.w)
+	t.warn(by["points"])
 
 	// D on the line.
 	ts := viewDAtTemperatures(l, u)
@@ -270,20 +295,27 @@ func viewLineText(t viewText, l *arrhenius.Line) {
 		if !l.HasCI {
 			band = "no band: fewer than three temperatures"
 		}
+		if l.HasCI {
+			band += "; a single new part: prediction interval"
+		}
 		t.line("  ", "D on the line ("+band+")")
-		dt := Table{Header: []string{"T", "D (m²/s)", Level(l.Level) + " CI"}, Align: []Align{Left, Right, Left}, Indent: "  "}
+		dt := Table{Header: []string{"T", "D (m²/s)", Level(l.Level) + " CI (mean line)", Level(l.Level) + " PI (single part)"}, Align: []Align{Left, Right, Left, Left}, Indent: "  "}
 		for _, T := range ts {
 			d, ci := l.DAt(T)
+			_, pi := l.PredictAt(T)
 			last := t.n().lastDigit(d, ci)
-			civ := ""
+			civ, piv := "", ""
 			if l.HasCI {
 				civ = IntervalAt(d, ci, last)
+			}
+			if finite(pi.Lo) && finite(pi.Hi) {
+				piv = IntervalAt(d, pi, last)
 			}
 			val := Number(d, last)
 			if alt := t.n().dAlternative(d, ci); alt != "" {
 				val += " (" + alt + ")"
 			}
-			dt.Add(Temperature(T, u), val, civ)
+			dt.Add(Temperature(T, u), val, civ, piv)
 		}
 		dt.WriteTo(t.w)
 	}

@@ -116,6 +116,8 @@ var viewSolutionTargets = map[string]string{
 	"observation-without-uncertainty": "Dt",
 	"calibration-without-uncertainty": "calibration",
 	"independent-D0-Q":                "calibration",
+	"part-scatter":                    "calibration",
+	"reference-literature":            "calibration",
 }
 
 func viewSolutionsText(w *bufio.Writer, ss []*arrhenius.Solution, o TextOptions) {
@@ -131,6 +133,9 @@ func viewSolutionText(t viewText, s *arrhenius.Solution) {
 	head := "Back-calculated " + what
 	if s.ID != "" {
 		head += ": part " + s.ID
+	}
+	if s.Calibration.Method == "reference" {
+		head += " — from literature values, not this laboratory's calibration"
 	}
 	t.line("", head)
 	by := viewByCode(s.Warnings, viewSolutionTargets)

@@ -50,6 +50,15 @@ func viewCalibrationCells(cal arrhenius.Calibration) []string {
 		csvNumber(cal.Cov[0][0]), csvNumber(cal.Cov[0][1]), csvNumber(cal.Cov[1][1]), viewInt(cal.DOF), tmin, tmax}
 }
 
+// viewPICells writes the prediction interval of a single part (two
+// cells, empty when there is none).
+func viewPICells(q *arrhenius.Quantity) []string {
+	if q == nil || q.PI == nil {
+		return []string{"", ""}
+	}
+	return []string{csvNumber(q.PI.Lo), csvNumber(q.PI.Hi)}
+}
+
 // viewQuantityCells writes value, ci_lo, ci_hi, given, ci_method.
 func viewQuantityCells(q arrhenius.Quantity) []string {
 	if q.Given {
@@ -97,5 +106,8 @@ func (t viewText) calibration(cal arrhenius.Calibration, ws []fit.Warning) {
 		parts = append(parts, "based on "+viewTempRange(cal.TMin, cal.TMax, t.o.TempUnit, dec))
 	}
 	writeParts(t.w, strings.Repeat(" ", viewLabel+2), parts, "; ", t.o.width())
+	if cal.Spread != "" {
+		writeWrapped(t.w, strings.Repeat(" ", viewLabel+2), Temps(cal.Spread, t.o.TempUnit), t.o.width())
+	}
 	t.warn(ws)
 }

@@ -9,6 +9,7 @@ import (
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -21,6 +22,7 @@ type campaignDoc struct {
 	Options         campaign.AuditOptions `json:"options"`
 	Fits            []*fit.Result         `json:"fits"`
 	Failed          []fit.Failure         `json:"failed"`
+	NotRead         []NotUsed             `json:"not_read,omitempty"`
 	Arrhenius       arrheniusDoc          `json:"arrhenius"`
 	Comparison      *arrhenius.Comparison `json:"lot_comparison"`
 	ComparisonError string                `json:"lot_comparison_error,omitempty"`
@@ -44,12 +46,27 @@ type arrheniusDoc struct {
 // Arrhenius lines per group, the lot comparison, the back-calculated parts,
 // notes and cautions.
 func (res *CampaignReport) WriteJSON(w io.Writer) error {
+	// The campaign's sentences may hold temperature marks: kelvin in JSON.
+	lineErrs := []campaign.GroupFailure{}
+	for _, g := range res.LineErrors {
+		g.Error = tempfmt.Plain(g.Error)
+		lineErrs = append(lineErrs, g)
+	}
+	parts := []campaign.Part{}
+	for _, p := range res.Parts {
+		p.Error = tempfmt.Plain(p.Error)
+		parts = append(parts, p)
+	}
+	notes := []string{}
+	for _, n := range res.Notes {
+		notes = append(notes, tempfmt.Plain(n))
+	}
 	doc := campaignDoc{
 		Version: res.Version, Inputs: nonNil(res.Inputs), Options: res.audit(),
-		Fits: []*fit.Result{}, Failed: nonNil(res.Failed),
-		Arrhenius:  arrheniusDoc{Method: res.Method, By: res.By, Groups: []arrhenius.Line{}, Failed: nonNil(res.LineErrors)},
-		Comparison: res.Comparison, ComparisonError: res.ComparisonError,
-		Backcalc: nonNil(res.Parts), Notes: nonNil(res.Notes), Cautions: nonNil(res.Cautions),
+		Fits: []*fit.Result{}, Failed: nonNil(res.Failed), NotRead: NotUsedFromSkipped(res.NotRead),
+		Arrhenius:  arrheniusDoc{Method: res.Method, By: res.By, Groups: []arrhenius.Line{}, Failed: lineErrs},
+		Comparison: res.Comparison, ComparisonError: tempfmt.Plain(res.ComparisonError),
+		Backcalc: parts, Notes: notes, Cautions: nonNil(res.Cautions),
 		Exclusions: res.excludedDoc(),
 	}
 	if res.Lines != nil {
@@ -86,7 +103,7 @@ func (res *CampaignReport) Backcalc() Backcalc {
 			b.Solutions = append(b.Solutions, p.Solution)
 			continue
 		}
-		b.Failed = append(b.Failed, fit.Failure{ID: p.ID, Lot: p.Lot, Kind: p.Kind, Error: p.Error})
+		b.Failed = append(b.Failed, fit.Failure{ID: p.ID, Lot: p.Lot, Kind: p.Kind, Error: tempfmt.Plain(p.Error)})
 	}
 	return b
 }
@@ -108,7 +125,7 @@ func PartText(p campaign.Part, u TempUnit) string { return numFmt{}.partText(p, 
 
 func (n numFmt) partText(p campaign.Part, u TempUnit) string {
 	if p.Solution == nil {
-		return "not back-calculated: " + p.Error
+		return "not back-calculated: " + Temps(p.Error, u)
 	}
 	s := p.Solution
 	if p.SolveFor == "time" {
@@ -116,6 +133,25 @@ func (n numFmt) partText(p campaign.Part, u TempUnit) string {
 	}
 	return "T = " + n.temperatureEstimate(s.Temperature.Value, s.Temperature.CI, s.Level, u) + " for " + Duration(s.Time.Value)
 }
+
+// NotUsed lists everything the campaign's results were computed without:
+// inputs not read, profiles not fitted, profiles left out of the
+// calibration (from the notes) and parts not back-calculated.
+func (res *CampaignReport) NotUsed() []NotUsed {
+	out := NotUsedFromSkipped(res.NotRead)
+	out = append(out, NotUsedFromFailures(res.Failed)...)
+	for _, p := range res.Parts {
+		if p.Solution == nil {
+			out = append(out, NotUsed{ID: p.ID, Reason: "not back-calculated: " + p.Error})
+		}
+	}
+	return out
+}
+
+// LeftOut counts the inputs the results were computed without (not read,
+// not fitted, parts not back-calculated): the exit status of a campaign
+// run with --keep-going says whether there were any.
+func (res *CampaignReport) LeftOut() int { return len(res.NotUsed()) }
 
 // WriteSummary writes the short text summary for the terminal: a table of
 // the profiles, the Arrhenius lines, the lot comparison, the back-calculated
@@ -128,7 +164,8 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 		res.Version, len(res.Profiles), nfiles, len(res.Results), len(res.Failed))
 	level := res.Options.Level
 	tb := Table{Header: []string{"id", "lot", "T", "t", "model", "D (m²/s)", Level(level) + " CI", "R²", "warnings"},
-		Align: []Align{Left, Left, Right, Right, Left, Right, Left, Right, Left}, Indent: "  "}
+		Align: []Align{Left, Left, Right, Right, Left, Right, Left, Right, Left, Left}, Indent: "  "}
+	caseCol := false
 	for _, r := range res.Results {
 		d := r.Param("D")
 		dv, ci := "", ""
@@ -144,6 +181,18 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 			codes = append(codes, wn.Code)
 		}
 		tb.Add(r.ID, r.Lot, TemperatureShort(r.Temperature, u), Duration(r.Time), r.Model, dv, ci, r2Text(r.Stats.R2), strings.Join(codes, ", "))
+		if r.CaseDepth != nil {
+			caseCol = true
+			tb.Rows[len(tb.Rows)-1] = append(tb.Rows[len(tb.Rows)-1], depthShort(r.CaseDepth)+" at "+r.CaseDepth.Threshold)
+		}
+	}
+	if caseCol {
+		tb.Header = append(tb.Header, "case depth, "+Level(level)+" CI")
+		for i := range tb.Rows {
+			for len(tb.Rows[i]) < len(tb.Header) {
+				tb.Rows[i] = append(tb.Rows[i], "")
+			}
+		}
 	}
 	bw.WriteString("Profiles\n")
 	tb.WriteTo(bw)
@@ -157,22 +206,26 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 			writeParts(bw, "  ", []string{groupLabel(*l) + ":", "D0 = " + o.num().d0Text(l) + ";", "Q = " + o.num().qText(l.Q, l.QCI(), l.Level) + ";",
 				fmt.Sprintf("%d points at %d temperatures;", len(l.Points), l.NTemperatures), "Birge ratio " + Number(l.BirgeRatio, -2)}, " ", o.width())
 			for _, wn := range l.Warnings {
-				writeWrapped(bw, "      ! ", wn.Message, o.width())
+				writeWrapped(bw, "      ! ", warnText(wn, u), o.width())
 			}
 		}
 	}
 	for _, f := range res.LineErrors {
-		writeWrapped(bw, "  no line for "+f.Group+": ", f.Error, o.width())
+		writeWrapped(bw, "  no line for "+f.Group+": ", Temps(f.Error, u), o.width())
 	}
 	if c := res.Comparison; c != nil {
 		fmt.Fprintf(bw, "\nLot comparison by %s\n", c.By)
-		writeWrapped(bw, "  ", c.Verdict, o.width())
+		writeWrapped(bw, "  ", Temps(c.Verdict, u), o.width())
+		for _, p := range c.Pairs {
+			writeWrapped(bw, "  ", fmt.Sprintf("%s – %s: D(%s) / D(%s) = %s, p = %s, adjusted p = %s (Holm): %s", p.A, p.B, p.B, p.A,
+				ratioText(p.Ratio, p.CI, c.Level), viewP(p.P), viewP(p.PAdjusted), pairVerdict(p)), o.width())
+		}
 		for _, r := range c.Ratios {
 			writeWrapped(bw, "  ", fmt.Sprintf("D(%s) / D(%s) at %s = %s, p = %s", r.Group, r.Reference, Temperature(r.TRef, u),
 				ratioText(r.Value, r.CI, c.Level), Sig(r.P, 2)), o.width())
 		}
 	} else if res.ComparisonError != "" {
-		writeWrapped(bw, "\nLot comparison not possible: ", res.ComparisonError, o.width())
+		writeWrapped(bw, "\nLot comparison not possible: ", Temps(res.ComparisonError, u), o.width())
 	}
 	if len(res.Parts) > 0 {
 		bw.WriteString("\nBack-calculated parts (marked unknown; not used for the calibration)\n")
@@ -184,15 +237,16 @@ func (res *CampaignReport) WriteSummary(w io.Writer, o TextOptions) error {
 			writeWrapped(bw, head+": ", o.num().partText(p, u), o.width())
 			if p.Solution != nil {
 				for _, wn := range p.Solution.Warnings {
-					writeWrapped(bw, "      ! ", wn.Message, o.width())
+					writeWrapped(bw, "      ! ", warnText(wn, u), o.width())
 				}
 			}
 		}
 	}
+	writeNotUsedText(bw, "Not read (left out)", NotUsedFromSkipped(res.NotRead), o.width())
 	if len(res.Notes) > 0 {
 		bw.WriteString("\nNotes\n")
 		for _, n := range res.Notes {
-			writeWrapped(bw, "  - ", n, o.width())
+			writeWrapped(bw, "  - ", Temps(n, u), o.width())
 		}
 	}
 	if !o.NoCautions {

@@ -6,12 +6,15 @@ import (
 	"strings"
 
 	"github.com/fickfit/fickfit/arrhenius"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 )
 
 // Comparison is the Document of a lot comparison (fickfit compare). Its
 // JSON is the comparison's wire form (arrhenius.ComparisonJSON).
 type Comparison struct {
 	Comparison *arrhenius.Comparison
+	// NotUsed are the inputs the comparison was made without (--keep-going).
+	NotUsed []NotUsed
 }
 
 func (c Comparison) comparison() *arrhenius.Comparison {
@@ -26,17 +29,24 @@ func (c Comparison) WriteJSON(w io.Writer) error {
 	return writeJSON(w, struct {
 		envelope
 		arrhenius.ComparisonJSON
-	}{envelope{versionOr("")}, c.comparison().JSON()})
+		NotUsed []NotUsed `json:"not_used,omitempty"`
+	}{envelope{versionOr("")}, c.comparison().JSON(), c.NotUsed})
 }
 
 // WriteCSV writes the tables comparison, test and ratio.
 func (c Comparison) WriteCSV(w io.Writer) error {
-	return writeCSVTables(w, func(t *viewCSV) { viewComparisonCSV(t, c.comparison()) })
+	return writeCSVTables(w, func(t *viewCSV) {
+		viewComparisonCSV(t, c.comparison())
+		viewNotUsedCSV(t, c.NotUsed)
+	})
 }
 
 // WriteText writes the comparison for people, then its cautions.
 func (c Comparison) WriteText(w io.Writer, o TextOptions) error {
-	return writeTextWithCautions(w, o, viewCompareCautions, false, func(bw *bufio.Writer) { viewComparisonText(bw, c.comparison(), o) })
+	return writeTextWithCautions(w, o, viewCompareCautions, false, func(bw *bufio.Writer) {
+		viewComparisonText(bw, c.comparison(), o)
+		writeNotUsedText(bw, "Not used:", c.NotUsed, o.width())
+	})
 }
 
 // viewCompareCautions accompany every lot comparison.
@@ -53,7 +63,7 @@ func viewComparisonCSV(c *viewCSV, cmp *arrhenius.Comparison) {
 		np[i] = viewInt(n)
 	}
 	c.add("comparison", cmp.By, strings.Join(cmp.Groups, ";"), strings.Join(np, ";"), viewBool(cmp.Differ),
-		csvNumber(cmp.PMain), csvNumber(cmp.Alpha), csvNumber(cmp.Level), csvNumber(cmp.Scale), cmp.Verdict, viewCodes(cmp.Warnings))
+		csvNumber(cmp.PMain), csvNumber(cmp.Alpha), csvNumber(cmp.Level), csvNumber(cmp.Scale), tempfmt.Plain(cmp.Verdict), viewCodes(cmp.Warnings))
 	c.table("test", "test", "description", "F", "df1", "df2", "p", "rss_reduced", "rss_full")
 	for _, t := range cmp.Tests {
 		c.add("test", t.Name, t.Description, csvNumber(t.F), viewInt(t.DF1), viewInt(t.DF2), csvNumber(t.P),
@@ -63,6 +73,13 @@ func viewComparisonCSV(c *viewCSV, cmp *arrhenius.Comparison) {
 	for _, r := range cmp.Ratios {
 		c.add("ratio", r.Group, r.Reference, csvNumber(r.TRef), csvNumber(r.Value), csvNumber(r.CI.Lo), csvNumber(r.CI.Hi),
 			csvNumber(r.P), r.Model)
+	}
+	if len(cmp.Pairs) > 0 {
+		c.table("pair", "a", "b", "temperature_K", "D_ratio_b_to_a", "ci_lo", "ci_hi", "p", "p_adjusted", "differ", "model")
+		for _, p := range cmp.Pairs {
+			c.add("pair", p.A, p.B, csvNumber(p.TRef), csvNumber(p.Ratio), csvNumber(p.CI.Lo), csvNumber(p.CI.Hi),
+				csvNumber(p.P), csvNumber(p.PAdjusted), viewBool(p.Differ), p.Model)
+		}
 	}
 }
 
@@ -78,7 +95,7 @@ func viewComparisonText(w *bufio.Writer, c *arrhenius.Comparison, o TextOptions)
 	}
 	t.line("", "Comparison by "+c.By+": "+strings.Join(groups, ", "))
 	w.WriteString("\n")
-	t.line("  Verdict: ", c.Verdict)
+	t.line("  Verdict: ", Temps(c.Verdict, u))
 	w.WriteString("\n")
 	t.line("  ", "Extra-sum-of-squares F-tests at the "+trimmed(100*c.Alpha, 2)+" % significance level (the first is the main test)")
 	tb := Table{Header: []string{"test", "F", "df", "p"}, Align: []Align{Left, Right, Left, Right}, Indent: "  "}
@@ -97,10 +114,29 @@ func viewComparisonText(w *bufio.Writer, c *arrhenius.Comparison, o TextOptions)
 		}
 		rt.WriteTo(w)
 	}
+	if len(c.Pairs) > 0 {
+		w.WriteString("\n")
+		t.line("  ", "Every pair at "+Temperature(c.Pairs[0].TRef, u)+": ratio of D (second to first), p-values adjusted for "+viewInt(len(c.Pairs))+" comparisons by Holm's method; each interval is for its pair alone")
+		pt := Table{Header: []string{"pair", "D ratio", Level(c.Level) + " CI", "p", "p adjusted", "verdict"},
+			Align: []Align{Left, Right, Left, Right, Right, Left}, Indent: "  "}
+		for _, p := range c.Pairs {
+			last := LastDigit(p.Ratio, p.CI)
+			pt.Add(p.A+" – "+p.B, Number(p.Ratio, last), IntervalAt(p.Ratio, p.CI, last), viewP(p.P), viewP(p.PAdjusted), pairVerdict(p))
+		}
+		pt.WriteTo(w)
+	}
 	if c.Scale > 1 {
 		t.line("  ", "The covariance of the ratios was scaled by "+Sig(c.Scale, 3)+" (the squared Birge ratio of the most general model): the points scatter more than their stated errors.")
 	}
 	for _, wn := range c.Warnings {
-		t.line("  ! ", wn.Message)
+		t.line("  ! ", warnText(wn, u))
 	}
+}
+
+// pairVerdict says in words what a pair's adjusted test found.
+func pairVerdict(p arrhenius.Pair) string {
+	if p.Differ {
+		return "differ"
+	}
+	return "no significant difference"
 }

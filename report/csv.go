@@ -62,6 +62,10 @@ func (f Fits) WriteCSV(w io.Writer) error {
 	for _, fl := range f.Failed {
 		buf = t.appendFailed(buf, fl)
 	}
+	// Inputs not read (--keep-going): no id, the file as source.
+	for _, n := range f.NotRead {
+		buf = t.appendNotRead(buf, n)
+	}
 	if _, err := bw.Write(buf); err != nil {
 		return err
 	}
@@ -69,10 +73,12 @@ func (f Fits) WriteCSV(w io.Writer) error {
 }
 
 // fitTable is the layout of the fit results table (Fits.WriteCSV): the
-// header and the parameters other than D, in column order.
+// header, the parameters other than D in column order, and the depth
+// kinds with columns.
 type fitTable struct {
 	header []string
 	others []string
+	depths []depthColumn
 }
 
 // newFitTable lays out the table for the parameters of rs: every
@@ -92,6 +98,14 @@ func newFitTable(rs []*fit.Result) *fitTable {
 	}
 	t.header = append(t.header, "value_unit", "n", "dof", "rss", "rmse", "r2", "aicc", "chi2_red", "chi2_p", "runs_p", "cond",
 		"ci_level", "ci_method", "covariance", "converged", "source", "material", "warnings", "error")
+	// Case and decarburization depths, when any profile has one: the
+	// criterion as given, the level searched for (value_unit), the depth
+	// from the fitted curve with its interval, and from the points.
+	t.depths = depthColumns(rs)
+	for _, d := range t.depths {
+		t.header = append(t.header, d.prefix+"_threshold", d.prefix+"_level", d.prefix+"_depth_m", d.prefix+"_depth_ci_lo_m",
+			d.prefix+"_depth_ci_hi_m", d.prefix+"_depth_from_data_m")
+	}
 	return t
 }
 
@@ -151,7 +165,35 @@ func (t *fitTable) appendRow(buf []byte, r *fit.Result) []byte {
 		}
 		buf = appendCSVField(buf, strings.Join(codes, ";"))
 	}
-	return append(buf, ",\n"...) // the error column is empty
+	buf = append(buf, ',') // the error column is empty
+	for _, d := range t.depths {
+		e := d.of(r)
+		if e == nil {
+			buf = append(buf, ",,,,,,"...)
+			continue
+		}
+		buf = appendCSVField(append(buf, ','), e.Threshold)
+		for _, v := range [...]float64{e.Level, e.Depth, e.CI.Lo, e.CI.Hi, e.FromData} {
+			buf = appendCSVNumber(append(buf, ','), v)
+		}
+	}
+	return append(buf, '\n')
+}
+
+// appendNotRead appends the row of an input that was not read
+// (--keep-going): its id, the file as source and the reason.
+func (t *fitTable) appendNotRead(buf []byte, n NotUsed) []byte {
+	row := make([]string, len(t.header))
+	row[0] = n.ID
+	for i, h := range t.header {
+		switch h {
+		case "source":
+			row[i] = n.where()
+		case "error":
+			row[i] = "not read: " + n.Reason
+		}
+	}
+	return appendCSVRecord(buf, row)
 }
 
 // appendFailed appends the row of a profile that gave no fit: id, lot,
@@ -236,6 +278,30 @@ func appendCSVGiven(buf []byte, v float64) []byte {
 		return buf
 	}
 	return appendCSVNumber(buf, v)
+}
+
+// depthColumn is a kind of depth estimate that gets columns.
+type depthColumn struct {
+	prefix string
+	of     func(r *fit.Result) *fit.DepthEstimate
+}
+
+// depthColumns lists the depth kinds any of rs carries: case, decarb.
+func depthColumns(rs []*fit.Result) []depthColumn {
+	var out []depthColumn
+	all := []depthColumn{
+		{"case", func(r *fit.Result) *fit.DepthEstimate { return r.CaseDepth }},
+		{"decarb", func(r *fit.Result) *fit.DepthEstimate { return r.DecarbDepth }},
+	}
+	for _, d := range all {
+		for _, r := range rs {
+			if d.of(r) != nil {
+				out = append(out, d)
+				break
+			}
+		}
+	}
+	return out
 }
 
 // WriteResidualsCSV writes one row per measured point of every fitted

@@ -47,7 +47,7 @@ func pointCI(p arrhenius.Point, level float64) (lo, hi float64) {
 	return math.NaN(), math.NaN()
 }
 
-// groupLabel names a line's group in a legend: "lot HV-2291", or "all
+// groupLabel names a line's group in a legend: "lot BAR-2291", or "all
 // profiles" when not grouped.
 func groupLabel(l arrhenius.Line) string {
 	switch {

@@ -116,10 +116,12 @@ func ProfileFigure(r *fit.Result, o FigureOptions) (*Figure, error) {
 	top.Y.Label.Text = valueLabel(r)
 	dataGlyph := draw.GlyphStyle{Color: colData, Radius: 2.6, Shape: ringGlyph{}}
 	fitLine := draw.LineStyle{Color: colFit, Width: 1.4}
+	dmarks := depthMarks(r, f)
 	// A band thinner than the curve's line would hide under it: it is drawn
 	// at least profileBandMin tall, and the legend says so when it is.
 	widened := false
 	top.Add(rules{}, plotFunc(func(c draw.Canvas, p *plot.Plot) {
+		drawDepthMarks(c, p, dmarks)
 		if haveBand {
 			widened = bandAtLeast(c, p, sgx, glo, ghi, colBand, profileBandMin)
 		}
@@ -217,6 +219,7 @@ func ProfileFigure(r *fit.Result, o FigureOptions) (*Figure, error) {
 		if haveBand {
 			legend = append(legend[:len(legend):len(legend)], bandEntry())
 		}
+		legend = append(legend[:len(legend):len(legend)], depthLegend(dmarks, level)...)
 		drawLegend(top.DataCanvas(ct), legend, farHigh, false)
 	}
 	return fig, nil

@@ -31,6 +31,11 @@ func writeFitsCSVReference(f Fits, w io.Writer) error {
 	}
 	header = append(header, "value_unit", "n", "dof", "rss", "rmse", "r2", "aicc", "chi2_red", "chi2_p", "runs_p", "cond",
 		"ci_level", "ci_method", "covariance", "converged", "source", "material", "warnings", "error")
+	depths := depthColumns(f.Results)
+	for _, d := range depths {
+		header = append(header, d.prefix+"_threshold", d.prefix+"_level", d.prefix+"_depth_m", d.prefix+"_depth_ci_lo_m",
+			d.prefix+"_depth_ci_hi_m", d.prefix+"_depth_from_data_m")
+	}
 	cw := newCSVWriter(w)
 	if err := cw.Write(header); err != nil {
 		return err
@@ -64,6 +69,13 @@ func writeFitsCSVReference(f Fits, w io.Writer) error {
 			csvNumber(s.R2), csvNumber(s.AICc), csvNumber(s.Chi2Red), csvNumber(s.Chi2P), csvNumber(s.RunsP), csvNumber(s.Cond),
 			csvNumber(r.CILevel), r.CIMethod.String(), r.Covariance.String(), strconv.FormatBool(r.Converged), r.Source, r.Material,
 			strings.Join(codes, ";"), "")
+		for _, d := range depths {
+			if e := d.of(r); e != nil {
+				row = append(row, e.Threshold, csvNumber(e.Level), csvNumber(e.Depth), csvNumber(e.CI.Lo), csvNumber(e.CI.Hi), csvNumber(e.FromData))
+			} else {
+				row = append(row, "", "", "", "", "", "")
+			}
+		}
 		if err := cw.Write(row); err != nil {
 			return err
 		}
@@ -81,6 +93,21 @@ func writeFitsCSVReference(f Fits, w io.Writer) error {
 		set("converged", "false")
 		set("source", fl.Source)
 		set("error", fl.Error)
+		if err := cw.Write(row); err != nil {
+			return err
+		}
+	}
+	for _, n := range f.NotRead {
+		row := make([]string, len(header))
+		row[0] = n.ID
+		for i, h := range header {
+			switch h {
+			case "source":
+				row[i] = n.where()
+			case "error":
+				row[i] = "not read: " + n.Reason
+			}
+		}
 		if err := cw.Write(row); err != nil {
 			return err
 		}
@@ -109,6 +136,7 @@ func randomFits(rng *rand.Rand, n int) Fits {
 		params []string
 	}{{"erf", []string{"D", "Cs", "C0", "x0"}}, {"masstransfer", []string{"D", "beta", "Cp", "C0"}}, {"thinfilm", []string{"D", "M", "C0"}}, {"mine", []string{"zeta", "Cs"}}}
 	var f Fits
+	withCase, withDecarb := rng.IntN(2) == 0, rng.IntN(3) == 0
 	for i := 0; i < n; i++ {
 		m := models[rng.IntN(len(models))]
 		r := &fit.Result{ID: txt(), Lot: txt(), Model: m.name, ValueUnit: txt(), Converged: rng.IntN(2) == 0,
@@ -124,9 +152,21 @@ func randomFits(rng *rand.Rand, n int) Fits {
 		for k := rng.IntN(3); k > 0; k-- {
 			r.Warnings = append(r.Warnings, fit.Warning{Code: []string{"d-uncertain", "ci-open", "a,b", `"x"`}[rng.IntN(4)]})
 		}
+		depth := func() *fit.DepthEstimate {
+			return &fit.DepthEstimate{Threshold: txt(), Level: num(), Depth: num(), CI: fit.Interval{Lo: num(), Hi: num()}, FromData: num()}
+		}
+		if withCase && rng.IntN(4) > 0 {
+			r.CaseDepth = depth()
+		}
+		if withDecarb && rng.IntN(4) > 0 {
+			r.DecarbDepth = depth()
+		}
 		f.Results = append(f.Results, r)
 		if rng.IntN(6) == 0 {
 			f.Failed = append(f.Failed, fit.Failure{ID: txt(), Lot: txt(), Source: txt(), Kind: fit.KindNoAnswer, Error: txt()})
+		}
+		if rng.IntN(10) == 0 {
+			f.NotRead = append(f.NotRead, NotUsed{ID: txt(), Reason: txt()})
 		}
 	}
 	return f

@@ -24,15 +24,16 @@ var ErrNoFits = errors.New("no profile could be fitted")
 // FitCSV writes the table of Fits.WriteCSV row by row, as the results
 // arrive (in input order): each row is formatted into one reused buffer,
 // and nothing of a result is kept once its row is written. The header
-// goes out with the first row and takes its parameter columns, and their
-// units, from the first result: the table Fits.WriteCSV writes whenever
-// every result has the first one's parameters, which holds when one model
-// fits every profile. The profiles that gave no fit are written last, at
+// goes out with the first row and takes its parameter and depth columns,
+// and their units, from the first result: the table Fits.WriteCSV writes
+// whenever every result has the first one's parameters and depths, which
+// holds when one model fits every profile with one set of options. The profiles that gave no fit are written last, at
 // Close, as Fits.WriteCSV does.
 type FitCSV struct {
 	w      *bufio.Writer
 	t      *fitTable
 	names  []string // the parameter names of the first result, in its order
+	depths [2]bool  // whether the first result has a case, a decarburization depth
 	buf    []byte
 	failed []fit.Failure
 	rows   int
@@ -44,17 +45,20 @@ func NewFitCSV(w io.Writer) *FitCSV {
 }
 
 // Add writes the row of r (after the header, when r is the first). It
-// returns ErrColumnsChanged, writing nothing, when r's parameters are not
-// the first result's.
+// returns ErrColumnsChanged, writing nothing, when r's parameters or depth
+// kinds are not the first result's.
 func (c *FitCSV) Add(r *fit.Result) error {
 	buf := c.buf[:0]
+	depths := [2]bool{r.CaseDepth != nil, r.DecarbDepth != nil}
 	if c.t == nil {
 		c.t = newFitTable([]*fit.Result{r})
 		for _, e := range r.Params {
 			c.names = append(c.names, e.Name)
 		}
+		c.depths = depths
 		buf = c.t.appendHeader(buf)
-	} else if len(r.Params) != len(c.names) || !slices.EqualFunc(r.Params, c.names, func(e fit.Estimate, n string) bool { return e.Name == n }) {
+	} else if len(r.Params) != len(c.names) || depths != c.depths ||
+		!slices.EqualFunc(r.Params, c.names, func(e fit.Estimate, n string) bool { return e.Name == n }) {
 		return ErrColumnsChanged
 	}
 	buf = c.t.appendRow(buf, r)

@@ -483,7 +483,8 @@ func trimmed(v float64, dec int) string {
 // Temperature writes a given temperature (K) in the user's unit with kelvin
 // beside: "925 °C (1198.15 K)"; in kelvin alone when the unit is K. Values
 // are written to at most two decimals without trailing zeros. 0 (not given)
-// is written "not given".
+// is written "not given"; a temperature beyond 10⁶ K (no solid, a sign of
+// a wrong number) in kelvin alone, "1.00 × 10³⁰⁸ K".
 func Temperature(k float64, u TempUnit) string {
 	if k == 0 {
 		return "not given"
@@ -491,16 +492,20 @@ func Temperature(k float64, u TempUnit) string {
 	if !finite(k) {
 		return "n/a"
 	}
-	if u == Kelvin {
+	if u == Kelvin || math.Abs(k) >= 1e6 {
 		return trimmed(k, 2) + " K"
 	}
 	return trimmed(u.FromKelvin(k), 2) + " " + u.Symbol() + " (" + trimmed(k, 2) + " K)"
 }
 
-// TemperatureShort writes a temperature in the user's unit only: "925 °C".
+// TemperatureShort writes a temperature in the user's unit only: "925 °C"
+// (beyond 10⁶ K in kelvin, as Temperature).
 func TemperatureShort(k float64, u TempUnit) string {
 	if k == 0 {
 		return "not given"
+	}
+	if !finite(k) || math.Abs(k) >= 1e6 {
+		return Temperature(k, Kelvin)
 	}
 	return trimmed(u.FromKelvin(k), 1) + " " + u.Symbol()
 }
@@ -514,6 +519,10 @@ func TemperatureEstimate(k float64, iv fit.Interval, level float64, u TempUnit) 
 
 // temperatureEstimate is TemperatureEstimate with n's digits.
 func (n numFmt) temperatureEstimate(k float64, iv fit.Interval, level float64, u TempUnit) string {
+	if !finite(k) || math.Abs(k) >= 1e6 {
+		// No solid: a wrong number; kelvin alone, in powers of ten.
+		return n.estimate(k, iv, level, "K")
+	}
 	// The digits are decided on the kelvin interval; a °F step is smaller,
 	// which the scale factor allows for.
 	last := n.lastDigit(k, iv)

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 )
 
 // The rounding rule under test: the uncertainty's digits by the Particle
@@ -282,5 +283,22 @@ func TestGeneralAndInterval(t *testing.T) {
 	}
 	if got := Interval(5, fit.Interval{Lo: 4.123, Hi: 5.9}); got != "4.1–5.9" {
 		t.Errorf("Interval plain = %q", got)
+	}
+}
+
+// TestHugeTemperatureNeverInf: a temperature of 1e308 K (a wrong number
+// that got through) is never written "+Inf", in any unit or view.
+func TestHugeTemperatureNeverInf(t *testing.T) {
+	for _, u := range []TempUnit{Celsius, Kelvin, Fahrenheit} {
+		for _, s := range []string{Temperature(1e308, u), TemperatureShort(1e308, u),
+			TemperatureEstimate(1e308, fit.Interval{Lo: 1e307, Hi: math.Inf(1)}, 0.95, u),
+			viewTempPlain(1e308, u), viewTempRange(1e300, 1e308, u, 0), Temps("at "+tempfmt.Mark(1e308), u)} {
+			if strings.Contains(s, "Inf") || strings.Contains(s, "NaN") {
+				t.Errorf("%s: %q", u, s)
+			}
+		}
+	}
+	if got := Temperature(1e308, Fahrenheit); !strings.HasPrefix(got, "1.00") || !strings.HasSuffix(got, " × 10³⁰⁸ K") {
+		t.Errorf("Temperature(1e308, F) = %q", got)
 	}
 }

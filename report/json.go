@@ -15,6 +15,7 @@ type fitsDoc struct {
 	Version  string        `json:"fickfit_version"`
 	Fits     []*fit.Result `json:"fits"`
 	Failed   []fit.Failure `json:"failed"`
+	NotRead  []NotUsed     `json:"not_read,omitempty"`
 	Cautions []string      `json:"cautions"`
 }
 
@@ -25,6 +26,7 @@ func (f Fits) WriteJSON(w io.Writer) error {
 		Version:  versionOr(f.Version),
 		Fits:     []*fit.Result{},
 		Failed:   nonNil(f.Failed),
+		NotRead:  f.NotRead,
 		Cautions: fit.Cautions,
 	}, f.Results)
 }

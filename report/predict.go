@@ -46,7 +46,8 @@ func viewPredictionCautions(ps []*arrhenius.Prediction) []string {
 func viewPredictionsCSV(c *viewCSV, ps []*arrhenius.Prediction) {
 	h := []string{"prediction", "kind", "temperature_K", "time_s", "time_ci_lo_s", "time_ci_hi_s", "time_given", "time_ci_method",
 		"history", "Dt_m2", "Dt_ci_lo_m2", "Dt_ci_hi_m2", "Dt_given", "Cs", "C0", "threshold",
-		"case_depth_m", "case_depth_ci_lo_m", "case_depth_ci_hi_m", "case_depth_given", "ci_level"}
+		"case_depth_m", "case_depth_ci_lo_m", "case_depth_ci_hi_m", "case_depth_given", "ci_level",
+		"time_pi_lo_s", "time_pi_hi_s", "Dt_pi_lo_m2", "Dt_pi_hi_m2", "case_depth_pi_lo_m", "case_depth_pi_hi_m"}
 	h = append(h, viewCalibrationHeader...)
 	c.table("prediction", append(h, "warnings")...)
 	for i, p := range ps {
@@ -65,13 +66,17 @@ func viewPredictionsCSV(c *viewCSV, ps []*arrhenius.Prediction) {
 			row = append(row, "", "", "", "")
 		}
 		row = append(row, csvNumber(p.Level))
+		row = append(row, viewPICells(&p.Time)...)
+		row = append(row, viewPICells(&p.Dt)...)
+		row = append(row, viewPICells(p.CaseDepth)...)
 		row = append(row, viewCalibrationCells(p.Calibration)...)
 		c.add("prediction", append(row, viewCodes(p.Warnings))...)
 	}
-	c.table("profile", "prediction", "depth_m", "value", "band_lo", "band_hi")
+	c.table("profile", "prediction", "depth_m", "value", "band_lo", "band_hi", "part_lo", "part_hi")
 	for i, p := range ps {
 		for _, pp := range p.Profile {
-			c.add("profile", viewInt(i+1), csvNumber(pp.Depth), csvNumber(pp.Value), csvNumber(pp.Lo), csvNumber(pp.Hi))
+			c.add("profile", viewInt(i+1), csvNumber(pp.Depth), csvNumber(pp.Value), csvNumber(pp.Lo), csvNumber(pp.Hi),
+				csvNumber(pp.PartLo), csvNumber(pp.PartHi))
 		}
 	}
 	viewCautionsCSV(c, viewPredictionCautions(ps))
@@ -82,6 +87,7 @@ var viewPredictionTargets = map[string]string{
 	"no-interval":                     "Dt",
 	"calibration-without-uncertainty": "calibration",
 	"mean-line-band":                  "Dt",
+	"reference-literature":            "calibration",
 }
 
 func viewPredictionsText(w *bufio.Writer, ps []*arrhenius.Prediction, o TextOptions) {
@@ -110,6 +116,9 @@ func viewPredictionText(t viewText, p *arrhenius.Prediction) {
 	default:
 		t.line("", "Prediction ("+p.Kind+"): "+hold)
 	}
+	if p.Calibration.Method == "reference" {
+		t.line("", "  (from literature values, not this laboratory's calibration)")
+	}
 	t.warn(by["hold"])
 	if p.Kind == "time-to-depth" {
 		if cd := p.CaseDepth; cd != nil {
@@ -126,25 +135,35 @@ func viewPredictionText(t viewText, p *arrhenius.Prediction) {
 			tm = t.n().durationEstimate(q.Value, q.CI, p.Level) + "; " + viewCIMethod(q.Method, nil)
 		}
 		t.field("hold time", tm)
+		if pi := q.PI; pi != nil {
+			t.field("single part", Level(p.Level)+" prediction interval "+viewDurationInterval(q.Value, *pi))
+		}
 		t.warn(by["Dt"])
 		t.field("Dt needed", t.n().general(p.Dt.Value)+" m² (√Dt "+Depth(math.Sqrt(p.Dt.Value))+")")
 	} else {
 		d := p.Dt
+		sq := " (√Dt " + Depth(math.Sqrt(d.Value)) + ")"
 		var s string
 		if !finite(d.CI.Lo) && !finite(d.CI.Hi) {
-			s = t.n().general(d.Value) + " m², no band"
+			s = t.n().general(d.Value) + " m²" + sq + ", no band"
 		} else if viewZeroWidth(d.CI) {
-			s = t.n().general(d.Value) + " m², band of zero width"
+			s = t.n().general(d.Value) + " m²" + sq + ", band of zero width"
 		} else {
 			last := t.n().lastDigit(d.Value, d.CI)
-			s = Number(d.Value, last) + " m², " + Level(p.Level) + " CI " + IntervalAt(d.Value, d.CI, last) + " m²"
+			s = Number(d.Value, last) + " m²" + sq + ", " + Level(p.Level) + " CI " + IntervalAt(d.Value, d.CI, last) + " m² (mean line)"
+			if pi := d.PI; pi != nil {
+				s += "; single part " + Level(p.Level) + " PI " + IntervalAt(d.Value, *pi, last) + " m²"
+			}
 		}
-		t.field("Dt", s+" (√Dt "+Depth(math.Sqrt(d.Value))+")")
+		t.field("Dt", s)
 		t.warn(by["Dt"])
 	}
 	t.field("levels", "surface Cs "+viewGiven(p.Cs)+", base C0 "+viewGiven(p.C0)+" (in the unit they were given in); erf solution, semi-infinite body")
 	if cd := p.CaseDepth; cd != nil && p.Kind != "time-to-depth" {
-		t.field("case depth", t.n().viewLength(cd.Value, cd.CI, p.Level)+" at level "+viewGiven(p.Threshold))
+		t.field("case depth", t.n().viewLength(cd.Value, cd.CI, p.Level)+" at level "+viewGiven(p.Threshold)+" (mean line)")
+		if pi := cd.PI; pi != nil {
+			t.field("single part", "case depth "+Level(p.Level)+" prediction interval "+viewLengthInterval(cd.Value, *pi))
+		}
 	}
 	t.calibration(p.Calibration, by["calibration"])
 	t.warn(by[""])
@@ -188,13 +207,16 @@ func viewProfileTable(t viewText, p *arrhenius.Prediction) {
 		}
 	}
 	t.w.WriteString("\n")
-	tb := Table{Header: []string{"depth (" + unit + ")", "C", Level(p.Level) + " band"}, Align: []Align{Right, Right, Left}, Indent: "  "}
+	tb := Table{Header: []string{"depth (" + unit + ")", "C", Level(p.Level) + " band (mean line)", Level(p.Level) + " single part"}, Align: []Align{Right, Right, Left, Left}, Indent: "  "}
 	for _, pp := range p.Profile {
-		band := ""
+		band, part := "", ""
 		if finite(pp.Lo) && finite(pp.Hi) {
 			band = IntervalAt(pp.Value, fit.Interval{Lo: pp.Lo, Hi: pp.Hi}, last)
 		}
-		tb.Add(strconv.FormatFloat(roundAt(pp.Depth/f, -dec), 'f', dec, 64), Number(pp.Value, last), band)
+		if finite(pp.PartLo) && finite(pp.PartHi) {
+			part = IntervalAt(pp.Value, fit.Interval{Lo: pp.PartLo, Hi: pp.PartHi}, last)
+		}
+		tb.Add(strconv.FormatFloat(roundAt(pp.Depth/f, -dec), 'f', dec, 64), Number(pp.Value, last), band, part)
 	}
 	tb.WriteTo(t.w)
 }

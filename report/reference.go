@@ -36,11 +36,12 @@ const viewReferenceCaution = "Rows marked * were written down from memory of the
 
 func viewReferencesCSV(c *viewCSV, refs []arrhenius.Reference) {
 	c.table("reference", "name", "aliases", "solute", "host", "D0_m2_s", "Q_J_mol", "valid_min_K", "valid_max_K",
-		"range_note", "source", "from_memory")
+		"range_note", "source", "from_memory", "spread_D_factor", "spread_Q_relative")
 	memory := false
 	for _, r := range refs {
 		c.add("reference", r.Name, strings.Join(r.Aliases, ";"), r.Solute, r.Host, csvNumber(r.D0), csvNumber(r.Q),
-			csvNumber(r.TMin), csvNumber(r.TMax), r.RangeNote, r.Source, viewBool(r.FromMemory))
+			csvNumber(r.TMin), csvNumber(r.TMax), r.RangeNote, r.Source, viewBool(r.FromMemory),
+			csvNumber(arrhenius.DefaultSpreadFactor), csvNumber(arrhenius.DefaultSpreadQ))
 		memory = memory || r.FromMemory
 	}
 	if memory {
@@ -81,6 +82,14 @@ func viewReferencesText(w *bufio.Writer, refs []arrhenius.Reference, o TextOptio
 	w.WriteString("\n")
 	for i, s := range sources {
 		t.line("  ["+viewInt(i+1)+"] ", s)
+	}
+	w.WriteString("\n")
+	if len(refs) > 0 {
+		t.line("  ", "Spread put on every row when it is used (backcalc, predict; --reference-spread and --reference-Q-uncertainty set it): D within a factor "+
+			viewGiven(arrhenius.DefaultSpreadFactor)+" at the centre of the row's range and Q within "+viewGiven(100*arrhenius.DefaultSpreadQ)+
+			" %, one standard uncertainty. Basis: "+arrhenius.SpreadBasis+".")
+		w.WriteString("\n")
+		t.line("  ", "Answers from these rows rest on published handbook values, not on a calibration of your own steel and furnace: calibrate (fickfit arrhenius on coupons treated at three or more temperatures) before deciding on parts.")
 	}
 	if memory {
 		w.WriteString("\n")

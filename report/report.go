@@ -33,6 +33,8 @@ const DefaultVersion = fickfit.Version
 type Fits struct {
 	Results []*fit.Result
 	Failed  []fit.Failure
+	// NotRead are the inputs that could not be read (--keep-going).
+	NotRead []NotUsed
 	// Version is the software version written into JSON; "" means DefaultVersion.
 	Version string
 }

@@ -180,6 +180,7 @@ func (f Fits) WriteText(w io.Writer, o TextOptions) error {
 			writeWrapped(bw, "  "+fl.ID+": ", fl.Error, o.width())
 		}
 	}
+	writeNotUsedText(bw, "Not read:", f.NotRead, o.width())
 	if !o.NoCautions {
 		bw.WriteString("\n")
 		writeCautions(bw, fit.Cautions, o.width())
@@ -229,16 +230,16 @@ func writeResultText(w *bufio.Writer, r *fit.Result, o TextOptions) {
 		w.WriteString(l + "\n")
 		if k := i - 2; k >= 0 && k < len(r.Params) {
 			for _, wn := range byTarget[r.Params[k].Name] {
-				writeWrapped(w, "      ! ", wn.Message, o.width())
+				writeWrapped(w, "      ! ", warnText(wn, o.TempUnit), o.width())
 			}
 		}
 	}
 	writeParts(w, "  ", statsParts(r), " · ", o.width())
 	for _, wn := range byTarget["stats"] {
-		writeWrapped(w, "      ! ", wn.Message, o.width())
+		writeWrapped(w, "      ! ", warnText(wn, o.TempUnit), o.width())
 	}
 	for _, wn := range byTarget[""] {
-		writeWrapped(w, "  ! ", wn.Message, o.width())
+		writeWrapped(w, "  ! ", warnText(wn, o.TempUnit), o.width())
 	}
 	for _, e := range []*fit.DepthEstimate{r.CaseDepth, r.DecarbDepth} {
 		if e != nil {
@@ -253,13 +254,25 @@ func writeResultText(w *bufio.Writer, r *fit.Result, o TextOptions) {
 // writeDepthText writes a case or decarburization depth: from the fitted
 // curve with its interval, and from the points.
 func writeDepthText(w *bufio.Writer, r *fit.Result, e *fit.DepthEstimate, o TextOptions) {
+	head, notes := depthSentence(r, e, o.num())
+	writeWrapped(w, "  ", head, o.width())
+	for _, n := range notes {
+		writeWrapped(w, "      · ", n, o.width())
+	}
+}
+
+// depthSentence says a case or decarburization depth in one sentence —
+// the criterion as given and the level it means, the depth from the fitted
+// curve with its interval, and from the points — and returns the notes
+// that go with it (those not already among the profile's warnings).
+func depthSentence(r *fit.Result, e *fit.DepthEstimate, n numFmt) (string, []string) {
 	name := "case depth"
 	if e.Kind == "decarburization" {
 		name = "decarburization depth"
 	}
 	fitted := "not reached by the fitted curve"
 	if finite(e.Depth) {
-		fitted = o.num().depthInterval(e.Depth, e.CI, e.CILevel) + " from the fitted curve"
+		fitted = n.depthInterval(e.Depth, e.CI, e.CILevel) + " from the fitted curve"
 	}
 	data := "not reached by the measured points"
 	if finite(e.FromData) {
@@ -267,18 +280,38 @@ func writeDepthText(w *bufio.Writer, r *fit.Result, e *fit.DepthEstimate, o Text
 	}
 	level := ""
 	if finite(e.Level) {
-		level = fmt.Sprintf(" (level %s %s)", o.num().general(e.Level), e.Unit)
+		level = fmt.Sprintf(" (level %s %s)", n.general(e.Level), e.Unit)
 	}
-	writeWrapped(w, "  ", fmt.Sprintf("%s at %s%s: %s; %s.", name, e.Threshold, level, fitted, data), o.width())
 	said := map[string]bool{}
 	for _, wn := range r.Warnings {
 		said[wn.Message] = true
 	}
-	for _, n := range e.Notes {
-		if !said[n] { // the proxy note is already among the warnings
-			writeWrapped(w, "      · ", n, o.width())
+	var notes []string
+	for _, note := range e.Notes {
+		if !said[note] { // the proxy note is already among the warnings
+			notes = append(notes, note)
 		}
 	}
+	return fmt.Sprintf("%s at %s%s: %s; %s.", name, e.Threshold, level, fitted, data), notes
+}
+
+// depthShort writes a depth with its interval for a table cell:
+// "0.82 mm (0.79–0.85)", "not reached".
+func depthShort(e *fit.DepthEstimate) string {
+	if e == nil {
+		return ""
+	}
+	if !finite(e.Depth) {
+		return "not reached"
+	}
+	f, unit := DepthScale(math.Max(e.Depth, e.CI.Hi))
+	v, iv := e.Depth/f, fit.Interval{Lo: e.CI.Lo / f, Hi: e.CI.Hi / f}
+	last := LastDigit(v, iv)
+	s := Number(v, last) + " " + unit
+	if finite(iv.Lo) || finite(iv.Hi) {
+		s += " (" + IntervalAt(v, iv, last) + ")"
+	}
+	return s
 }
 
 // DepthInterval writes a depth with its interval in one unit ("0.82 mm,

@@ -10,10 +10,21 @@ import (
 
 	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/tempfmt"
 )
 
 // Helpers shared by the text and CSV views of the decision results
 // (arrhenius, backcalc, predict, compare, reference, matano).
+
+// Temps renders the temperature marks of a sentence written by the
+// science packages (internal/tempfmt) in the reader's unit, as
+// Temperature writes them: "925 °C (1198.15 K)".
+func Temps(s string, u TempUnit) string {
+	return tempfmt.Render(s, func(k float64) string { return Temperature(k, u) })
+}
+
+// warnText is a warning's message for people, in the reader's unit.
+func warnText(w fit.Warning, u TempUnit) string { return Temps(w.Message, u) }
 
 // viewLabel is the width of the label column of the text views.
 const viewLabel = 15
@@ -120,7 +131,7 @@ func (t viewText) field(label, text string) {
 // warn writes warnings under the line they concern.
 func (t viewText) warn(ws []fit.Warning) {
 	for _, w := range ws {
-		writeWrapped(t.w, "      ! ", w.Message, t.o.width())
+		writeWrapped(t.w, "      ! ", warnText(w, t.o.TempUnit), t.o.width())
 	}
 }
 
@@ -238,6 +249,28 @@ func (n numFmt) viewLength(m float64, ci fit.Interval, level float64) string {
 		out += " " + unit
 	}
 	return out
+}
+
+// viewLengthInterval writes an interval of a length (m) in the unit of
+// its value, "0.70–1.02 mm", with the digits the interval supports.
+func viewLengthInterval(m float64, iv fit.Interval) string {
+	f, unit := DepthScale(math.Max(math.Abs(m), math.Abs(iv.Hi)))
+	v, s := m/f, fit.Interval{Lo: iv.Lo / f, Hi: iv.Hi / f}
+	return IntervalAt(v, s, LastDigit(v, s)) + " " + unit
+}
+
+// viewDurationInterval writes an interval of a time (s) in the unit of
+// its value, "5.8–6.7 h".
+func viewDurationInterval(t float64, iv fit.Interval) string {
+	f, unit := 3600.0, "h"
+	switch {
+	case math.Abs(t) < 120:
+		f, unit = 1, "s"
+	case math.Abs(t) < 7200:
+		f, unit = 60, "min"
+	}
+	v, s := t/f, fit.Interval{Lo: iv.Lo / f, Hi: iv.Hi / f}
+	return IntervalAt(v, s, LastDigit(v, s)) + " " + unit
 }
 
 // viewGiven writes a number given by the user (or a table) with the

@@ -268,6 +268,7 @@ func (x *xlWriter) summarySheet(res *CampaignReport, u TempUnit) {
 	x.header(s, 1, cols...)
 	x.twoLines(s, 1)
 	row := 2
+	hasCase := false
 	for _, r := range res.Results {
 		x.set(s, 1, row, r.ID, 0)
 		x.set(s, 2, row, r.Lot, 0)
@@ -301,11 +302,26 @@ func (x *xlWriter) summarySheet(res *CampaignReport, u TempUnit) {
 		x.set(s, 16, row, r.Stats.N, x.st.int0)
 		var ws []string
 		for _, w := range r.Warnings {
-			ws = append(ws, w.Message)
+			ws = append(ws, warnText(w, u))
 		}
 		x.set(s, 17, row, strings.Join(ws, "\n"), x.st.text)
 		x.set(s, 18, row, r.Source, 0)
+		if e := r.CaseDepth; e != nil {
+			hasCase = true
+			mm := x.num(e.Depth*1e3, LastDigit(e.Depth*1e3, fit.Interval{Lo: e.CI.Lo * 1e3, Hi: e.CI.Hi * 1e3}))
+			x.set(s, 19, row, e.Depth*1e3, mm)
+			x.set(s, 20, row, e.CI.Lo*1e3, mm)
+			x.set(s, 21, row, e.CI.Hi*1e3, mm)
+			x.set(s, 22, row, e.FromData*1e3, x.sig(e.FromData*1e3, 4))
+			x.set(s, 23, row, e.Threshold, 0)
+		}
 		row++
+	}
+	if hasCase {
+		for i, h := range []string{"case depth (mm)", "case depth " + level + " CI low (mm)", "case depth " + level + " CI high (mm)",
+			"case depth from the points (mm)", "case threshold"} {
+			x.set(s, 19+i, 1, h, x.st.header)
+		}
 	}
 	for _, fl := range res.Failed {
 		x.set(s, 1, row, fl.ID, 0)
@@ -320,7 +336,11 @@ func (x *xlWriter) summarySheet(res *CampaignReport, u TempUnit) {
 		x.err = x.f.AutoFilter(s, "A1:"+cell(len(cols), row-1), nil)
 	}
 	// After the filter, which rewrites the sheet's properties.
-	x.pageSetup(s, len(cols), max(row-1, 1), true, 0, 1)
+	lastCol := len(cols)
+	if hasCase {
+		lastCol = 23
+	}
+	x.pageSetup(s, lastCol, max(row-1, 1), true, 0, 1)
 }
 
 func (x *xlWriter) profileSheet(s string, r *fit.Result, u TempUnit) {
@@ -408,10 +428,27 @@ func (x *xlWriter) profileSheet(s string, r *fit.Result, u TempUnit) {
 		x.set(s, 2, sr+1+i, kv.v, kv.style)
 	}
 	wr := sr + len(stats) + 2
+	for i, e := range []*fit.DepthEstimate{r.CaseDepth, r.DecarbDepth} {
+		if e == nil {
+			continue
+		}
+		name := "case depth"
+		if e.Kind == "decarburization" {
+			name = "decarburization depth"
+		}
+		c := 4 + 2*i
+		x.set(s, c, sr, name+" at "+e.Threshold, x.st.bold)
+		for k, kv := range [][2]any{{"level (" + e.Unit + ")", e.Level}, {"depth (mm)", e.Depth * 1e3},
+			{Level(e.CILevel) + " CI low (mm)", e.CI.Lo * 1e3}, {Level(e.CILevel) + " CI high (mm)", e.CI.Hi * 1e3},
+			{"from the points (mm)", e.FromData * 1e3}} {
+			x.set(s, c, sr+1+k, kv[0], 0)
+			x.set(s, c+1, sr+1+k, kv[1], x.st.fixed4)
+		}
+	}
 	if len(r.Warnings) > 0 {
 		x.set(s, 1, wr, "warnings", x.st.bold)
 		for i, w := range r.Warnings {
-			x.set(s, 1, wr+1+i, w.Message, x.st.note)
+			x.set(s, 1, wr+1+i, warnText(w, u), x.st.note)
 			if x.err == nil {
 				x.err = x.f.MergeCell(s, cell(1, wr+1+i), cell(7, wr+1+i))
 			}
@@ -614,7 +651,7 @@ func (x *xlWriter) arrheniusSheet(res *CampaignReport, u TempUnit) {
 func (x *xlWriter) lotsSheet(res *CampaignReport, u TempUnit) {
 	s := SheetLots
 	c := res.Comparison
-	x.set(s, 1, 1, "Lot comparison by "+c.By+": "+c.Verdict, x.st.title)
+	x.set(s, 1, 1, "Lot comparison by "+c.By+": "+Temps(c.Verdict, u), x.st.title)
 	x.header(s, 3, "test", "description", "F", "df1", "df2", "p")
 	for i, t := range c.Tests {
 		row := 4 + i
@@ -642,8 +679,32 @@ func (x *xlWriter) lotsSheet(res *CampaignReport, u TempUnit) {
 		x.set(s, 8, row, r.P, x.sig(r.P, 2))
 		x.set(s, 9, row, r.Model, 0)
 	}
+	if len(c.Pairs) > 0 {
+		pr := rr + len(c.Ratios) + 2
+		x.header(s, pr, "group A", "group B", "T ("+u.Symbol()+")", "T (K)", "D ratio B/A", "ratio "+level+" CI low", "ratio "+level+" CI high",
+			"p", "p adjusted (Holm)", "differ", "model")
+		for i, p := range c.Pairs {
+			row := pr + 1 + i
+			x.set(s, 1, row, p.A, 0)
+			x.set(s, 2, row, p.B, 0)
+			x.set(s, 3, row, u.FromKelvin(p.TRef), x.st.temp)
+			x.set(s, 4, row, p.TRef, x.st.fixed2)
+			ps := x.num(p.Ratio, LastDigit(p.Ratio, p.CI))
+			x.set(s, 5, row, p.Ratio, ps)
+			x.set(s, 6, row, p.CI.Lo, ps)
+			x.set(s, 7, row, p.CI.Hi, ps)
+			x.set(s, 8, row, p.P, x.sig(p.P, 2))
+			x.set(s, 9, row, p.PAdjusted, x.sig(p.PAdjusted, 2))
+			x.set(s, 10, row, pairVerdict(p), 0)
+			x.set(s, 11, row, p.Model, 0)
+		}
+	}
 	x.widths(s, 24, 60, 10, 8, 10, 14, 14, 10, 16)
-	x.pageSetup(s, 9, rr+len(c.Ratios), true, 0, 0)
+	lastCol, lastRow := 9, rr+len(c.Ratios)
+	if len(c.Pairs) > 0 {
+		lastCol, lastRow = 11, rr+len(c.Ratios)+2+len(c.Pairs)
+	}
+	x.pageSetup(s, lastCol, lastRow, true, 0, 0)
 }
 
 func (x *xlWriter) partsSheet(res *CampaignReport, u TempUnit) {
@@ -688,11 +749,11 @@ func (x *xlWriter) partsSheet(res *CampaignReport, u TempUnit) {
 			x.set(s, 12, row, sol.Calibration.Source, x.st.text)
 			var ws []string
 			for _, w := range sol.Warnings {
-				ws = append(ws, w.Message)
+				ws = append(ws, warnText(w, u))
 			}
 			x.set(s, 13, row, strings.Join(ws, "\n"), x.st.text)
 		} else {
-			x.set(s, 13, row, p.Error, x.st.text)
+			x.set(s, 13, row, Temps(p.Error, u), x.st.text)
 		}
 	}
 	cr := 6 + len(res.Parts)

@@ -340,7 +340,7 @@ func (s *session) rowLocked(e *entry) rowView {
 		v.Status = "stale"
 	}
 	if e.err != nil {
-		v.Status, v.Error = statusFailed(v.Status), e.err.Error()
+		v.Status, v.Error = statusFailed(v.Status), report.Temps(e.err.Error(), s.unit)
 		return v
 	}
 	rr := e.res
@@ -354,7 +354,10 @@ func (s *session) rowLocked(e *entry) rowView {
 	}
 	v.Dt = rr.Time == 0
 	v.R2, v.R2Text = num(rr.Stats.R2, false), report.R2Text(rr.Stats.R2)
-	v.Warnings = append(v.Warnings, rr.Warnings...)
+	for _, w := range rr.Warnings {
+		// Sentences for people: temperatures in the page's unit.
+		v.Warnings = append(v.Warnings, fit.Warning{Code: w.Code, Message: report.Temps(w.Message, s.unit)})
+	}
 	return v
 }
 

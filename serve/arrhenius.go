@@ -74,14 +74,17 @@ func (s *session) handleArrhenius(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	v := arrView{By: res.By, Method: res.Method, Unit: u.Symbol(), Lines: []arrLine{}, Points: []arrPoint{}, LeftOut: []arrPoint{},
-		LineErrors: []string{}, Tests: [][4]string{}, Ratios: []string{}, Parts: []partView{}, Notes: res.Notes}
+		LineErrors: []string{}, Tests: [][4]string{}, Ratios: []string{}, Parts: []partView{}, Notes: []string{}}
+	for _, n := range res.Notes {
+		v.Notes = append(v.Notes, report.Temps(n, u))
+	}
 	if res.Lines != nil {
 		for i := range res.Lines.Lines {
 			l := &res.Lines.Lines[i]
 			al := arrLine{Group: l.Group, D0: report.D0Text(l), Q: report.QText(l.Q, l.QCI(), l.Level), Points: len(l.Points),
 				Temps: l.NTemperatures, Birge: report.Number(l.BirgeRatio, -2), Warnings: []string{}}
 			for _, wn := range l.Warnings {
-				al.Warnings = append(al.Warnings, wn.Message)
+				al.Warnings = append(al.Warnings, report.Temps(wn.Message, u))
 			}
 			tlo, thi := l.TRange()
 			for k := 0; k <= 40; k++ {
@@ -97,7 +100,7 @@ func (s *session) handleArrhenius(w http.ResponseWriter, r *http.Request) {
 		}
 	}
 	for _, f := range res.LineErrors {
-		v.LineErrors = append(v.LineErrors, strings.TrimSpace(f.Group+": "+f.Error))
+		v.LineErrors = append(v.LineErrors, strings.TrimSpace(f.Group+": "+report.Temps(f.Error, u)))
 	}
 	if res.Excluded != nil {
 		for _, r := range res.Results {
@@ -115,7 +118,7 @@ func (s *session) handleArrhenius(w http.ResponseWriter, r *http.Request) {
 		}
 	}
 	if c := res.Comparison; c != nil {
-		v.Verdict = c.Verdict
+		v.Verdict = report.Temps(c.Verdict, u)
 		for _, t := range c.Tests {
 			v.Tests = append(v.Tests, [4]string{t.Description, report.Number(t.F, -2), fmt.Sprintf("%d, %d", t.DF1, t.DF2), report.Sig(t.P, 2)})
 		}
@@ -124,12 +127,12 @@ func (s *session) handleArrhenius(w http.ResponseWriter, r *http.Request) {
 				report.Temperature(r.TRef, u), report.RatioText(r.Value, r.CI, c.Level), report.Sig(r.P, 2), r.Model))
 		}
 	}
-	v.ComparisonError = res.ComparisonError
+	v.ComparisonError = report.Temps(res.ComparisonError, u)
 	for _, p := range res.Parts {
 		pv := partView{ID: p.ID, Lot: p.Lot, Text: report.PartText(p, u), Warnings: []string{}}
 		if p.Solution != nil {
 			for _, wn := range p.Solution.Warnings {
-				pv.Warnings = append(pv.Warnings, wn.Message)
+				pv.Warnings = append(pv.Warnings, report.Temps(wn.Message, u))
 			}
 		}
 		v.Parts = append(v.Parts, pv)
@@ -245,7 +248,7 @@ func (s *session) backcalc(q backcalcRequest) (*backcalcView, error) {
 	v := &backcalcView{ID: rr.ID, Line: line.Group, Solution: raw, Warnings: []string{}, Cautions: sol.Cautions,
 		Text: report.PartText(partOf(rr, sol, solveFor), u)}
 	for _, wn := range sol.Warnings {
-		v.Warnings = append(v.Warnings, wn.Message)
+		v.Warnings = append(v.Warnings, report.Temps(wn.Message, u))
 	}
 	return v, nil
 }

@@ -205,7 +205,7 @@ func TestSettingsRefused(t *testing.T) {
 // command line applies it, gives the page's fit exactly (self-check of
 // the one rule in profile.Exclusions).
 func TestExclusionRoundTrip(t *testing.T) {
-	s, port := start(t, Options{Inputs: []string{"../testdata/demo/lims-export-HV-2307.csv"}})
+	s, port := start(t, Options{Inputs: []string{"../testdata/demo/lims-export-BAR-2307.csv"}})
 	const id = "F7-2307-940-2"
 	code, b := post(t, port, "/s/"+token+"/api/exclude", []byte(`{"id":"`+id+`","index":3,"reason":"indent on a carbide"}`))
 	if code != 200 {
@@ -223,7 +223,7 @@ func TestExclusionRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	ps, _ := profile.Read("../testdata/demo/lims-export-HV-2307.csv")
+	ps, _ := profile.Read("../testdata/demo/lims-export-BAR-2307.csv")
 	if _, err := x.Apply(ps); err != nil {
 		t.Fatal(err)
 	}
@@ -252,7 +252,7 @@ func TestExclusionRoundTrip(t *testing.T) {
 // inputs are never modified.
 func TestExportStaysInItsFolder(t *testing.T) {
 	in := t.TempDir()
-	src, _ := os.ReadFile("../testdata/demo/lims-export-HV-2307.csv")
+	src, _ := os.ReadFile("../testdata/demo/lims-export-BAR-2307.csv")
 	input := filepath.Join(in, "lims.csv")
 	os.WriteFile(input, src, 0o644)
 	sum := sha256.Sum256(src)

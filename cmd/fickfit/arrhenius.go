@@ -16,7 +16,7 @@ func newArrheniusCmd() *cobra.Command {
 	var ff fitFlags
 	var out outFlags
 	var by, tsigma string
-	var global, noBirge bool
+	var global, noBirge, keepGoing bool
 	c := &cobra.Command{
 		Use:   "arrhenius FILE...",
 		Short: "Estimate D0 and Q from profiles at several temperatures",
@@ -45,7 +45,7 @@ profiles (lot by default when the files give one) and gives one line per group.`
 				}
 				o.TemperatureSigma = v
 			}
-			results, ps, err := fittedInputs(args, &ff, c.ErrOrStderr())
+			results, ps, notUsed, err := fittedInputsKeepGoing(args, &ff, c.ErrOrStderr(), keepGoing)
 			if err != nil {
 				return err
 			}
@@ -64,15 +64,22 @@ profiles (lot by default when the files give one) and gives one line per group.`
 					return err
 				}
 			} else {
-				pts, err := arrhenius.PointsFromResults(ff.leaveOut(results))
+				pts, unused, err := pointsKeepGoing(ff.leaveOut(results), keepGoing)
 				if err != nil {
 					return err
 				}
+				notUsed = append(notUsed, unused...)
 				if rep, err = arrhenius.TwoStageGroups(pts, by, &o); err != nil {
 					return err
 				}
 			}
-			return out.emit(c, report.Arrhenius{Report: rep})
+			if err := out.emit(c, report.Arrhenius{Report: rep, NotUsed: notUsed}); err != nil {
+				return err
+			}
+			if len(notUsed) > 0 {
+				return partialError{len(notUsed)}
+			}
+			return nil
 		},
 	}
 	ff.register(c)
@@ -80,6 +87,7 @@ profiles (lot by default when the files give one) and gives one line per group.`
 	c.Flags().StringVar(&by, "by", "", "group the profiles by this column or metadata key (e.g. lot) and fit one line per group")
 	c.Flags().BoolVar(&global, "global", false, "one-stage global fit of all profiles (shared ln D0 and Q)")
 	c.Flags().StringVar(&tsigma, "temperature-uncertainty", "", "standard uncertainty of every furnace temperature not given in the files (e.g. 3K)")
+	registerKeepGoing(c, &keepGoing)
 	c.Flags().BoolVar(&noBirge, "no-birge", false, "keep the stated errors even when the points scatter more (intervals may then be too narrow)")
 	return c
 }

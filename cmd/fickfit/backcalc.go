@@ -36,7 +36,7 @@ A back-calculated temperature rests on the model's assumptions (constant
 surface level, D independent of concentration, the calibration's range).
 Confirm by metallography and the applicable specifications; defer to local
 codes and licensed engineering judgement before deciding on parts.`,
-		Example: `  fickfit backcalc pinion.csv --solve temperature --time 6h --calibration line.json:HV-2291
+		Example: `  fickfit backcalc pinion.csv --solve temperature --time 6h --calibration line.json:BAR-2291
   fickfit backcalc pinion.csv --solve time --temperature 880C --reference C-in-gamma-Fe
   fickfit backcalc pinion.csv --solve temperature --history furnace-log.csv --calibration line.json`,
 		Args: cobra.MinimumNArgs(1),

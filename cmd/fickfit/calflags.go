@@ -1,6 +1,7 @@
 package main
 
 import (
+	"fmt"
 	"strconv"
 	"strings"
 
@@ -18,17 +19,21 @@ type calFlags struct {
 	d0u, qu   string
 	corr      float64
 	reference string
+	refSpread float64
+	refQU     string
 }
 
 func (c *calFlags) register(cmd *cobra.Command) {
 	fl := cmd.Flags()
 	fl.StringVar(&c.file, "calibration", "", "Arrhenius result written by 'fickfit arrhenius --format json' (FILE or FILE:GROUP for one lot)")
 	fl.StringVar(&c.d0, "D0", "", "pre-exponential factor D0 in m²/s (with --Q)")
-	fl.StringVar(&c.q, "Q", "", "activation energy Q: J/mol, or with a unit: 148kJ/mol, 1.53eV")
+	fl.StringVar(&c.q, "Q", "", "activation energy Q with its unit: 148kJ/mol, 148000J/mol, 1.53eV")
 	fl.StringVar(&c.d0u, "D0-stderr", "", "standard uncertainty of D0 in m²/s (optional)")
-	fl.StringVar(&c.qu, "Q-stderr", "", "standard uncertainty of Q (optional, same units as --Q)")
+	fl.StringVar(&c.qu, "Q-stderr", "", "standard uncertainty of Q with its unit (optional, e.g. 5kJ/mol)")
 	fl.Float64Var(&c.corr, "corr", 0, "correlation of ln D0 and Q (optional, with both uncertainties)")
 	fl.StringVar(&c.reference, "reference", "", "a row of the built-in table (see 'fickfit reference')")
+	fl.Float64Var(&c.refSpread, "reference-spread", arrhenius.DefaultSpreadFactor, "with --reference: D of the row known within this factor (one standard uncertainty; 1 = taken as exact)")
+	fl.StringVar(&c.refQU, "reference-Q-uncertainty", "5%", "with --reference: standard uncertainty of the row's Q, relative (5%) or as an energy (7kJ/mol)")
 	// Exactly one source of D0 and Q: the file, the explicit values or a row.
 	cmd.MarkFlagsOneRequired("calibration", "D0", "reference")
 	cmd.MarkFlagsMutuallyExclusive("calibration", "D0", "reference")
@@ -60,7 +65,18 @@ func (c *calFlags) calibration() (arrhenius.Calibration, error) {
 		if err != nil {
 			return arrhenius.Calibration{}, err
 		}
-		return ref.Calibration(), nil
+		qrel, err := relOrEnergy(c.refQU, ref.Q)
+		if err != nil {
+			return arrhenius.Calibration{}, usagef("--reference-Q-uncertainty: %v", err)
+		}
+		cal, err := ref.CalibrationWithSpread(c.refSpread, qrel)
+		if err != nil {
+			return arrhenius.Calibration{}, usagef("--reference-spread: %v", plain(err))
+		}
+		return cal, nil
+	}
+	if c.refSpread != arrhenius.DefaultSpreadFactor || c.refQU != "5%" {
+		return arrhenius.Calibration{}, usagef("--reference-spread and --reference-Q-uncertainty go with --reference")
 	}
 	if c.d0 == "" || c.q == "" {
 		return arrhenius.Calibration{}, usagef("--D0 and --Q go together")
@@ -70,6 +86,9 @@ func (c *calFlags) calibration() (arrhenius.Calibration, error) {
 		return arrhenius.Calibration{}, usagef("--D0 %q is not a number (m²/s)", c.d0)
 	}
 	q, err := arrhenius.ParseEnergy(c.q)
+	if err == nil {
+		err = arrhenius.CheckActivationEnergy(q)
+	}
 	if err != nil {
 		return arrhenius.Calibration{}, usagef("--Q: %v", err)
 	}
@@ -85,6 +104,24 @@ func (c *calFlags) calibration() (arrhenius.Calibration, error) {
 		}
 	}
 	return arrhenius.Explicit(d0, d0u, q, qu, c.corr)
+}
+
+// relOrEnergy reads a standard uncertainty of Q as a percentage ("5%")
+// or an energy with its unit ("7kJ/mol") and returns it relative to q.
+func relOrEnergy(s string, q float64) (float64, error) {
+	t := strings.TrimSpace(s)
+	if p, ok := strings.CutSuffix(t, "%"); ok {
+		v, err := strconv.ParseFloat(strings.TrimSpace(p), 64)
+		if err != nil || !(v >= 0) {
+			return 0, fmt.Errorf("%q is not a percentage ≥ 0 (write e.g. 5%%)", s)
+		}
+		return v / 100, nil
+	}
+	e, err := arrhenius.ParseEnergy(t)
+	if err != nil {
+		return 0, err
+	}
+	return e / q, nil
 }
 
 // readHistory reads --history when given.

@@ -28,6 +28,7 @@ type campaignFlags struct {
 	tsigma     string
 	refs       []string
 	noPNG      bool
+	keepGoing  bool
 	output     outFlags
 }
 
@@ -68,7 +69,7 @@ func (cf *campaignFlags) options(c *cobra.Command, args []string) (campaign.Opti
 	progress := stageProgress()
 	ro = report.CampaignOptions{TempUnit: cf.output.unit, Digits: cf.output.digits, Force: cf.force, NoPNG: cf.noPNG, Progress: progress}
 	o = campaign.Options{
-		Fit: fo, By: cf.by, Method: cf.method, References: cf.refs, Version: fickfit.Version, Progress: progress,
+		Fit: fo, By: cf.by, Method: cf.method, References: cf.refs, Version: fickfit.Version, Progress: progress, KeepGoing: cf.keepGoing,
 		Adjust: func(p *profile.Profile) error {
 			ps := []profile.Profile{*p}
 			if err := cf.ff.override(ps); err != nil {
@@ -149,10 +150,17 @@ A rerun with the same inputs gives byte-identical JSON and CSV.`,
 			if err != nil {
 				return err
 			}
-			return finishCampaign(c.OutOrStdout(), folder, res, ro)
+			if err := finishCampaign(c.OutOrStdout(), folder, res, ro); err != nil {
+				return err
+			}
+			if n := (&report.CampaignReport{Result: res}).LeftOut(); cf.keepGoing && n > 0 {
+				return partialError{n}
+			}
+			return nil
 		},
 	}
 	cf.register(c, "fickfit-report")
+	registerKeepGoing(c, &cf.keepGoing)
 	return c
 }
 

@@ -14,6 +14,7 @@ func newCompareCmd() *cobra.Command {
 	var ff fitFlags
 	var out outFlags
 	var by, ref, tref, tsigma string
+	var keepGoing bool
 	c := &cobra.Command{
 		Use:   "compare FILE...",
 		Short: "Test whether alloy lots (or any groups) diffuse differently",
@@ -44,24 +45,31 @@ temperature with its confidence interval and a plain verdict with the p-value.`,
 				}
 				o.TemperatureSigma = v
 			}
-			results, _, err := fittedInputs(args, &ff, c.ErrOrStderr())
+			results, _, notUsed, err := fittedInputsKeepGoing(args, &ff, c.ErrOrStderr(), keepGoing)
 			if err != nil {
 				return err
 			}
-			results = ff.leaveOut(results)
-			pts, err := arrhenius.PointsFromResults(results)
+			pts, unused, err := pointsKeepGoing(ff.leaveOut(results), keepGoing)
 			if err != nil {
 				return err
 			}
+			notUsed = append(notUsed, unused...)
 			cmp, err := arrhenius.Compare(pts, o)
 			if err != nil {
 				return err
 			}
-			return out.emit(c, report.Comparison{Comparison: cmp})
+			if err := out.emit(c, report.Comparison{Comparison: cmp, NotUsed: notUsed}); err != nil {
+				return err
+			}
+			if len(notUsed) > 0 {
+				return partialError{len(notUsed)}
+			}
+			return nil
 		},
 	}
 	ff.register(c)
 	out.register(c, true)
+	registerKeepGoing(c, &keepGoing)
 	c.Flags().StringVar(&by, "by", "lot", "the column or metadata key that names the groups")
 	c.Flags().StringVar(&ref, "reference-group", "", "the group the others are compared with (default: the first met)")
 	c.Flags().StringVar(&tref, "tref", "", "temperature of the D ratio (default: the centre of the data in 1/T)")

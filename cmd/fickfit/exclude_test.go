@@ -99,10 +99,10 @@ func TestExcludeProfileFromLines(t *testing.T) {
 	demo := "../../testdata/demo"
 	ex := filepath.Join(t.TempDir(), "ex.csv")
 	os.WriteFile(ex, []byte("file,profile,depth_um,line,reason\n"+
-		"lims-export-HV-2307.csv,F7-2307-940-2,,,door opened\n"+
+		"lims-export-BAR-2307.csv,F7-2307-940-2,,,door opened\n"+
 		"F7-2291-880-1.csv,F7-2291-880-1,50,9,oxide layer\n"), 0o644)
 	points := func(args ...string) int {
-		code, out, errs := runCLI(t, append([]string{"arrhenius", "--by", "lot", "--format", "json", filepath.Join(demo, "coupons"), filepath.Join(demo, "lims-export-HV-2307.csv")}, args...)...)
+		code, out, errs := runCLI(t, append([]string{"arrhenius", "--by", "lot", "--format", "json", filepath.Join(demo, "coupons"), filepath.Join(demo, "lims-export-BAR-2307.csv")}, args...)...)
 		if code != 0 {
 			t.Fatalf("arrhenius: %d %s", code, errs)
 		}
@@ -122,7 +122,7 @@ func TestExcludeProfileFromLines(t *testing.T) {
 		t.Errorf("points %d without and %d with the exclusions", a, b)
 	}
 	out := filepath.Join(t.TempDir(), "rep")
-	code, _, errs := runCLI(t, "campaign", filepath.Join(demo, "coupons"), filepath.Join(demo, "lims-export-HV-2307.csv"), "--exclude", ex, "--out", out, "--no-png")
+	code, _, errs := runCLI(t, "campaign", filepath.Join(demo, "coupons"), filepath.Join(demo, "lims-export-BAR-2307.csv"), "--exclude", ex, "--out", out, "--no-png")
 	if code != 0 {
 		t.Fatalf("campaign: %d %s", code, errs)
 	}

@@ -1,8 +1,6 @@
 package main
 
 import (
-	"fmt"
-
 	"github.com/spf13/cobra"
 
 	"github.com/fickfit/fickfit/arrhenius"
@@ -17,6 +15,7 @@ func newFitCmd() *cobra.Command {
 	var ff fitFlags
 	var out outFlags
 	var history, qText, tref string
+	var keepGoing bool
 	c := &cobra.Command{
 		Use:   "fit FILE...",
 		Short: "Fit D (with confidence intervals) to each measured profile",
@@ -44,13 +43,16 @@ highest temperature), exact when D does not depend on concentration.`,
 			if err != nil {
 				return err
 			}
-			if streamable(&ff, history, qText, tref) {
+			if streamable(&ff, history, qText, tref, keepGoing) {
 				if handled, err := fitStreamed(c, args, &ff, o, &out); handled {
 					return err
 				}
 			}
-			ps, err := profile.ReadAll(args)
+			ps, notRead, err := readProfiles(args, keepGoing)
 			if err != nil {
+				return err
+			}
+			if err := ff.checkBelowLimit(ps); err != nil {
 				return err
 			}
 			if err := ff.excludePoints(ps, c.ErrOrStderr()); err != nil {
@@ -67,22 +69,24 @@ highest temperature), exact when D does not depend on concentration.`,
 				o.Bootstrap.Progress, batch.Progress = progress(c, "bootstrap", len(ps)), nil
 			}
 			results, errs := fit.FitAll(ps, o, batch)
-			worst := firstError(errs)
 			f := report.NewFits(ps, results, errs)
-			if len(f.Results) > 0 {
+			f.NotRead = notRead
+			if len(f.Results) > 0 || keepGoing {
 				if err := out.emit(c, f); err != nil {
 					return err
 				}
 			}
-			for _, e := range errs {
-				if e != nil && e != worst {
-					fmt.Fprintln(c.ErrOrStderr(), "fickfit:", report.EscapeText(e.Error()))
+			if keepGoing {
+				if n := len(notRead) + len(f.Failed); n > 0 {
+					return partialError{n}
 				}
+				return nil
 			}
-			return worst
+			return groupErrors(ps, errs)
 		},
 	}
 	ff.register(c)
+	registerKeepGoing(c, &keepGoing)
 	out.register(c, true)
 	c.Flags().StringVar(&history, "history", "", "furnace or service log (CSV of time and temperature) the part saw; needs --Q")
 	c.Flags().StringVar(&qText, "Q", "", "activation energy for --history (e.g. 142kJ/mol)")
@@ -103,6 +107,9 @@ func applyHistory(ps []profile.Profile, history, qText, tref string) error {
 		return usagef("--history needs the activation energy --Q to weigh the log's temperatures")
 	}
 	q, err := arrhenius.ParseEnergy(qText)
+	if err == nil {
+		err = arrhenius.CheckActivationEnergy(q)
+	}
 	if err != nil {
 		return usagef("--Q: %v", err)
 	}

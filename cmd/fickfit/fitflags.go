@@ -30,6 +30,8 @@ type fitFlags struct {
 	cal                          *profile.Calibration
 	dc, dcTable                  string
 	surface                      string
+	belowLimit                   string
+	calMargin                    string
 	exclude                      string
 	excl                         *profile.Exclusions
 	applied                      *profile.Applied
@@ -57,6 +59,9 @@ func (f *fitFlags) register(c *cobra.Command) {
 	fl.StringVar(&f.dcTable, "dc-table", "", "numeric model with --dc table: CSV of D against concentration (e.g. C_wt%,D_m2/s); its shape is kept and its scale fitted")
 	fl.StringVar(&f.surface, "surface", "fixed", "numeric model: surface condition: fixed (Cs) or masstransfer (beta, Cp)")
 	fl.StringVar(&f.hardnessCal, "hardness-calibration", "", "CSV of hardness–concentration pairs for this material: hardness profiles are converted to concentration before fitting")
+	fl.StringVar(&f.calMargin, "calibration-margin", "", "with --hardness-calibration: readings beyond the calibration's ends by at most this much are clamped to the end value (with a warning), further out they are left out: a hardness (10HV) or a share of the calibrated range (5%, the default)")
+	fl.StringVar(&f.belowLimit, "below-limit", "omit", "values written below a detection limit (<0.01, n.d.): omit (leave the points out, listed, with a warning) or refuse (stop with an error naming the line)")
+	_ = c.RegisterFlagCompletionFunc("below-limit", fixed("omit", "refuse"))
 	fl.StringVar(&f.exclude, "exclude", "", "exclusions file (CSV: file, profile, depth_um, line, reason; as fickfit serve saves it): points left out of the fits, profiles without a depth left out of the Arrhenius lines")
 	_ = c.RegisterFlagCompletionFunc("model", fixed(append(fit.ModelNames(), "numeric", "auto")...))
 	_ = c.RegisterFlagCompletionFunc("ci", fixed(fit.CIMethods()...))
@@ -76,6 +81,15 @@ func (f *fitFlags) options() (fit.Options, error) {
 	ci, err := fit.ParseCIMethod(f.ci)
 	if err != nil {
 		return fit.Options{}, usagef("--ci: %v", plain(err))
+	}
+	if err := checkModelName(f.model); err != nil {
+		return fit.Options{}, err
+	}
+	if f.resamples < 100 {
+		return fit.Options{}, usagef("--resamples %d: the bootstrap needs at least 100 resamples for a 95 %% interval (the default is 2000)", f.resamples)
+	}
+	if f.belowLimit != "omit" && f.belowLimit != "refuse" {
+		return fit.Options{}, usagef("--below-limit %q: use omit or refuse", f.belowLimit)
 	}
 	o := fit.Options{
 		Model: f.model, Level: f.level, CI: ci, AbsoluteSigma: f.absoluteSigma, Faces: f.faces,
@@ -156,7 +170,12 @@ func (f *fitFlags) options() (fit.Options, error) {
 		if err != nil {
 			return o, err
 		}
+		if err := cal.SetMargin(f.calMargin); err != nil {
+			return o, usagef("--calibration-margin: %v", err)
+		}
 		f.cal, o.Calibration = cal, cal
+	} else if f.calMargin != "" {
+		return o, usagef("--calibration-margin goes with --hardness-calibration")
 	}
 	if len(f.fix) > 0 {
 		o.Fixed = map[string]float64{}
@@ -169,6 +188,39 @@ func (f *fitFlags) options() (fit.Options, error) {
 		}
 	}
 	return o, nil
+}
+
+// checkModelName refuses an unknown --model at once, listing every model
+// the flag takes (the registered ones, numeric and auto), before any file
+// is read: a wrong name is one mistake, said once.
+func checkModelName(name string) error {
+	n := strings.ToLower(strings.TrimSpace(name))
+	valid := append(fit.ModelNames(), "numeric", "auto")
+	for _, v := range valid {
+		if n == v {
+			return nil
+		}
+	}
+	return usagef("--model %q: unknown model; use one of %s", name, strings.Join(valid, ", "))
+}
+
+// checkBelowLimit refuses, with --below-limit refuse, a profile holding a
+// value written below a detection limit, naming its line.
+func (f *fitFlags) checkBelowLimit(ps []profile.Profile) error {
+	if f.belowLimit != "refuse" {
+		return nil
+	}
+	for _, p := range ps {
+		if len(p.BelowLimit) > 0 {
+			b := p.BelowLimit[0]
+			where := fmt.Sprintf("%s:%d", p.Source, b.Line)
+			if b.Cell != "" {
+				where = p.Source + " cell " + b.Cell
+			}
+			return usagef("%s: profile %s: the value %q is written below a detection limit (--below-limit refuse): give a number, or leave the point out with --below-limit omit", where, p.ID, b.Text)
+		}
+	}
+	return nil
 }
 
 // excludePoints takes the points of --exclude out of the profiles

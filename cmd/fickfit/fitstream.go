@@ -28,29 +28,47 @@ import (
 // parse) before calling it.
 func fitStreamed(c *cobra.Command, args []string, ff *fitFlags, o fit.Options, out *outFlags) (handled bool, err error) {
 	adjust := ff.adjuster()
-	var adjustErr error
+	// Errors found in a profile are reported after the reading errors, and
+	// those of --below-limit refuse before the overrides', as when every
+	// file is read first; after one, no profile is fitted.
+	var belowErr, adjustErr error
 	read := func(yield func(*profile.Profile) error) error {
 		err := profile.Each(args, func(p *profile.Profile) error {
-			if adjustErr != nil {
+			if belowErr != nil || adjustErr != nil {
+				return nil
+			}
+			if err := ff.checkBelowLimit([]profile.Profile{*p}); err != nil {
+				belowErr = err
 				return nil
 			}
 			if err := adjust(p); err != nil {
-				adjustErr = err // reported after the reading errors, as when every file is read first
+				adjustErr = err
 				return nil
 			}
 			return yield(p)
 		})
-		if err != nil {
+		switch {
+		case err != nil:
 			return err
+		case belowErr != nil:
+			return belowErr
 		}
 		return adjustErr
 	}
 	batch := &fit.BatchOptions{Progress: progress(c, "fit", 1)}
+	var failed []profile.Profile // id and source of the profiles that gave no fit
+	var errs []error
 	doc := &report.FitStream{
 		Gather: strings.EqualFold(strings.TrimSpace(o.Model), "auto") && o.Custom == nil,
 		Run: func(keep bool, each func(*profile.Profile, *fit.Result, error) error) error {
 			batch.Reuse = !keep
-			return fit.FitEach(read, o, batch, each)
+			return fit.FitEach(read, o, batch, func(p *profile.Profile, r *fit.Result, err error) error {
+				if err != nil {
+					failed = append(failed, profile.Profile{ID: p.ID, Source: p.Source})
+					errs = append(errs, err)
+				}
+				return each(p, r, err)
+			})
 		},
 	}
 	err = out.emitWhole(c, doc)
@@ -62,13 +80,7 @@ func fitStreamed(c *cobra.Command, args []string, ff *fitFlags, o fit.Options, o
 	case err != nil && !errors.Is(err, report.ErrNoFits):
 		return true, err
 	}
-	worst := firstError(doc.Errs)
-	for _, e := range doc.Errs {
-		if e != worst {
-			fmt.Fprintln(c.ErrOrStderr(), "fickfit:", report.EscapeText(e.Error()))
-		}
-	}
-	return true, worst
+	return true, groupErrors(failed, errs)
 }
 
 // noStream turns fitStreamed off: the tests compare both ways.
@@ -77,12 +89,13 @@ var noStream bool
 // streamable tells whether fitStreamed takes the run: not for bootstrap
 // intervals (their progress counts the profiles in advance), nor with a
 // furnace history or --exclude (applied to the profiles read, reporting
-// the rows that matched none), nor when an override flag does not parse
+// the rows that matched none), nor with --keep-going (whose table lists the
+// inputs not read), nor when an override flag does not parse
 // (the error is then reported in its usual order, after the reading
 // errors).
-func streamable(ff *fitFlags, history, qText, tref string) bool {
+func streamable(ff *fitFlags, history, qText, tref string, keepGoing bool) bool {
 	return !noStream && !ff.bootstrap() && history == "" && qText == "" && tref == "" && ff.excl == nil &&
-		ff.override(nil) == nil
+		!keepGoing && ff.override(nil) == nil
 }
 
 // adjuster returns what override does, for one profile at a time.

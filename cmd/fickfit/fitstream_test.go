@@ -101,6 +101,24 @@ func TestFitStreamedSameAsWhole(t *testing.T) {
 	beyond := writeFile(t, dir, "beyond.csv", thick.String())
 	beyondThenBad := writeFile(t, dir, "beyondbad.csv", thick.String()+"C,0.5,0.8x,0.2\n")
 	dup := writeFile(t, dir, "dup.csv", lines[0]+strings.Join(lines[len(lines)-13:], ""))
+	// Values below a detection limit in S2 (a row's value) and S30 (a row
+	// more): left out of the points, listed, with a warning.
+	var belowRows strings.Builder
+	s2 := 0
+	for _, l := range lines {
+		switch {
+		case strings.HasPrefix(l, "S2,"):
+			if s2++; s2 == 3 {
+				f := strings.Split(strings.TrimSpace(l), ",")
+				f[4] = "<0.01"
+				l = strings.Join(f, ",") + "\n"
+			}
+		case strings.HasPrefix(l, "S30,") && !strings.Contains(belowRows.String(), "n.d."):
+			belowRows.WriteString("S30,925,4,0.5,n.d.\n")
+		}
+		belowRows.WriteString(l)
+	}
+	below := writeFile(t, dir, "below.csv", belowRows.String())
 	out := filepath.Join(dir, "out.csv")
 
 	for _, c := range []struct {
@@ -127,6 +145,9 @@ func TestFitStreamedSameAsWhole(t *testing.T) {
 		{"overrides", "", []string{"fit", good, "--ci", "wald", "--format", "csv", "--time", "5h", "--temperature", "930C"}, 0},
 		{"bad override", "", []string{"fit", late, "--ci", "wald", "--format", "csv", "--time", "5 parsecs"}, 2},
 		{"all fail", "", []string{"fit", withFailures, "--ci", "wald", "--format", "csv", "--fix", "D=1e-30", "--fix", "Cs=1", "--fix", "C0=0"}, 2},
+		{"below a detection limit json", "", []string{"fit", below, "--ci", "wald", "--format", "json"}, 0},
+		{"below a detection limit csv", "", []string{"fit", below, "--ci", "wald", "--format", "csv"}, 0},
+		{"below a detection limit refused", "", []string{"fit", below, "--ci", "wald", "--format", "csv", "--below-limit", "refuse", "--time", "5h"}, 2},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			code, stdout, stderr := bothWays(t, c.file, c.args...)

@@ -36,16 +36,16 @@ var goldenCommands = []struct {
 	name string
 	args []string
 }{
-	{"fit", []string{"fit", demoDir + "/coupons", demoDir + "/lims-export-HV-2307.csv"}},
+	{"fit", []string{"fit", demoDir + "/coupons", demoDir + "/lims-export-BAR-2307.csv"}},
 	{"fit-auto", []string{"fit", demoDir + "/coupons/F7-2291-880-1.csv", demoDir + "/coupons/F7-2291-970-2.csv",
 		"--model", "auto", "--case-threshold", "0.35wt%", "--temperature-unit", "F"}},
-	{"arrhenius", []string{"arrhenius", demoDir + "/coupons", demoDir + "/lims-export-HV-2307.csv", "--by", "lot"}},
-	{"compare", []string{"compare", demoDir + "/coupons", demoDir + "/lims-export-HV-2307.csv", "--by", "lot"}},
+	{"arrhenius", []string{"arrhenius", demoDir + "/coupons", demoDir + "/lims-export-BAR-2307.csv", "--by", "lot"}},
+	{"compare", []string{"compare", demoDir + "/coupons", demoDir + "/lims-export-BAR-2307.csv", "--by", "lot"}},
 	{"backcalc", []string{"backcalc", demoDir + "/unknown/pinion-7731.csv", "--solve", "temperature", "--time", "6h",
-		"--calibration", goldenDir + "/arrhenius.json:HV-2291", "--method", "both"}},
+		"--calibration", goldenDir + "/arrhenius.json:BAR-2291", "--method", "both"}},
 	{"backcalc-time", []string{"backcalc", demoDir + "/unknown/pinion-7731.csv", "--solve", "time", "--temperature", "925C",
 		"--reference", "C-in-gamma-Fe"}},
-	{"predict", []string{"predict", "--calibration", goldenDir + "/arrhenius.json:HV-2291", "--temperature", "925C", "--time", "5h",
+	{"predict", []string{"predict", "--calibration", goldenDir + "/arrhenius.json:BAR-2291", "--temperature", "925C", "--time", "5h",
 		"--Cs", "1.0", "--C0", "0.2", "--case-threshold", "0.35wt%", "--points", "11"}},
 	{"predict-target", []string{"predict", "--reference", "C-in-gamma-Fe", "--temperature", "925C",
 		"--Cs", "1.0", "--C0", "0.2", "--case-threshold", "0.35wt%", "--target-depth", "0.9mm"}},
@@ -114,7 +114,7 @@ func TestGoldenCommands(t *testing.T) {
 // for the same profiles.
 func TestGoldenCampaign(t *testing.T) {
 	out := filepath.Join(t.TempDir(), "report")
-	code, _, stderr := runCLI(t, "campaign", demoDir+"/coupons", demoDir+"/lims-export-HV-2307.csv", demoDir+"/unknown",
+	code, _, stderr := runCLI(t, "campaign", demoDir+"/coupons", demoDir+"/lims-export-BAR-2307.csv", demoDir+"/unknown",
 		"--out", out, "--no-png")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
@@ -135,7 +135,7 @@ func TestGoldenCampaign(t *testing.T) {
 	if err := json.Unmarshal(b, &doc); err != nil {
 		t.Fatal(err)
 	}
-	_, cmp, _ := runCLI(t, "compare", demoDir+"/coupons", demoDir+"/lims-export-HV-2307.csv", "--by", "lot", "--format", "json")
+	_, cmp, _ := runCLI(t, "compare", demoDir+"/coupons", demoDir+"/lims-export-BAR-2307.csv", "--by", "lot", "--format", "json")
 	var c1, c2 map[string]any
 	json.Unmarshal(doc.Comparison, &c1)
 	json.Unmarshal([]byte(cmp), &c2)
@@ -143,7 +143,7 @@ func TestGoldenCampaign(t *testing.T) {
 	if !reflect.DeepEqual(c1, c2) || !strings.Contains(string(b), `(p < 0.001)`) {
 		t.Errorf("results.json's lot_comparison differs from fickfit compare --format json")
 	}
-	_, want, _ := runCLI(t, "arrhenius", demoDir+"/coupons", demoDir+"/lims-export-HV-2307.csv", "--by", "lot", "--format", "csv")
+	_, want, _ := runCLI(t, "arrhenius", demoDir+"/coupons", demoDir+"/lims-export-BAR-2307.csv", "--by", "lot", "--format", "csv")
 	got, _ := os.ReadFile(filepath.Join(out, "arrhenius.csv"))
 	if string(got) != want {
 		t.Errorf("campaign arrhenius.csv differs from fickfit arrhenius --format csv:\n%s", firstDiff(want, string(got)))

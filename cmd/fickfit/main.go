@@ -16,10 +16,12 @@ import (
 	"strings"
 	"syscall"
 
+	"github.com/fickfit/fickfit/arrhenius"
 	"github.com/fickfit/fickfit/fit"
 	"github.com/fickfit/fickfit/internal/cleanup"
 	"github.com/fickfit/fickfit/profile"
 	"github.com/fickfit/fickfit/report"
+	"github.com/spf13/cobra"
 )
 
 // Exit statuses (docs/output.md, "Exit status").
@@ -87,8 +89,28 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	if err == nil {
 		return exitOK
 	}
-	fmt.Fprintln(stderr, "fickfit:", report.EscapeText(err.Error()))
+	fmt.Fprintln(stderr, "fickfit:", report.EscapeText(errorText(root, args, err)))
 	return exitCode(err)
+}
+
+// errorText is err's message with the temperatures of an Arrhenius error
+// in the unit of the command's --temperature-unit (°C when not given or
+// not understood).
+func errorText(root *cobra.Command, args []string, err error) string {
+	msg := err.Error()
+	var ae *arrhenius.Error
+	if !errors.As(err, &ae) {
+		return msg
+	}
+	u := report.Celsius
+	if c, _, ferr := root.Find(args); ferr == nil {
+		if f := c.Flags().Lookup("temperature-unit"); f != nil {
+			if pu, perr := report.ParseTempUnit(f.Value.String()); perr == nil {
+				u = pu
+			}
+		}
+	}
+	return strings.Replace(msg, ae.Error(), ae.Render(func(k float64) string { return report.Temperature(k, u) }), 1)
 }
 
 // usageError marks errors in the command line itself.
@@ -104,7 +126,10 @@ func usagef(format string, args ...any) error {
 // are 1, everything the user can fix in the input or the command is 2.
 func exitCode(err error) int {
 	var pe *profile.Error
+	var partial partialError
 	switch {
+	case errors.As(err, &partial):
+		return exitPartial
 	case errors.Is(err, fit.ErrNoAnswer):
 		return exitNoAnswer
 	case errors.As(err, &pe), errors.Is(err, fit.ErrBadInput):

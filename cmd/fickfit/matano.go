@@ -103,13 +103,32 @@ so.`,
 	return c
 }
 
+// figureExt refuses a --figure path that is not .svg or .png.
+func figureExt(path string) error {
+	if ext := strings.ToLower(filepath.Ext(path)); ext != ".svg" && ext != ".png" {
+		return usagef("--figure %s: name an .svg or .png file", path)
+	}
+	return nil
+}
+
+// writeFigure writes f to path, SVG or PNG by extension, whole or not at
+// all, never over an input.
+func writeFigure(path string, f *report.Figure, o report.Output) error {
+	return o.WriteFile(path, func(w io.Writer) error {
+		if strings.EqualFold(filepath.Ext(path), ".png") {
+			return f.WritePNG(w, 0)
+		}
+		return f.WriteSVG(w)
+	})
+}
+
 // writeMatanoFigures draws each analysis to path (SVG or PNG by extension),
 // never over an input.
 func writeMatanoFigures(path string, results []*matano.Result, ps []profile.Profile, o report.Output) error {
-	ext := strings.ToLower(filepath.Ext(path))
-	if ext != ".svg" && ext != ".png" {
-		return usagef("--figure %s: name an .svg or .png file", path)
+	if err := figureExt(path); err != nil {
+		return err
 	}
+	ext := strings.ToLower(filepath.Ext(path))
 	for i, r := range results {
 		f, err := report.MatanoFigure(r, &ps[i], report.FigureOptions{})
 		if err != nil {
@@ -119,13 +138,7 @@ func writeMatanoFigures(path string, results []*matano.Result, ps []profile.Prof
 		if len(results) > 1 {
 			target = strings.TrimSuffix(path, filepath.Ext(path)) + "-" + f.Name + ext
 		}
-		err = o.WriteFile(target, func(w io.Writer) error {
-			if ext == ".png" {
-				return f.WritePNG(w, 0)
-			}
-			return f.WriteSVG(w)
-		})
-		if err != nil {
+		if err := writeFigure(target, f, o); err != nil {
 			return err
 		}
 	}

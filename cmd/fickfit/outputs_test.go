@@ -735,10 +735,11 @@ func TestDigits(t *testing.T) {
 		def, wider string
 	}{
 		{[]string{"fit", coupon, "--fix", "C0=0.2", "--ci", "wald"}, "C0  0.200 wt%", "C0  0.200000 wt%"},
-		{[]string{"predict", "--reference", "C-in-gamma-Fe", "--temperature", "925C", "--Cs", "1.0", "--C0", "0.2",
+		// A reference row taken as exact (no spread): its numbers carry no interval.
+		{[]string{"predict", "--reference", "C-in-gamma-Fe", "--reference-spread", "1", "--reference-Q-uncertainty", "0%", "--temperature", "925C", "--Cs", "1.0", "--C0", "0.2",
 			"--case-threshold", "0.35wt%", "--target-depth", "0.9mm"}, "hold time      7.97 h", "hold time      7.97407 h"},
-		{[]string{"backcalc", demoDir + "/unknown/pinion-7731.csv", "--solve", "time", "--temperature", "925C", "--reference", "C-in-gamma-Fe"},
-			"(1.53 eV)", "(1.53391 eV)"},
+		{[]string{"backcalc", demoDir + "/unknown/pinion-7731.csv", "--solve", "time", "--temperature", "925C", "--reference", "C-in-gamma-Fe",
+			"--reference-spread", "1", "--reference-Q-uncertainty", "0%"}, "(1.53 eV)", "(1.53391 eV)"},
 		{[]string{"matano", goldenDir + "/couple-NiCu.csv", "--resamples", "-1"}, "4.04 × 10⁻¹⁵", "4.04054 × 10⁻¹⁵"},
 	} {
 		_, def, _ := runCLI(t, tc.args...)

@@ -14,7 +14,7 @@ func init() { addCommands(newPredictCmd) }
 func newPredictCmd() *cobra.Command {
 	var out outFlags
 	var cal calFlags
-	var temperature, tm, history, threshold, target, maxDepth string
+	var temperature, tm, history, threshold, target, maxDepth, figure string
 	var cs, c0, level float64
 	var points int
 	c := &cobra.Command{
@@ -31,12 +31,20 @@ level Cs, D independent of concentration, a semi-infinite part, the
 calibration's temperature range). Verify by metallography on the first
 parts, let the applicable specifications decide, and defer to local codes
 and licensed engineering judgement.`,
-		Example: `  fickfit predict --calibration line.json:HV-2291 --temperature 925C --time 5h --Cs 1.0 --C0 0.2 --case-threshold 0.35wt%
+		Example: `  fickfit predict --calibration line.json:BAR-2291 --temperature 925C --time 5h --Cs 1.0 --C0 0.2 --case-threshold 0.35wt% --figure plan.svg
   fickfit predict --reference C-in-gamma-Fe --temperature 925C --Cs 1.0 --C0 0.2 --case-threshold 0.35wt% --target-depth 0.9mm`,
 		Args: cobra.NoArgs,
 		RunE: func(c *cobra.Command, args []string) error {
 			if err := out.check(nil); err != nil {
 				return err
+			}
+			if figure != "" {
+				if err := figureExt(figure); err != nil {
+					return err
+				}
+				if target != "" {
+					return usagef("--figure draws the profile of a schedule; with --target-depth there is none: run predict again with --time set to the solved hold time")
+				}
 			}
 			calib, err := cal.calibration()
 			if err != nil {
@@ -112,6 +120,15 @@ and licensed engineering judgement.`,
 					p.CaseDepth, p.Threshold = q.CaseDepth, q.Threshold
 				}
 				preds = append(preds, p)
+				if figure != "" {
+					f, err := report.PredictionFigure(p, report.FigureOptions{TempUnit: out.unit})
+					if err != nil {
+						return err
+					}
+					if err := writeFigure(figure, f, out.output()); err != nil {
+						return err
+					}
+				}
 			}
 			return out.emit(c, report.Predictions(preds))
 		},
@@ -129,6 +146,8 @@ and licensed engineering judgement.`,
 	fl.StringVar(&maxDepth, "max-depth", "2mm", "deepest point of the predicted profile")
 	fl.IntVar(&points, "points", 41, "number of depths in the predicted profile (2 to 10000)")
 	fl.Float64Var(&level, "level", 0.95, "confidence level of the bands")
+	fl.StringVar(&figure, "figure", "", "also draw the predicted profile, its bands and the case depth to this .svg or .png file")
+	markOutput(c, "figure")
 	_ = c.MarkFlagRequired("Cs")
 	_ = c.MarkFlagRequired("C0")
 	return c

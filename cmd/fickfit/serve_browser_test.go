@@ -296,7 +296,7 @@ func TestWorkbenchInBrowser(t *testing.T) {
 		m, _ := filepath.Glob(filepath.Join(demo, d, "*.csv"))
 		files = append(files, m...)
 	}
-	files = append(files, filepath.Join(demo, "lims-export-HV-2307.csv"))
+	files = append(files, filepath.Join(demo, "lims-export-BAR-2307.csv"))
 
 	const id = "F7-2291-880-1"
 	coupon := filepath.Join(demo, "coupons", id+".csv")
@@ -341,7 +341,7 @@ func TestWorkbenchInBrowser(t *testing.T) {
 		t.Errorf("D with the point excluded: page %v, fickfit fit --exclude %v", d1, got)
 	}
 
-	// Arrhenius: leave a coupon of lot HV-2307 out of its line.
+	// Arrhenius: leave a coupon of lot BAR-2307 out of its line.
 	count := `document.querySelectorAll("#a-plot .apoint:not(.excluded)").length`
 	target := `#a-plot .apoint[data-id="F7-2307-940-2"]`
 	b.do(t, "open the Arrhenius tab", click(`.tabs button[data-tab="arrhenius"]`), visible(target+` circle.hit`))

@@ -105,7 +105,7 @@ func withoutCalibrationName(t *testing.T, raw json.RawMessage) string {
 // current line, number for number (common practice, no source).
 func TestWorkbenchExclusionsReproducedByTheCommandLine(t *testing.T) {
 	demo := "../../testdata/demo"
-	inputs := []string{demo + "/coupons", demo + "/lims-export-HV-2307.csv", demo + "/unknown"}
+	inputs := []string{demo + "/coupons", demo + "/lims-export-BAR-2307.csv", demo + "/unknown"}
 	_, url := workbench(t, inputs...)
 	page(t, "POST", url+"api/exclude", []byte(`{"id":"F7-2291-880-1","index":0,"reason":"oxide layer"}`), nil)
 	page(t, "POST", url+"api/exclude", []byte(`{"id":"F7-2307-970-2","index":5,"reason":"indent on a carbide"}`), nil)
@@ -152,16 +152,16 @@ func TestWorkbenchExclusionsReproducedByTheCommandLine(t *testing.T) {
 		t.Errorf("%d excluded points in the page's results.json", len(pts))
 	}
 
-	// The back-calculation from the current line of lot HV-2291.
+	// The back-calculation from the current line of lot BAR-2291.
 	var bc struct {
 		Solution json.RawMessage `json:"solution"`
 	}
 	page(t, "POST", url+"api/backcalc", []byte(`{"id":"pinion-7731","solve":"temperature"}`), &bc)
 	line := dir + "/line.json"
-	if code, _, errs := runCLI(t, "arrhenius", "--by", "lot", demo+"/coupons", demo+"/lims-export-HV-2307.csv", "--exclude", exFile, "--format", "json", "-o", line); code != 0 {
+	if code, _, errs := runCLI(t, "arrhenius", "--by", "lot", demo+"/coupons", demo+"/lims-export-BAR-2307.csv", "--exclude", exFile, "--format", "json", "-o", line); code != 0 {
 		t.Fatalf("arrhenius: %s", errs)
 	}
-	code, out, errs := runCLI(t, "backcalc", demo+"/unknown/pinion-7731.csv", "--calibration", line+":HV-2291", "--exclude", exFile, "--format", "json")
+	code, out, errs := runCLI(t, "backcalc", demo+"/unknown/pinion-7731.csv", "--calibration", line+":BAR-2291", "--exclude", exFile, "--format", "json")
 	if code != 0 {
 		t.Fatalf("backcalc: %s", errs)
 	}

@@ -29,9 +29,10 @@ import (
 	"runtime"
 	"sort"
 	"strings"
-	"sync"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/parallel"
+	"github.com/fickfit/fickfit/internal/stats"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -300,11 +301,13 @@ func analyze(p *profile.Profile, t float64, o Options) (*Result, error) {
 	}
 	if y0, y1 := smooth.Y(x[0]), smooth.Y(x[n-1]); y0 > 0.03 || y1 < 0.97 {
 		side := []string{}
+		// Said the same way at both ends: the share of the step from one end
+		// composition to the other not yet covered at the outermost point.
 		if y0 > 0.03 {
-			side = append(side, fmt.Sprintf("shallow end (reached %.0f %% of the way at the first point)", 100*y0))
+			side = append(side, fmt.Sprintf("shallow end (%.0f %% of the step short at the first point)", 100*y0))
 		}
 		if y1 < 0.97 {
-			side = append(side, fmt.Sprintf("deep end (%.0f %% at the last point)", 100*y1))
+			side = append(side, fmt.Sprintf("deep end (%.0f %% of the step short at the last point)", 100*(1-y1)))
 		}
 		r.warn("ends-not-reached", "the profile does not reach the end composition at the %s: the end levels %.4g and %.4g are extrapolated by the smoother, so the Matano plane and D near that end are uncertain; measure further out", strings.Join(side, " and the "), smooth.CL, smooth.CR)
 	}
@@ -375,37 +378,27 @@ func (r *Result) bootstrap(pl *pipeline, sc scaling, v []float64, sel *candidate
 		res[i] = (res[i] - mean) * infl
 	}
 	reps := make([][]float64, B) // D at each concentration, per replicate; nil = failed
-	var wg sync.WaitGroup
-	jobs := make(chan int)
-	for w := 0; w < workers; w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			ys := make([]float64, n)
-			var work lmWork
-			for b := range jobs {
-				rng := rand.New(rand.NewPCG(o.Seed, uint64(b)))
-				for i := range ys {
-					ys[i] = fitted[i] + res[rng.IntN(n)]
-				}
-				c := pl.run(ys, &work)
-				if c == nil {
-					continue
-				}
-				s := sc.smooth(c.k, c.p)
-				d := make([]float64, len(cs))
-				for j, c := range cs {
-					d[j] = dAt(s, c)
-				}
-				reps[b] = d
-			}
-		}()
+	type scratch struct {
+		ys   []float64
+		work lmWork
 	}
-	for b := 0; b < B; b++ {
-		jobs <- b
-	}
-	close(jobs)
-	wg.Wait()
+	newScratch := func() *scratch { return &scratch{ys: make([]float64, n)} }
+	parallel.Scratch(B, workers, newScratch, func(b int, w *scratch) {
+		rng := rand.New(rand.NewPCG(o.Seed, uint64(b)))
+		for i := range w.ys {
+			w.ys[i] = fitted[i] + res[rng.IntN(n)]
+		}
+		c := pl.run(w.ys, &w.work)
+		if c == nil {
+			return
+		}
+		s := sc.smooth(c.k, c.p)
+		d := make([]float64, len(cs))
+		for j, c := range cs {
+			d[j] = dAt(s, c)
+		}
+		reps[b] = d
+	}, nil)
 	failed := 0
 	for _, d := range reps {
 		if d == nil {
@@ -431,7 +424,7 @@ func (r *Result) bootstrap(pl *pipeline, sc scaling, v []float64, sel *candidate
 			continue
 		}
 		sort.Float64s(vals)
-		iv := fit.Interval{Lo: quantile(vals, alpha), Hi: quantile(vals, 1-alpha)}
+		iv := fit.Interval{Lo: stats.BootstrapQuantile(vals, alpha), Hi: stats.BootstrapQuantile(vals, 1-alpha)}
 		r.Points[j].CI = iv
 		if yy := (cs[j] - r.Smooth.CL) / (r.Smooth.CR - r.Smooth.CL); yy >= 0.1 && yy <= 0.9 && iv.Hi > 3*iv.Lo {
 			wide = append(wide, fmt.Sprintf("%.4g", cs[j]))
@@ -441,26 +434,6 @@ func (r *Result) bootstrap(pl *pipeline, sc scaling, v []float64, sel *candidate
 		r.warn("wide-band", "the %.0f %% band spans more than a factor 3 at %s: the profile does not determine D there", 100*level, strings.Join(wide, ", "))
 	}
 	return nil
-}
-
-// quantile is the sample quantile of sorted data at the plotting position
-// p(B + 1) (Hyndman & Fan, Amer. Statist. 50 (1996) 361–365, type 6),
-// linearly interpolated: the bootstrap convention of taking the
-// (B + 1)p-th of the B ordered replicates (A. C. Davison & D. V. Hinkley,
-// Bootstrap Methods and their Application, CUP 1997, §5.2; from memory).
-// R's default (type 7) takes the (1 + (B − 1)p)-th, which for B = 119 and
-// p = 0.025 is the 3.95th instead of the 3rd and gives a visibly narrower
-// band when B is small.
-func quantile(s []float64, p float64) float64 {
-	h := p*float64(len(s)+1) - 1 // 0-based position
-	switch {
-	case h <= 0:
-		return s[0]
-	case h >= float64(len(s)-1):
-		return s[len(s)-1]
-	}
-	lo := int(math.Floor(h))
-	return s[lo] + (h-float64(lo))*(s[lo+1]-s[lo])
 }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }

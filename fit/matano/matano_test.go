@@ -8,10 +8,12 @@ import (
 	"os"
 	"reflect"
 	"sort"
+	"strings"
 	"testing"
 
 	"github.com/fickfit/fickfit/fit"
 	"github.com/fickfit/fickfit/fit/numeric"
+	"github.com/fickfit/fickfit/internal/stats"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -257,6 +259,30 @@ func TestWarnings(t *testing.T) {
 	if err == nil && !hasWarning(r, "ends-not-reached") {
 		t.Errorf("no ends-not-reached warning on a truncated profile: %v", r.Warnings)
 	}
+	// A symmetric profile cut short at both ends is said the same way at
+	// both ends (the same share of the step short).
+	r, err = Analyze(couple(5, 40, -0.9*w, 0.9*w, tm, 0, f), 0, Options{Resamples: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !hasWarning(r, "ends-not-reached") {
+		t.Fatalf("no ends-not-reached warning on a profile cut at both ends: %v", r.Warnings)
+	}
+	for _, wn := range r.Warnings {
+		if wn.Code != "ends-not-reached" {
+			continue
+		}
+		a := strings.Index(wn.Message, "shallow end (")
+		b := strings.Index(wn.Message, "deep end (")
+		if a < 0 || b < 0 {
+			t.Fatalf("message %q", wn.Message)
+		}
+		pa := strings.Fields(wn.Message[a+len("shallow end ("):])[0]
+		pb := strings.Fields(wn.Message[b+len("deep end ("):])[0]
+		if pa != pb || !strings.Contains(wn.Message, "of the step short at the first point") || !strings.Contains(wn.Message, "of the step short at the last point") {
+			t.Errorf("symmetric profile said differently at its ends: %q", wn.Message)
+		}
+	}
 	// Few points.
 	r, err = Analyze(couple(4, 12, -4*w, 4*w, tm, 0.1, f), 0, Options{Resamples: -1})
 	if err != nil || !hasWarning(r, "few-points") {
@@ -346,8 +372,8 @@ func TestQuantileType6(t *testing.T) {
 		s := append([]float64(nil), c.Data...)
 		sort.Float64s(s)
 		for i, p := range c.P {
-			if got := quantile(s, p); math.Abs(got-c.Quantile[i]) > 1e-12*math.Max(1, math.Abs(c.Quantile[i])) {
-				t.Errorf("quantile(%v, %g) = %.15g, scipy %.15g", c.Data, p, got, c.Quantile[i])
+			if got := stats.BootstrapQuantile(s, p); math.Abs(got-c.Quantile[i]) > 1e-12*math.Max(1, math.Abs(c.Quantile[i])) {
+				t.Errorf("BootstrapQuantile(%v, %g) = %.15g, scipy %.15g", c.Data, p, got, c.Quantile[i])
 			}
 		}
 	}
@@ -356,7 +382,7 @@ func TestQuantileType6(t *testing.T) {
 	for i := range s {
 		s[i] = float64(i + 1)
 	}
-	if lo, hi := quantile(s, 0.025), quantile(s, 0.975); lo != 3 || hi != 117 {
+	if lo, hi := stats.BootstrapQuantile(s, 0.025), stats.BootstrapQuantile(s, 0.975); lo != 3 || hi != 117 {
 		t.Errorf("2.5 %% and 97.5 %% of 1…119: %g and %g, want 3 and 117", lo, hi)
 	}
 }

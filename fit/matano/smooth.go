@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/stats"
 )
 
 // Smooth is the monotone curve fitted to a couple's profile before it is
@@ -63,8 +64,9 @@ func (s *Smooth) MatanoPlane() float64 {
 	return xm
 }
 
-// Position returns the x at which Y(x) = y, 0 < y < 1, by bisection
-// polished with Newton steps; ok is false outside (0, 1).
+// Position returns the x at which Y(x) = y, 0 < y < 1, by the project's
+// bracketing root finder (stats.Root) between ends 40 widths beyond the
+// outermost terms; ok is false outside (0, 1).
 func (s *Smooth) Position(y float64) (x float64, ok bool) {
 	if !(y > 0 && y < 1) {
 		return math.NaN(), false
@@ -74,27 +76,8 @@ func (s *Smooth) Position(y float64) (x float64, ok bool) {
 		lo = math.Min(lo, s.M[k]-40*s.S[k])
 		hi = math.Max(hi, s.M[k]+40*s.S[k])
 	}
-	for i := 0; i < 80; i++ { // 80 halvings of 80 widths: below rounding
-		mid := 0.5 * (lo + hi)
-		if s.Y(mid) < y {
-			lo = mid
-		} else {
-			hi = mid
-		}
-	}
-	x = 0.5 * (lo + hi)
-	for i := 0; i < 3; i++ {
-		g := s.slopeY(x)
-		if !(g > 0) {
-			break
-		}
-		nx := x - (s.Y(x)-y)/g
-		if !(nx >= lo && nx <= hi) {
-			break
-		}
-		x = nx
-	}
-	return x, true
+	f := func(x float64) float64 { return s.Y(x) - y }
+	return stats.Root(f, lo, f(lo), hi, f(hi), 1e-15)
 }
 
 // boltzmannMatano returns D at the position x* (Boltzmann–Matano):

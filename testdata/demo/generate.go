@@ -16,9 +16,9 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-)
 
-const R = 8.314462618
+	"github.com/fickfit/fickfit/internal/phys"
+)
 
 type lot struct {
 	name   string
@@ -29,9 +29,11 @@ type lot struct {
 func main() {
 	dir := filepath.Join("testdata", "demo")
 	rng := rand.New(rand.NewPCG(2026, 12))
+	// Lots are named by the bar supplier's heat numbers ("BAR-"), so that
+	// no lot name reads like a hardness value.
 	lots := []lot{
-		{"HV-2291", 2.1e-5, 142.0e3, 0.95, 0.19},
-		{"HV-2307", 3.4e-5, 145.5e3, 0.98, 0.21},
+		{"BAR-2291", 2.1e-5, 142.0e3, 0.95, 0.19},
+		{"BAR-2307", 3.4e-5, 145.5e3, 0.98, 0.21},
 	}
 	temps := []float64{880, 910, 940, 970} // °C
 	hours := []float64{5, 4, 3, 2.5}
@@ -40,9 +42,9 @@ func main() {
 	for li, l := range lots {
 		for ti, tc := range temps {
 			for rep := 1; rep <= 3; rep++ {
-				id := fmt.Sprintf("F7-%s-%d-%d", l.name[3:], int(tc), rep)
+				id := fmt.Sprintf("F7-%s-%d-%d", strings.TrimPrefix(l.name, "BAR-"), int(tc), rep)
 				T := tc + 273.15 + rng.NormFloat64()*2 // furnace scatter
-				D := l.d0 * math.Exp(-l.q/(R*T))
+				D := l.d0 * math.Exp(-l.q/(phys.R*T))
 				t := hours[ti] * 3600
 				cs := l.cs + 0.02*rng.NormFloat64()
 				c0 := l.c0 + 0.005*rng.NormFloat64()
@@ -67,16 +69,16 @@ func main() {
 			}
 		}
 	}
-	write(filepath.Join(dir, "lims-export-HV-2307.csv"), long.String())
+	write(filepath.Join(dir, "lims-export-BAR-2307.csv"), long.String())
 
 	// The unknown part: a pinion from a load that ran 6 h while the F7
-	// controller logged a fault. Lot HV-2291. Which temperature did it see?
+	// controller logged a fault. Lot BAR-2291. Which temperature did it see?
 	l := lots[0]
 	T := 926 + 273.15
-	D := l.d0 * math.Exp(-l.q/(R*T))
+	D := l.d0 * math.Exp(-l.q/(phys.R*T))
 	t := 6 * 3600.0
 	var b strings.Builder
-	b.WriteString("# id: pinion-7731\n# lot: HV-2291\n# time: 6 h\n# unknown: temperature\n# quantity: C\n")
+	b.WriteString("# id: pinion-7731\n# lot: BAR-2291\n# time: 6 h\n# unknown: temperature\n# quantity: C\n")
 	b.WriteString("# note: load 7731, F7 controller fault alarm; hold temperature unknown\n")
 	b.WriteString("depth_um;C_wt%\n")
 	for x := 50.0; x <= 2400; x += 75 {
