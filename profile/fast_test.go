@@ -376,3 +376,21 @@ func (c *chunkReader) Read(p []byte) (int, error) {
 	c.s = c.s[n:]
 	return n, nil
 }
+
+// TestIsBelowLimitQuickReject: the first-character check before the
+// pattern changes no answer (self-check against the pattern alone).
+func TestIsBelowLimitQuickReject(t *testing.T) {
+	rng := rand.New(rand.NewPCG(15, 7))
+	atoms := []string{"<", "≤", "&lt;", "n", "N", ".", "d", "D", "/", "b", "l", "L", "0", "1", ",", "e-3", " ", "\t", "\u00a0", "lod", "LOQ",
+		"not detected", "below detection limit", "x", "-", "+"}
+	for k := 0; k < 20000; k++ {
+		var b strings.Builder
+		for n := rng.IntN(5); n >= 0; n-- {
+			b.WriteString(atoms[rng.IntN(len(atoms))])
+		}
+		s := b.String()
+		if got, want := IsBelowLimit(s), belowLimitRe.MatchString(s); got != want {
+			t.Fatalf("%q: %v, pattern %v", s, got, want)
+		}
+	}
+}
