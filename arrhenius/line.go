@@ -121,7 +121,10 @@ func (l *Line) D0CI() fit.Interval {
 
 // LnDAt returns ln D on the line at T (K) and its standard error.
 func (l *Line) LnDAt(T float64) (lnD, se float64) {
-	lnD, v := l.Calibration().LnD(T)
+	// Only the coefficients enter; Calibration() would also scan every
+	// point for the temperature range, once per call (quadratic in a
+	// figure or table that asks at every point).
+	lnD, v := Calibration{LnD0: l.LnD0, Q: l.Q, Cov: l.Cov}.LnD(T)
 	return lnD, math.Sqrt(v)
 }
 

@@ -1,7 +1,6 @@
 package fit
 
 import (
-	"bufio"
 	"bytes"
 	"encoding/json"
 	"fmt"
@@ -11,11 +10,12 @@ import (
 	"path/filepath"
 	"runtime"
 	"runtime/metrics"
-	"strconv"
 	"sync/atomic"
 	"testing"
 	"time"
 
+	"github.com/fickfit/fickfit/internal/longtable"
+	"github.com/fickfit/fickfit/internal/measure"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -68,6 +68,93 @@ func BenchmarkFitAll10k(b *testing.B) {
 	b.ReportMetric(perBatch/float64(len(ps))*1e6, "µs/fit")
 }
 
+// BenchmarkFitEach10k fits the profiles of BenchmarkFitAll10k through
+// FitEach, each result handed to a done that only reads it (a summary
+// row): with results kept, and with their storage lent to later fits
+// (Reuse). Reported: µs/fit, and allocations per fit.
+func BenchmarkFitEach10k(b *testing.B) {
+	ps := batchProfiles(10000, 50, 1)
+	o := Options{CI: "wald"}
+	for _, reuse := range []bool{false, true} {
+		b.Run(fmt.Sprintf("reuse=%v", reuse), func(b *testing.B) {
+			b.ReportAllocs()
+			failed := 0
+			sum := 0.0
+			for b.Loop() {
+				failed = 0
+				err := FitEach(func(yield func(*profile.Profile) error) error {
+					for k := range ps {
+						if err := yield(&ps[k]); err != nil {
+							return err
+						}
+					}
+					return nil
+				}, o, &BatchOptions{Reuse: reuse}, func(p *profile.Profile, r *Result, err error) error {
+					if err != nil {
+						failed++
+						return nil
+					}
+					sum += r.Params[0].Value + r.Stats.RunsP
+					return nil
+				})
+				if err != nil {
+					b.Fatal(err)
+				}
+			}
+			if failed > 0 {
+				b.Errorf("%d of %d fits failed", failed, len(ps))
+			}
+			b.ReportMetric(b.Elapsed().Seconds()/float64(b.N)/float64(len(ps))*1e6, "µs/fit")
+		})
+	}
+}
+
+// BenchmarkFitLongTable20k fits the profiles of the throughput
+// comparison's table (internal/longtable: 20,000 × 50 points, read once)
+// with Wald intervals as fickfit fit --format csv does: FitEach, results
+// reused, a done that only reads each result. Reported: µs per fit (wall,
+// all cores) and CPU µs per fit.
+func BenchmarkFitLongTable20k(b *testing.B) {
+	var buf bytes.Buffer
+	if err := longtable.Write(&buf, longtable.Options{Profiles: 20000, Points: 50, Seed: 5}); err != nil {
+		b.Fatal(err)
+	}
+	ps, err := profile.ReadCSV(&buf, "long.csv")
+	if err != nil {
+		b.Fatal(err)
+	}
+	o := Options{CI: CIWald}
+	b.ReportAllocs()
+	cpu0 := measure.CPU()
+	failed := 0
+	for b.Loop() {
+		failed = 0
+		err := FitEach(func(yield func(*profile.Profile) error) error {
+			for k := range ps {
+				if err := yield(&ps[k]); err != nil {
+					return err
+				}
+			}
+			return nil
+		}, o, &BatchOptions{Reuse: true}, func(p *profile.Profile, r *Result, err error) error {
+			if err != nil {
+				failed++
+			}
+			return nil
+		})
+		if err != nil {
+			b.Fatal(err)
+		}
+	}
+	if failed > 0 {
+		b.Errorf("%d of %d fits failed", failed, len(ps))
+	}
+	b.ReportMetric(b.Elapsed().Seconds()/float64(b.N)/float64(len(ps))*1e6, "µs/fit")
+	if cpu := measure.CPU(); cpu > 0 {
+		b.ReportMetric((cpu-cpu0).Seconds()/float64(b.N)/float64(len(ps))*1e6, "cpu-µs/fit")
+	}
+}
+
 // TestFitAllOrderAndDeterminism: FitAll returns the results in input order,
 // each identical (to the last bit, through the JSON the command line
 // writes) to a one-at-a-time Fit of the same profile, and identical between
@@ -105,34 +192,14 @@ func batchJSON(t *testing.T, r *Result) []byte {
 }
 
 // writeLongTable writes a long table of profiles × points rows to path
-// (seeded erf profiles as in batchProfiles, depths in µm), streaming, so the
-// writer itself holds next to nothing.
+// (internal/longtable: seeded erf profiles as in batchProfiles, depths in
+// µm), streaming, so the writer itself holds next to nothing.
 func writeLongTable(path string, profiles, points int) error {
 	f, err := os.Create(path)
 	if err != nil {
 		return err
 	}
-	w := bufio.NewWriterSize(f, 1<<16)
-	w.WriteString("specimen,temperature_C,time_h,depth_um,C_wt%\n")
-	row := make([]byte, 0, 64)
-	rng := rand.New(rand.NewPCG(5, 7))
-	for k := 0; k < profiles; k++ {
-		D := math.Pow(10, -12+2*rng.Float64())
-		cs, c0 := 0.8+0.2*rng.Float64(), 0.1+0.2*rng.Float64()
-		L := 2 * math.Sqrt(D*4*3600)
-		id := "S" + strconv.Itoa(k)
-		for i := 0; i < points; i++ {
-			x := 3 * L * float64(i) / float64(points-1)
-			row = append(row[:0], id...)
-			row = append(row, ",925,4,"...)
-			row = strconv.AppendFloat(row, x*1e6, 'f', 3, 64)
-			row = append(row, ',')
-			row = strconv.AppendFloat(row, cs+(c0-cs)*math.Erf(x/L)+0.005*rng.NormFloat64(), 'f', 4, 64)
-			row = append(row, '\n')
-			w.Write(row)
-		}
-	}
-	if err := w.Flush(); err != nil {
+	if err := longtable.Write(f, longtable.Options{Profiles: profiles, Points: points, Seed: 5}); err != nil {
 		f.Close()
 		return err
 	}
@@ -216,4 +283,50 @@ func BenchmarkReadFit1M(b *testing.B) {
 	b.ReportMetric(b.Elapsed().Seconds()/float64(b.N), "s/1M-points")
 	b.ReportMetric(float64(peak)/(1<<20), "peak-heap-MB")
 	b.ReportMetric(float64(ms.Sys)/(1<<20), "sys-MB")
+}
+
+// TestFitEachMatchesFitAll: FitEach hands every profile on in input order
+// with the result (to the last bit, through JSON) and the error FitAll
+// gives it, including failures, also when results lend their storage to
+// later fits (Reuse) (self-check).
+func TestFitEachMatchesFitAll(t *testing.T) {
+	ps := batchProfiles(300, 50, 4)
+	ps[7].Value = make([]float64, 50) // all equal: bad input
+	ps[8].Depth, ps[8].Value = ps[8].Depth[:3], ps[8].Value[:3]
+	for k := 20; k < 40; k++ { // other lengths and weights: storage of other sizes
+		ps[k].Depth, ps[k].Value = ps[k].Depth[:k], ps[k].Value[:k]
+		ps[k].Sigma = make([]float64, len(ps[k].Depth))
+		for i := range ps[k].Sigma {
+			ps[k].Sigma[i] = 0.004 + 0.0001*float64(i)
+		}
+	}
+	for _, o := range []Options{{CI: "wald"}, {CI: "wald", Free: []string{"x0"}}, {}} {
+		want, werrs := FitAll(ps, o, nil)
+		for _, reuse := range []bool{false, true} {
+			i, calls := 0, 0
+			err := FitEach(func(yield func(*profile.Profile) error) error {
+				for k := range ps {
+					if err := yield(&ps[k]); err != nil {
+						return err
+					}
+				}
+				return nil
+			}, o, &BatchOptions{Reuse: reuse, Progress: func(done, total int) { calls++ }}, func(p *profile.Profile, r *Result, err error) error {
+				if p != &ps[i] {
+					t.Fatalf("profile %d handed on as %s", i, p.ID)
+				}
+				if fmt.Sprint(err) != fmt.Sprint(werrs[i]) {
+					t.Fatalf("profile %d: error %v, FitAll %v", i, err, werrs[i])
+				}
+				if err == nil && !bytes.Equal(batchJSON(t, r), batchJSON(t, want[i])) {
+					t.Fatalf("reuse %v, profile %d: result differs from FitAll's", reuse, i)
+				}
+				i++
+				return nil
+			})
+			if err != nil || i != len(ps) || calls != len(ps) {
+				t.Fatalf("%d of %d profiles done, %d progress calls, error %v", i, len(ps), calls, err)
+			}
+		}
+	}
 }

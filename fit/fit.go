@@ -16,7 +16,12 @@ import (
 // identify, returns an error wrapping ErrNoAnswer (and no numbers); a
 // request the data cannot support (too few points, unknown parameter…)
 // returns an error wrapping ErrBadInput. Both name the profile and file.
-func Fit(p *profile.Profile, o Options) (*Result, error) {
+func Fit(p *profile.Profile, o Options) (*Result, error) { return fitInto(p, o, nil) }
+
+// fitInto is Fit; into, when not nil, is a result that is no longer used
+// and lends its storage to the new one (FitEach with BatchOptions.Reuse).
+// A model chosen by --model auto is fitted afresh.
+func fitInto(p *profile.Profile, o Options, into *Result) (*Result, error) {
 	m := o.Custom
 	if m == nil {
 		name := strings.ToLower(strings.TrimSpace(o.Model))
@@ -36,12 +41,17 @@ func Fit(p *profile.Profile, o Options) (*Result, error) {
 			return nil, errAt(p, err)
 		}
 	}
-	return FitModel(p, m, o)
+	r, err := fitModel(p, m, o, into)
+	if err != nil {
+		return nil, errAt(p, err)
+	}
+	r.noteInput(p)
+	return r, nil
 }
 
 // FitModel fits the given model to one profile; see Fit.
 func FitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
-	r, err := fitModel(p, m, o)
+	r, err := fitModel(p, m, o, nil)
 	if err != nil {
 		return nil, errAt(p, err)
 	}
@@ -67,13 +77,21 @@ func errAt(p *profile.Profile, err error) error {
 	return fmt.Errorf("profile %s: %w", where, err)
 }
 
-// newData builds the model's view of a profile, in SI units.
-func newData(p *profile.Profile, o Options) (*Data, error) {
+// newData builds the model's view of a profile, in SI units (in the
+// storage of into's data, when into is not nil).
+func newData(p *profile.Profile, o Options, into *Result) (*Data, error) {
 	n := p.Len()
 	if n == 0 || len(p.Value) != n {
 		return nil, fmt.Errorf("%w: the profile has no data points", ErrBadInput)
 	}
-	d := &Data{X: p.Depth, Y: p.Value, Time: p.Time, Thickness: p.Thickness, Faces: o.Faces}
+	var d *Data
+	var w []float64
+	if into != nil && into.data != nil {
+		d, w = into.data, into.data.W
+	} else {
+		d = new(Data)
+	}
+	*d = Data{X: p.Depth, Y: p.Value, Time: p.Time, Thickness: p.Thickness, Faces: o.Faces}
 	if d.Time <= 0 {
 		d.Time = 1 // D then stands for Dt
 	}
@@ -92,7 +110,7 @@ func newData(p *profile.Profile, o Options) (*Data, error) {
 		if len(p.Sigma) != n {
 			return nil, fmt.Errorf("%w: %d sigma values for %d points", ErrBadInput, len(p.Sigma), n)
 		}
-		d.W = make([]float64, n)
+		d.W = resize(w, n)
 		for i, s := range p.Sigma {
 			if !(s > 0) || !finite(s) {
 				return nil, fmt.Errorf("%w: sigma %g at point %d%s must be a positive number (it is the standard uncertainty of the value)", ErrBadInput, s, i+1, lineOf(p, i))
@@ -172,8 +190,9 @@ func setup(m Model, d *Data, o Options) (p0 []float64, free []bool, err error) {
 	return p0, free, nil
 }
 
-func fitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
-	d, err := newData(p, o)
+// fitModel fits m to p; into, when not nil, lends its storage (see fitInto).
+func fitModel(p *profile.Profile, m Model, o Options, into *Result) (*Result, error) {
+	d, err := newData(p, o, into)
 	if err != nil {
 		return nil, err
 	}
@@ -209,12 +228,18 @@ func fitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 	if !sol.Converged && limit < 0 {
 		return nil, fmt.Errorf("%w: the %s fit did not converge: %s. Try holding a parameter at a known value, adding deeper or shallower points, or another model", ErrNoAnswer, m.Name(), failureReason(m, sol, free, p0))
 	}
-	r := &Result{
+	r := into
+	if r == nil {
+		r = &Result{}
+	}
+	*r = Result{
 		ID: p.ID, Source: p.Source, Lot: p.Lot, Material: p.Material, Model: m.Name(),
 		ValueUnit: p.ValueUnit, Converged: true, Time: p.Time, Temperature: p.Temperature,
 		TemperatureSigma: p.TemperatureSigma, Thickness: d.Thickness, Meta: p.Meta,
-		model: m, data: d, pint: append([]float64(nil), sol.P...), free: free,
+		model: m, data: d, pint: append(r.pint[:0], sol.P...), free: free,
 		lim: limit + 1, p0: p0,
+		// Storage the statistics fill again (empty for a new result).
+		Params: r.Params[:0], FreeNames: r.FreeNames[:0], Correlation: r.Correlation[:0], Residuals: r.Residuals[:0], cov: r.cov[:0],
 	}
 	err = r.finish(sol, o)
 	sol.release() // the result keeps copies, not the solver's workspace
@@ -226,6 +251,15 @@ func fitModel(p *profile.Profile, m Model, o Options) (*Result, error) {
 		return nil, err
 	}
 	return r, nil
+}
+
+// resize returns s with length n, in its own storage when it is large
+// enough, else new.
+func resize[T any](s []T, n int) []T {
+	if cap(s) >= n {
+		return s[:n]
+	}
+	return make([]T, n)
 }
 
 // warnOptima says when the starts of the failure path disagree: two

@@ -87,8 +87,21 @@ func jacobiEigen(s []float64, k int) {
 // It inverts the unit-diagonal scaled matrix by Cholesky and scales back,
 // which keeps the inverse accurate when parameters differ by many orders
 // of magnitude.
-func invertSPD(a []float64, k int) ([][]float64, bool) {
-	back := make([]float64, 2*k*k+2*k)
+func invertSPD(a []float64, k int) ([][]float64, bool) { return invertSPDInto(a, k, nil) }
+
+// invertSPDInto is invertSPD writing into the storage of an earlier
+// inverse from it (old), when it is large enough.
+func invertSPDInto(a []float64, k int, old [][]float64) ([][]float64, bool) {
+	size := 2*k*k + 2*k
+	var back []float64 // inverse, scaled copy, scales, unit vector; old[0] spans it
+	if cap(old) > 0 {
+		if row := old[:1][0]; cap(row) >= size {
+			back = row[:size]
+		}
+	}
+	if back == nil {
+		back = make([]float64, size)
+	}
 	inv, s, sc, e := back[:k*k], back[k*k:2*k*k], back[2*k*k:2*k*k+k], back[2*k*k+k:]
 	for i := 0; i < k; i++ {
 		if !(a[i*k+i] > 0) {
@@ -114,7 +127,7 @@ func invertSPD(a []float64, k int) ([][]float64, bool) {
 		e[c] = 1
 		cholSubst(s, e, inv[c*k:(c+1)*k], k)
 	}
-	out := make([][]float64, k)
+	out := resize(old, k)
 	for i := range out {
 		out[i] = inv[i*k : (i+1)*k]
 		for j := range out[i] {

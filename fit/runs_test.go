@@ -3,6 +3,7 @@ package fit
 import (
 	"math"
 	"math/bits"
+	"math/rand/v2"
 	"testing"
 
 	"gonum.org/v1/gonum/stat/distuv"
@@ -256,5 +257,40 @@ func TestRunsTestSequences(t *testing.T) {
 	}
 	if p3 := runsTest(xs, rs); p1 != p3 {
 		t.Errorf("shuffled file: p = %g, in order %g", p3, p1)
+	}
+}
+
+// TestRunsNullCached: the cached null distribution of a pair is the one
+// runsDist computes, to the bit, on first and later use, inside and beyond
+// the cached range (self-check).
+func TestRunsNullCached(t *testing.T) {
+	for _, c := range [][2]int{{2, 2}, {25, 25}, {24, 26}, {127, 3}, {128, 5}, {200, 190}} {
+		want := runsDist(c[0], c[1])
+		for k := 0; k < 2; k++ {
+			got := runsNull(c[0], c[1])
+			if len(got) != len(want) {
+				t.Fatalf("(%d, %d): %d entries, want %d", c[0], c[1], len(got), len(want))
+			}
+			for r := range want {
+				if math.Float64bits(got[r]) != math.Float64bits(want[r]) {
+					t.Fatalf("(%d, %d) use %d: P(R = %d) = %v, want %v", c[0], c[1], k+1, r, got[r], want[r])
+				}
+			}
+		}
+	}
+}
+
+// BenchmarkRunsTest50 is the runs test on the residuals of a 50-point fit.
+func BenchmarkRunsTest50(b *testing.B) {
+	rng := rand.New(rand.NewPCG(3, 3))
+	x, r := make([]float64, 50), make([]float64, 50)
+	for i := range x {
+		x[i], r[i] = float64(i), rng.NormFloat64()
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		if p := runsTest(x, r); !(p >= 0 && p <= 1) {
+			b.Fatal(p)
+		}
 	}
 }

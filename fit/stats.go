@@ -3,7 +3,9 @@ package fit
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
+	"sync/atomic"
 
 	"gonum.org/v1/gonum/stat/distuv"
 
@@ -22,7 +24,7 @@ func (r *Result) finish(sol *Solution, o Options) error {
 			k++
 		}
 	}
-	r.FreeNames = make([]string, 0, k)
+	r.FreeNames = slices.Grow(r.FreeNames[:0], k)
 	for j, f := range r.free {
 		if f {
 			r.FreeNames = append(r.FreeNames, params[j].Name)
@@ -66,8 +68,12 @@ func (r *Result) finish(sol *Solution, o Options) error {
 		}
 	}
 	r.cov = cov
-	r.Correlation = make([][]float64, k)
-	corr := make([]float64, k*k)
+	var corr []float64 // the rows' storage: Correlation[0] spans it
+	if len(r.Correlation[:cap(r.Correlation)]) > 0 {
+		corr = r.Correlation[:1][0]
+	}
+	r.Correlation = resize(r.Correlation, k)
+	corr = resize(corr[:cap(corr)], k*k)
 	li := r.limitFree()
 	for i := range cov {
 		r.Correlation[i] = corr[i*k : (i+1)*k]
@@ -84,7 +90,7 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	if r.Covariance == CovAbsolute {
 		tq = stats.Z(level)
 	}
-	r.Params = make([]Estimate, len(params))
+	r.Params = resize(r.Params, len(params))
 	fi := 0
 	for j, pa := range params {
 		e := Estimate{Name: pa.Name, Unit: unitFor(pa, r), Value: external(pa, r.pint[j]), Fixed: !r.free[j]}
@@ -122,7 +128,7 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	}
 	r.CIMethod = CIWald
 
-	r.Residuals = make([]Residual, n)
+	r.Residuals = resize(r.Residuals, n)
 	for i := range d.X {
 		r.Residuals[i] = Residual{Depth: d.X[i], Observed: d.Y[i], Fitted: sol.F[i], Residual: d.Y[i] - sol.F[i]}
 	}
@@ -153,7 +159,7 @@ func (r *Result) finish(sol *Solution, o Options) error {
 func (r *Result) covariance(sol *Solution, k int) ([][]float64, bool) {
 	li := r.limitFree()
 	if li < 0 {
-		return invertSPD(sol.JTJ, k)
+		return invertSPDInto(sol.JTJ, k, r.cov) // in the storage of a result lent for reuse
 	}
 	m := k - 1
 	red := make([]float64, 0, m*m)
@@ -329,7 +335,7 @@ func runsOf(n int, at func(i int) (depth, resid float64)) float64 {
 	if n1 < 2 || n2 < 2 {
 		return math.NaN()
 	}
-	pmf := runsDist(n1, n2)
+	pmf := runsNull(n1, n2)
 	var lo, hi float64 // P(R ≤ runs), P(R ≥ runs)
 	for r, pr := range pmf {
 		if r <= runs {
@@ -376,6 +382,33 @@ func runsDist(n1, n2 int) []float64 {
 			pmf[r] = math.Exp(la[m]+lb[m-1]-den) + math.Exp(la[m-1]+lb[m]-den)
 		}
 	}
+	return pmf
+}
+
+// runsCacheSize bounds the counts (n1, n2) whose null distribution is
+// kept: profiles up to 2·runsCacheSize − 2 points (each count below it)
+// share one table per pair; longer ones compute theirs every time.
+const runsCacheSize = 128
+
+// runsCache holds runsDist(n1, n2) once computed: it depends only on the
+// pair, and a batch of fits meets few pairs (about n/2 each). The tables
+// are read-only once stored; the atomic pointers let every worker read
+// them without a lock (two workers computing one pair at once store equal
+// tables, and either is kept).
+var runsCache [runsCacheSize][runsCacheSize]atomic.Pointer[[]float64]
+
+// runsNull returns runsDist(n1, n2), from the cache when the pair is in
+// range. The caller must not modify it.
+func runsNull(n1, n2 int) []float64 {
+	if n1 >= runsCacheSize || n2 >= runsCacheSize {
+		return runsDist(n1, n2)
+	}
+	slot := &runsCache[n1][n2]
+	if p := slot.Load(); p != nil {
+		return *p
+	}
+	pmf := runsDist(n1, n2)
+	slot.Store(&pmf)
 	return pmf
 }
 

@@ -3,6 +3,8 @@ package profile
 import (
 	"bytes"
 	"fmt"
+	"os"
+	"path/filepath"
 	"runtime"
 	"runtime/metrics"
 	"strconv"
@@ -12,6 +14,8 @@ import (
 	"time"
 
 	"github.com/fickfit/fickfit/internal/badinput"
+	"github.com/fickfit/fickfit/internal/longtable"
+	"github.com/fickfit/fickfit/internal/measure"
 	"github.com/xuri/excelize/v2"
 )
 
@@ -195,4 +199,51 @@ func BenchmarkRefuseBadInput(b *testing.B) {
 			b.ReportMetric(float64(len(data))/1024, "file-KiB")
 		})
 	}
+}
+
+// BenchmarkReadLongTable20k reads the table of the throughput comparison
+// (internal/longtable: 20,000 profiles × 50 points, 27.8 MB, the file
+// fickfit fit and bench/scipy_loop.py read) whole with ReadCSV, and
+// profile by profile with Each (what fickfit fit does). Reported: ns per
+// point and MB/s; allocations per run.
+func BenchmarkReadLongTable20k(b *testing.B) {
+	var buf bytes.Buffer
+	if err := longtable.Write(&buf, longtable.Options{Profiles: 20000, Points: 50, Seed: 5}); err != nil {
+		b.Fatal(err)
+	}
+	data := buf.Bytes()
+	path := filepath.Join(b.TempDir(), "long.csv")
+	if err := os.WriteFile(path, data, 0o644); err != nil {
+		b.Fatal(err)
+	}
+	var cpu0 time.Duration
+	report := func(b *testing.B) {
+		b.SetBytes(int64(len(data)))
+		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/1e6, "ns/point")
+		if cpu := measure.CPU(); cpu > 0 {
+			b.ReportMetric(float64((cpu-cpu0).Nanoseconds())/float64(b.N)/1e6, "cpu-ns/point")
+		}
+	}
+	b.Run("ReadCSV", func(b *testing.B) {
+		b.ReportAllocs()
+		cpu0 = measure.CPU()
+		for b.Loop() {
+			ps, err := ReadCSV(bytes.NewReader(data), "long.csv")
+			if err != nil || len(ps) != 20000 {
+				b.Fatal(len(ps), err)
+			}
+		}
+		report(b)
+	})
+	b.Run("Each", func(b *testing.B) {
+		b.ReportAllocs()
+		cpu0 = measure.CPU()
+		for b.Loop() {
+			n := 0
+			if err := Each([]string{path}, func(p *Profile) error { n++; return nil }); err != nil || n != 20000 {
+				b.Fatal(n, err)
+			}
+		}
+		report(b)
+	})
 }

@@ -243,10 +243,11 @@ var scaleSpelling = strings.NewReplacer(" ", "", ",", ".")
 // when s names a hardness scale, and ok = false otherwise. Spaces are
 // ignored and a decimal comma in the test force is accepted ("HV 0,5").
 func HardnessScale(s string) (scale string, ok bool) {
-	if s == "" {
+	s = strings.TrimSpace(s)
+	if s == "" || (s[0] != 'H' && s[0] != 'h') { // every scale starts with H: no need to ask the pattern
 		return "", false
 	}
-	t := strings.ToUpper(scaleSpelling.Replace(strings.TrimSpace(s)))
+	t := strings.ToUpper(scaleSpelling.Replace(s))
 	if hardnessRe.MatchString(t) {
 		return t, true
 	}

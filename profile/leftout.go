@@ -36,7 +36,19 @@ var belowLimitRe = regexp.MustCompile(`(?i)^\s*(?:(?:<|≤|&lt;)\s*(?:[0-9][0-9.
 
 // IsBelowLimit tells whether a cell says its value lies below a detection
 // limit instead of giving a number.
-func IsBelowLimit(s string) bool { return belowLimitRe.MatchString(s) }
+func IsBelowLimit(s string) bool {
+	// Every form starts with '<', '≤', "&lt;", n or b after white space: a
+	// number (the first cell of every profile asks) needs no pattern.
+	t := strings.TrimLeft(s, " \t\n\f\r")
+	if t == "" {
+		return false
+	}
+	switch t[0] {
+	case '<', '&', 'n', 'N', 'b', 'B', "≤"[0]:
+		return belowLimitRe.MatchString(s)
+	}
+	return false
+}
 
 // belowLimitNote is the warning a profile with values below a detection
 // limit carries.

@@ -152,15 +152,7 @@ func checkUnique(ps []Profile) error {
 			seen[p.ID] = i
 			continue
 		}
-		q := ps[j]
-		file, sheet := splitSource(p.Source)
-		e := &Error{File: file, Sheet: sheet, Err: errorf(ErrDuplicate,
-			"profile id %s is also used by %s", quote(p.ID), q.Source),
-			Hint: "rename one of them (the id comes from an id metadata line, the id column, the sheet name or the file name)"}
-		if len(p.Line) > 0 {
-			e.Line = p.Line[0]
-		}
-		return e
+		return duplicateError(p, ps[j].Source)
 	}
 	return nil
 }

@@ -75,6 +75,19 @@ type table struct {
 	profiles []*building
 	index    map[string]int
 	rows     int
+	// cur is the profile of the last row and curRaw its id cell as
+	// written (trimmed): rows usually come grouped by profile, and a row of
+	// the same profile needs no look-up.
+	cur        *building
+	curRaw     string
+	lastLen    int   // points of the profile before cur: a capacity hint
+	perProfile []int // the per-profile columns, known with the value column
+	cellBuf    []string
+	trimmed    [][]byte // addFast's trimmed cells
+	// stream, when not nil, receives each profile as soon as its rows are
+	// read (see Each); the table then keeps no finished profile.
+	stream   *stream
+	deferred error // the first validation error of a profile met while streaming
 }
 
 // building is a profile being assembled.
@@ -122,6 +135,7 @@ func newTable(header []string, o tableOptions) (*table, error) {
 			return nil, err
 		}
 		t.profiles = []*building{b}
+		t.cur = b
 	}
 	return t, nil
 }
@@ -254,6 +268,12 @@ func (t *table) newBuilding(id string, line int) (*building, error) {
 	}
 	b := &building{p: t.template, fixed: make([]fixedCell, len(t.cols))}
 	b.p.ID = id
+	if n := t.lastLen; n > 0 {
+		b.p.Depth, b.p.Value, b.p.Line = make([]float64, 0, n), make([]float64, 0, n), make([]int, 0, n)
+		if t.sigmaCol >= 0 {
+			b.p.Sigma = make([]float64, 0, n)
+		}
+	}
 	if t.template.Meta != nil {
 		b.p.Meta = maps.Clone(t.template.Meta)
 	}
@@ -395,6 +415,11 @@ func (t *table) decideValue(cells []string, line int) error {
 		t.cols[i].kind = colText
 	}
 	t.cols[t.valueCol].kind = colValue
+	for i, c := range t.cols {
+		if c.kind.perProfile() {
+			t.perProfile = append(t.perProfile, i)
+		}
+	}
 	return t.checkSigmaUnit()
 }
 
@@ -442,20 +467,45 @@ func (t *table) profileFor(cells []string, line int) (*building, error) {
 	if t.idCol < 0 {
 		return t.profiles[0], nil
 	}
-	id := latin1(cellAt(cells, t.idCol))
+	raw := cellAt(cells, t.idCol)
+	if t.cur != nil && raw == t.curRaw && raw != "" {
+		return t.cur, nil
+	}
+	id := latin1(raw)
 	if id == "" {
 		return nil, t.org.errAt(line, t.idCol, t.cols[t.idCol].name,
 			errorf(ErrValue, "the profile id is blank"), "fill the id cell or remove the row")
 	}
-	if k, ok := t.index[id]; ok {
-		return t.profiles[k], nil
+	if t.stream != nil {
+		return t.streamProfileFor(id, raw, line)
 	}
-	b, err := t.newBuilding(id, line)
+	if k, ok := t.index[id]; ok {
+		t.cur, t.curRaw = t.profiles[k], raw
+		return t.cur, nil
+	}
+	b, err := t.newProfile(id, raw, line)
 	if err != nil {
 		return nil, err
 	}
-	t.index[id] = len(t.profiles)
+	t.index[b.p.ID] = len(t.profiles)
 	t.profiles = append(t.profiles, b)
+	return b, nil
+}
+
+// newProfile starts the profile id, whose id cell reads raw, at line and
+// makes it the current one.
+func (t *table) newProfile(id, raw string, line int) (*building, error) {
+	if t.cur != nil {
+		t.lastLen = len(t.cur.p.Depth)
+	}
+	b, err := t.newBuilding(strings.Clone(id), line)
+	if err != nil {
+		return nil, err
+	}
+	t.cur, t.curRaw = b, b.p.ID
+	if raw != id {
+		t.curRaw = strings.Clone(raw)
+	}
 	return b, nil
 }
 
@@ -710,22 +760,36 @@ func (t *table) finish() ([]Profile, error) {
 			return nil, err
 		}
 	}
-	v := t.cols[t.valueCol]
+	if t.stream != nil {
+		if t.deferred == nil {
+			if err := t.complete(t.cur); err != nil {
+				return nil, err
+			}
+		}
+		return nil, t.deferred
+	}
 	out := make([]Profile, 0, len(t.profiles))
 	for _, b := range t.profiles {
-		p := b.p
-		p.ValueName, p.ValueUnit = v.name, v.valueUnit
-		p.Across = t.cols[t.depthCol].signed
-		if p.Quantity == "" {
-			p.Quantity = v.quantity
-		}
-		if len(p.BelowLimit) > 0 {
-			p.Notes = append(p.Notes, belowLimitNote(&p))
-		}
+		p := t.profile(b)
 		if err := p.Validate(); err != nil {
 			return nil, err
 		}
 		out = append(out, p)
 	}
 	return out, nil
+}
+
+// profile is the finished profile of b.
+func (t *table) profile(b *building) Profile {
+	v := t.cols[t.valueCol]
+	p := b.p
+	p.ValueName, p.ValueUnit = v.name, v.valueUnit
+	p.Across = t.cols[t.depthCol].signed
+	if p.Quantity == "" {
+		p.Quantity = v.quantity
+	}
+	if len(p.BelowLimit) > 0 {
+		p.Notes = append(p.Notes, belowLimitNote(&p))
+	}
+	return p
 }

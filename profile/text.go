@@ -25,10 +25,14 @@ type textReader struct {
 	sep        rune
 	comma      bool // decimal comma accepted (separator ';' or tab)
 	// marks watches decimal marks when a decimal comma is accepted (nil otherwise).
-	marks  *decimalMarks
+	marks *decimalMarks
+	// rows splits the data rows while they hold no quote (the usual
+	// case); cr, when not nil, reads the rest of the file instead.
+	rows   *rowScanner
+	cells  []string // the cells next returns, reused
 	cr     *csv.Reader
 	lim    *lineLimiter
-	offset int // lines before the header line
+	offset int // lines before the first line cr reads
 }
 
 // openText reads r up to and including the header row. Accepted: UTF-8
@@ -52,16 +56,17 @@ func openText(r io.Reader, name string) (*textReader, error) {
 	if t.comma {
 		t.marks = &decimalMarks{org: org}
 	}
-	t.offset = t.headerLine - 1
-	cr := csv.NewReader(io.MultiReader(strings.NewReader(header), in))
-	cr.Comma, cr.Comment, cr.FieldsPerRecord, cr.ReuseRecord = t.sep, '#', -1, true
-	cr.TrimLeadingSpace = t.sep != '\t'
-	t.cr = cr
-	rec, _, err := t.next()
-	if err != nil {
-		return nil, err
+	t.rows = &rowScanner{in: in, sep: byte(t.sep), trim: t.sep != '\t', line: t.headerLine}
+	if strings.Contains(header, `"`) {
+		t.csvFrom(header, t.headerLine)
+		rec, _, err := t.nextCSV()
+		if err != nil {
+			return nil, err
+		}
+		t.header = append([]string(nil), rec...)
+	} else {
+		t.header = t.rows.cells(t.rows.split(lineContent([]byte(header))), nil) // no quote: split gives the fields
 	}
-	t.header = append([]string(nil), rec...)
 	if len(t.header) < 2 {
 		return nil, org.errAt(t.headerLine, -1, "", errorf(ErrColumn,
 			"the header %s has only one column", quote(strings.TrimSpace(latin1(header)))),
@@ -111,8 +116,51 @@ func (t *textReader) scanToHeader(in *bufio.Reader) (string, error) {
 		"add a header row and data")
 }
 
-// next returns the next record and its 1-based line; io.EOF at the end.
+// csvFrom lets encoding/csv read the rest of the file from the line text
+// (line number line, with its line end) on.
+func (t *textReader) csvFrom(text string, line int) {
+	t.offset = line - 1
+	cr := csv.NewReader(io.MultiReader(strings.NewReader(text), t.rows.in))
+	cr.Comma, cr.Comment, cr.FieldsPerRecord, cr.ReuseRecord = t.sep, '#', -1, true
+	cr.TrimLeadingSpace = t.sep != '\t'
+	t.cr = cr
+}
+
+// nextRow returns the next data row and its 1-based line; io.EOF at the
+// end. A row without quotes comes as raw fields (rowScanner), any other
+// as the cells encoding/csv reads.
+func (t *textReader) nextRow() (fields [][]byte, cells []string, line int, err error) {
+	if t.cr == nil {
+		fields, raw, line, err := t.rows.next()
+		if err == io.EOF {
+			return nil, nil, 0, io.EOF
+		}
+		if err != nil {
+			return nil, nil, 0, t.readError(err, 0)
+		}
+		if raw == nil {
+			return fields, nil, line, nil
+		}
+		t.csvFrom(string(raw), line)
+	}
+	cells, line, err = t.nextCSV()
+	return nil, cells, line, err
+}
+
+// next returns the cells of the next data row and its 1-based line;
+// io.EOF at the end.
 func (t *textReader) next() ([]string, int, error) {
+	fields, cells, line, err := t.nextRow()
+	if fields != nil {
+		t.cells = t.rows.cells(fields, t.cells)
+		return t.cells, line, nil
+	}
+	return cells, line, err
+}
+
+// nextCSV returns the next record that encoding/csv reads and its 1-based
+// line; io.EOF at the end.
+func (t *textReader) nextCSV() ([]string, int, error) {
 	rec, err := t.cr.Read()
 	if err == io.EOF {
 		return nil, 0, io.EOF
@@ -226,15 +274,21 @@ func (l *lineLimiter) Read(p []byte) (int, error) {
 		l.line = 1
 	}
 	n, err := l.r.Read(p)
-	for i := range p[:n] {
-		if p[i] == '\n' {
+	for i := 0; i < n; {
+		j := bytes.IndexByte(p[i:n], '\n')
+		if j < 0 {
+			j = n - i // no line end in the rest
+		}
+		if l.run+j > l.max { // the byte that makes the line too long
+			l.err = errLineTooLong
+			return i + l.max - l.run, l.err
+		}
+		if i += j; i < n { // at a line end
 			l.run = 0
 			l.line++
-			continue
-		}
-		if l.run++; l.run > l.max {
-			l.err = errLineTooLong
-			return i, l.err
+			i++
+		} else {
+			l.run += j
 		}
 	}
 	return n, err
@@ -301,6 +355,13 @@ func (u *utf16Reader) unit() (uint16, bool) {
 
 // readTable reads a profile table from a text file.
 func readTable(r io.Reader, name, defaultID string) ([]Profile, error) {
+	return scanTable(r, name, defaultID, nil)
+}
+
+// scanTable reads a profile table from a text file. With st nil it
+// returns the profiles; otherwise it hands them to st as their rows are
+// read (Each) and returns none.
+func scanTable(r io.Reader, name, defaultID string, st *stream) ([]Profile, error) {
 	tr, err := openText(r, name)
 	if err != nil {
 		return nil, err
@@ -311,15 +372,21 @@ func readTable(r io.Reader, name, defaultID string) ([]Profile, error) {
 	if err != nil {
 		return nil, err
 	}
+	t.stream = st
 	for {
-		rec, line, err := tr.next()
+		fields, cells, line, err := tr.nextRow()
 		if err == io.EOF {
 			break
 		}
 		if err != nil {
 			return nil, err
 		}
-		if err := t.add(rec, line); err != nil {
+		if fields != nil {
+			err = t.addFields(fields, line, tr.rows)
+		} else {
+			err = t.add(cells, line)
+		}
+		if err != nil {
 			return nil, err
 		}
 	}

@@ -1,13 +1,17 @@
 package report
 
 import (
+	"bytes"
 	"fmt"
+	"io"
 	"path/filepath"
 	"testing"
 	"time"
 
 	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/longtable"
+	"github.com/fickfit/fickfit/profile"
 )
 
 // BenchmarkCampaign runs the whole job on an invented demo-sized campaign
@@ -81,3 +85,57 @@ func BenchmarkFigures(b *testing.B) {
 type discard struct{}
 
 func (discard) Write(p []byte) (int, error) { return len(p), nil }
+
+// BenchmarkWriteFitsCSV20k writes the fit table of the throughput
+// comparison's 20,000 profiles (internal/longtable, fitted once with Wald
+// intervals): whole (Fits.WriteCSV) and row by row (FitCSV, what fickfit
+// fit streams), and with the encoding/csv writer it replaced (the same
+// bytes: TestFitsCSVMatchesEncodingCSV). Reported: ns per row.
+func BenchmarkWriteFitsCSV20k(b *testing.B) {
+	var buf bytes.Buffer
+	if err := longtable.Write(&buf, longtable.Options{Profiles: 20000, Points: 50, Seed: 5}); err != nil {
+		b.Fatal(err)
+	}
+	ps, err := profile.ReadCSV(&buf, "long.csv")
+	if err != nil {
+		b.Fatal(err)
+	}
+	rs, errs := fit.FitAll(ps, fit.Options{CI: fit.CIWald}, nil)
+	f := NewFits(ps, rs, errs)
+	perRow := func(b *testing.B) {
+		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(f.Results)), "ns/row")
+	}
+	b.Run("whole", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			if err := f.WriteCSV(io.Discard); err != nil {
+				b.Fatal(err)
+			}
+		}
+		perRow(b)
+	})
+	b.Run("encodingcsv", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			if err := writeFitsCSVReference(f, io.Discard); err != nil {
+				b.Fatal(err)
+			}
+		}
+		perRow(b)
+	})
+	b.Run("rows", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			c := NewFitCSV(io.Discard)
+			for _, r := range f.Results {
+				if err := c.Add(r); err != nil {
+					b.Fatal(err)
+				}
+			}
+			if err := c.Close(); err != nil {
+				b.Fatal(err)
+			}
+		}
+		perRow(b)
+	})
+}

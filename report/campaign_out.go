@@ -63,7 +63,7 @@ func (res *CampaignReport) WriteJSON(w io.Writer) error {
 	}
 	doc := campaignDoc{
 		Version: res.Version, Inputs: nonNil(res.Inputs), Options: res.audit(),
-		Fits: jsonResults(res.Results), Failed: nonNil(res.Failed), NotRead: NotUsedFromSkipped(res.NotRead),
+		Fits: []*fit.Result{}, Failed: nonNil(res.Failed), NotRead: NotUsedFromSkipped(res.NotRead),
 		Arrhenius:  arrheniusDoc{Method: res.Method, By: res.By, Groups: []arrhenius.Line{}, Failed: lineErrs},
 		Comparison: res.Comparison, ComparisonError: tempfmt.Plain(res.ComparisonError),
 		Backcalc: parts, Notes: notes, Cautions: nonNil(res.Cautions),
@@ -72,7 +72,7 @@ func (res *CampaignReport) WriteJSON(w io.Writer) error {
 	if res.Lines != nil {
 		doc.Arrhenius.Groups = nonNil(res.Lines.Lines)
 	}
-	return encodeJSON(w, doc)
+	return encodeWithFits(w, doc, res.Results) // the fits one at a time
 }
 
 // excludedDoc is the exclusions key of results.json: nil without an

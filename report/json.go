@@ -1,11 +1,10 @@
 package report
 
 import (
-	"bufio"
-	"encoding/json"
 	"io"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/internal/jsonx"
 )
 
 // fitsDoc is the JSON document of the fit command (docs/output.md, contract):
@@ -23,36 +22,40 @@ type fitsDoc struct {
 // WriteJSON writes the fits as one JSON document, indented by two spaces.
 // Identical input gives byte-identical output.
 func (f Fits) WriteJSON(w io.Writer) error {
-	return encodeJSON(w, fitsDoc{
+	return encodeWithFits(w, fitsDoc{
 		Version:  versionOr(f.Version),
-		Fits:     jsonResults(f.Results),
+		Fits:     []*fit.Result{},
 		Failed:   nonNil(f.Failed),
 		NotRead:  f.NotRead,
 		Cautions: fit.Cautions,
-	})
+	}, f.Results)
 }
 
-// jsonResults returns shallow copies with empty lists instead of null, so
-// that scripts can always iterate.
-func jsonResults(rs []*fit.Result) []*fit.Result {
-	out := make([]*fit.Result, 0, len(rs))
-	for _, r := range rs {
-		if r == nil {
-			continue
-		}
-		c := *r
-		if c.Warnings == nil {
-			c.Warnings = []fit.Warning{}
-		}
-		if c.Residuals == nil {
-			c.Residuals = []fit.Residual{}
-		}
-		if c.Params == nil {
-			c.Params = []fit.Estimate{}
-		}
-		out = append(out, &c)
+// encodeWithFits writes doc, whose "fits" array is empty, as jsonx.Encode
+// would write it holding the results rs: the results, the bulk of the
+// document, are encoded one at a time (jsonx.EncodeWithArray).
+func encodeWithFits(w io.Writer, doc any, rs []*fit.Result) error {
+	rs = nonNilPtrs(rs)
+	if err := jsonx.EncodeWithArray(w, doc, "fits", len(rs), func(i int) any { return jsonResult(rs[i]) }); err != nil {
+		return errorf("writing JSON: %w", err)
 	}
-	return out
+	return nil
+}
+
+// jsonResult is a shallow copy of r with empty lists instead of null, so
+// that scripts can always iterate.
+func jsonResult(r *fit.Result) *fit.Result {
+	c := *r
+	if c.Warnings == nil {
+		c.Warnings = []fit.Warning{}
+	}
+	if c.Residuals == nil {
+		c.Residuals = []fit.Residual{}
+	}
+	if c.Params == nil {
+		c.Params = []fit.Estimate{}
+	}
+	return &c
 }
 
 func nonNil[T any](s []T) []T {
@@ -60,16 +63,4 @@ func nonNil[T any](s []T) []T {
 		return []T{}
 	}
 	return s
-}
-
-// encodeJSON writes v indented, without HTML escaping, ending in a newline.
-func encodeJSON(w io.Writer, v any) error {
-	bw := bufio.NewWriter(w)
-	enc := json.NewEncoder(bw)
-	enc.SetEscapeHTML(false)
-	enc.SetIndent("", "  ")
-	if err := enc.Encode(v); err != nil {
-		return errorf("writing JSON: %w", err)
-	}
-	return bw.Flush()
 }

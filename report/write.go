@@ -38,8 +38,9 @@ type renderedFigure struct {
 	err    error
 }
 
-// renderAll draws every figure, in parallel over the available cores.
-func renderAll(figs []*Figure, png bool, dpi int, progress func(done, total int)) ([]renderedFigure, error) {
+// renderAll draws every figure, in parallel over the available cores, as
+// PNG too when png says so.
+func renderAll(figs []*Figure, png func(*Figure) bool, dpi int, progress func(done, total int)) ([]renderedFigure, error) {
 	out := make([]renderedFigure, len(figs))
 	parallel.For(len(figs), func(i int) {
 		rf := renderedFigure{fig: figs[i]}
@@ -47,7 +48,7 @@ func renderAll(figs []*Figure, png bool, dpi int, progress func(done, total int)
 		if rf.err == nil {
 			rf.inline, rf.err = figs[i].inlineSVG()
 		}
-		if rf.err == nil && png {
+		if rf.err == nil && png(figs[i]) {
 			var b bytes.Buffer
 			rf.err = figs[i].WritePNG(&b, dpi)
 			rf.png = b.Bytes()
@@ -72,7 +73,7 @@ func renderAll(figs []*Figure, png bool, dpi int, progress func(done, total int)
 //	summary.txt     the terminal summary and every profile's block
 //	results.xlsx    the workbook with native charts and the audit sheet
 //	report.html     the self-contained report
-//	figures/        profile-<id>, arrhenius and lots figures as SVG and PNG
+//	figures/        profile-<id> (see profileDetail), arrhenius and lots figures as SVG and PNG
 //	.fickfit-manifest.json  what fickfit wrote (see OpenReportFolder)
 //
 // It opens the folder with OpenReportFolder (an earlier report is replaced
@@ -108,6 +109,9 @@ func (f *ReportFolder) WriteCampaign(result *campaign.Result, opts CampaignOptio
 	res := &CampaignReport{Result: result, TempUnit: opts.TempUnit}
 	fs, _ := res.makeFigures(opts)
 	figs := fs.all(res)
+	// PNG for the Arrhenius and lots figures; for the profiles' only when
+	// every profile is shown (details).
+	png := func(f *Figure) bool { return !opts.NoPNG && (fs.detail.pngFor() || f == fs.arrhenius || f == fs.lots) }
 	var files []reportFile
 	add := func(name string, w func(io.Writer) error) { files = append(files, reportFile{name, w}) }
 	add(FileJSON, res.WriteJSON)
@@ -144,7 +148,7 @@ func (f *ReportFolder) WriteCampaign(result *campaign.Result, opts CampaignOptio
 	var book bytes.Buffer
 	add(FileWorkbook, func(w io.Writer) error { _, err := w.Write(book.Bytes()); return err })
 	var err error
-	rendered, err = renderAll(figs, !opts.NoPNG, opts.DPI, func(d, t int) { opts.progress("figures", d, t) })
+	rendered, err = renderAll(figs, png, opts.DPI, func(d, t int) { opts.progress("figures", d, t) })
 	if err != nil {
 		return nil, err
 	}

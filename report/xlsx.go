@@ -208,7 +208,11 @@ func (res *CampaignReport) WriteWorkbook(w io.Writer, o CampaignOptions) error {
 	u := o.TempUnit
 	x.summarySheet(res, u)
 	total := len(res.Results)
+	detail := res.details() // a sheet for each profile shown one by one
 	for i, r := range res.Results {
+		if !detail.shows(r) {
+			continue
+		}
 		sheet := names.name(r.ID)
 		if _, err := f.NewSheet(sheet); err != nil {
 			return err

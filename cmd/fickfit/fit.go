@@ -43,6 +43,11 @@ highest temperature), exact when D does not depend on concentration.`,
 			if err != nil {
 				return err
 			}
+			if streamable(&ff, history, qText, tref, keepGoing) {
+				if handled, err := fitStreamed(c, args, &ff, o, &out); handled {
+					return err
+				}
+			}
 			ps, notRead, err := readProfiles(args, keepGoing)
 			if err != nil {
 				return err

@@ -60,6 +60,57 @@ func Encode(w io.Writer, v any) error {
 	return bw.Flush()
 }
 
+// EncodeWithArray writes doc as Encode does, except that the array under
+// doc's top-level key (which doc must hold empty) is written one element
+// at a time, elem(0) … elem(n−1), each encoded as Encode would encode it
+// in place: the same bytes as Encode of the full document, without ever
+// holding the whole array's encoding, or the document's, in memory. For
+// documents whose bulk is one long array of results.
+func EncodeWithArray(w io.Writer, doc any, key string, n int, elem func(i int) any) error {
+	var head bytes.Buffer
+	enc := json.NewEncoder(&head)
+	enc.SetEscapeHTML(false)
+	enc.SetIndent("", "  ")
+	if err := enc.Encode(doc); err != nil {
+		return err
+	}
+	name, err := Marshal(key)
+	if err != nil {
+		return err
+	}
+	marker := append(append([]byte("\n  "), name...), ": []"...)
+	at := bytes.Index(head.Bytes(), marker)
+	if at < 0 {
+		return fmt.Errorf("jsonx: the document has no empty top-level array %s", name)
+	}
+	split := at + len(marker) - len("[]")
+	bw := bufio.NewWriterSize(w, 64<<10)
+	bw.Write(head.Bytes()[:split])
+	if n == 0 {
+		bw.WriteString("[]")
+	} else {
+		var b bytes.Buffer
+		ee := json.NewEncoder(&b)
+		ee.SetEscapeHTML(false)
+		ee.SetIndent("    ", "  ")
+		bw.WriteByte('[')
+		for i := 0; i < n; i++ {
+			b.Reset()
+			if err := ee.Encode(elem(i)); err != nil {
+				return err
+			}
+			bw.WriteString("\n    ")
+			bw.Write(bytes.TrimSuffix(b.Bytes(), []byte("\n")))
+			if i < n-1 {
+				bw.WriteByte(',')
+			}
+		}
+		bw.WriteString("\n  ]")
+	}
+	bw.Write(head.Bytes()[split+len("[]"):])
+	return bw.Flush()
+}
+
 // ZeroAsNull rewrites a compact JSON object (as Marshal writes it) so that
 // each of the named top-level keys whose value is exactly 0 reads null:
 // for quantities where 0 means "not given" (a hold time, a temperature in

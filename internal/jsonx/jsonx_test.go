@@ -41,6 +41,49 @@ func TestNoHTMLEscape(t *testing.T) {
 	}
 }
 
+// TestEncodeWithArray: the document written with its array element by
+// element has the bytes of Encode on the whole document, for empty, one
+// and several elements, nested values, HTML characters and nulls (common
+// practice, no source).
+func TestEncodeWithArray(t *testing.T) {
+	type item struct {
+		ID    string              `json:"id"`
+		V     *float64            `json:"v"`
+		Inner map[string][]int    `json:"inner"`
+		List  []map[string]any    `json:"list"`
+		Empty []int               `json:"empty"`
+		Ptr   *struct{ A, B int } `json:"ptr"`
+	}
+	type doc struct {
+		Version string  `json:"fickfit_version"`
+		Before  []int   `json:"before"`
+		Fits    []*item `json:"fits"`
+		After   any     `json:"after"`
+		Tail    string  `json:"tail,omitempty"`
+	}
+	one := 1.5
+	items := []*item{
+		{ID: "a<b>&c", V: &one, Inner: map[string][]int{"z": {1, 2}, "a": {}}, List: []map[string]any{{"k": "v"}}, Empty: []int{}},
+		nil,
+		{ID: "\"quoted\"\n", Ptr: &struct{ A, B int }{1, 2}},
+	}
+	for n := 0; n <= len(items); n++ {
+		full := doc{Version: "v", Before: []int{1, 2}, Fits: items[:n], After: map[string]any{"fits": []int{}}, Tail: "x"}
+		var want, got bytes.Buffer
+		if err := Encode(&want, full); err != nil {
+			t.Fatal(err)
+		}
+		empty := full
+		empty.Fits = []*item{}
+		if err := EncodeWithArray(&got, empty, "fits", n, func(i int) any { return items[i] }); err != nil {
+			t.Fatal(err)
+		}
+		if got.String() != want.String() {
+			t.Fatalf("%d elements:\ngot  %s\nwant %s", n, got.String(), want.String())
+		}
+	}
+}
+
 // Common practice, no source: ZeroAsNull changes only the named top-level
 // keys whose value is 0, and keeps every other byte and the key order.
 func TestZeroAsNull(t *testing.T) {

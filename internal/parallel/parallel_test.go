@@ -1,9 +1,12 @@
 package parallel
 
 import (
+	"errors"
+	"runtime"
 	"strings"
 	"sync/atomic"
 	"testing"
+	"time"
 )
 
 // TestFor: every job runs once, its slot is written, progress counts up to n.
@@ -52,6 +55,85 @@ func TestScratch(t *testing.T) {
 	}
 }
 
+// TestOrdered: every item is done once, in the order yielded, with its own
+// result, and never more than about window items are between yield and
+// done.
+func TestOrdered(t *testing.T) {
+	for _, n := range []int{0, 1, 7, 1000} {
+		var inFlight, most atomic.Int64
+		next := 0
+		err := Ordered(8, func(yield func(int) error) error {
+			for i := 0; i < n; i++ {
+				if err := yield(i); err != nil {
+					return err
+				}
+				if f := inFlight.Add(1); f > most.Load() {
+					most.Store(f)
+				}
+			}
+			return nil
+		}, func(i int) int {
+			if i%5 == 0 {
+				time.Sleep(50 * time.Microsecond) // finish out of order
+			}
+			return i * i
+		}, func(i, sq int) error {
+			inFlight.Add(-1)
+			if i != next || sq != i*i {
+				t.Errorf("done(%d, %d) after %d items", i, sq, next)
+			}
+			next++
+			return nil
+		})
+		if err != nil || next != n {
+			t.Errorf("n=%d: %d done, error %v", n, next, err)
+		}
+		// A window of 8 holds at least a batch per worker, and the batch
+		// being filled.
+		if m, bound := most.Load(), int64(max(8, runtime.GOMAXPROCS(0)*orderedBatch)+orderedBatch); m > bound {
+			t.Errorf("n=%d: %d items in flight, more than %d", n, m, bound)
+		}
+	}
+}
+
+// TestOrderedErrors: an error from done or from source stops the pipeline
+// and is returned; yield fails from then on and done is not called again.
+func TestOrderedErrors(t *testing.T) {
+	bad := errors.New("bad")
+	calls := 0
+	yieldErr := error(nil)
+	err := Ordered(4, func(yield func(int) error) error {
+		for i := 0; i < 1000; i++ {
+			if err := yield(i); err != nil {
+				yieldErr = err
+				return err
+			}
+		}
+		return nil
+	}, func(i int) int { return i }, func(i, _ int) error {
+		calls++
+		if i == 10 {
+			return bad
+		}
+		return nil
+	})
+	if err != bad || calls != 11 || yieldErr == nil {
+		t.Errorf("done error: got %v after %d calls (yield %v)", err, calls, yieldErr)
+	}
+	calls = 0
+	err = Ordered(4, func(yield func(int) error) error {
+		for i := 0; i < 10; i++ {
+			if err := yield(i); err != nil {
+				return err
+			}
+		}
+		return bad
+	}, func(i int) int { return i }, func(i, _ int) error { calls++; return nil })
+	if err != bad || calls > 10 {
+		t.Errorf("source error: got %v after %d calls", err, calls)
+	}
+}
+
 // Common practice, no source: a panic in a job reaches the caller as a
 // *Panic after the other jobs ran, instead of killing the process from a
 // worker goroutine.
@@ -79,4 +161,42 @@ func TestPanicReachesCaller(t *testing.T) {
 		ran[i] = true
 	}, nil)
 	t.Fatal("For returned normally")
+}
+
+// TestOrderedPanic: a panic in work, source or done reaches the caller as
+// a *Panic once the pipeline has stopped, instead of killing the process
+// from a goroutine (common practice, no source).
+func TestOrderedPanic(t *testing.T) {
+	for _, where := range []string{"work", "source", "done"} {
+		func() {
+			defer func() {
+				p, ok := recover().(*Panic)
+				if !ok || p.Value != where {
+					t.Errorf("%s: recovered %v", where, p)
+				}
+			}()
+			Ordered(32, func(yield func(int) error) error {
+				for i := 0; i < 1000; i++ {
+					if where == "source" && i == 500 {
+						panic("source")
+					}
+					if err := yield(i); err != nil {
+						return err
+					}
+				}
+				return nil
+			}, func(i int) int {
+				if where == "work" && i == 300 {
+					panic("work")
+				}
+				return i
+			}, func(i, _ int) error {
+				if where == "done" && i == 100 {
+					panic("done")
+				}
+				return nil
+			})
+			t.Errorf("%s: Ordered returned normally", where)
+		}()
+	}
 }
