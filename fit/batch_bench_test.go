@@ -9,10 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
-	"runtime/metrics"
-	"sync/atomic"
 	"testing"
-	"time"
 
 	"github.com/fickfit/fickfit/internal/longtable"
 	"github.com/fickfit/fickfit/internal/measure"
@@ -206,41 +203,6 @@ func writeLongTable(path string, profiles, points int) error {
 	return f.Close()
 }
 
-// batchHeapPeak samples the heap-object footprint every millisecond and
-// keeps the largest value.
-type batchHeapPeak struct {
-	peak       atomic.Uint64
-	stop, done chan struct{}
-}
-
-func startBatchHeapPeak() *batchHeapPeak {
-	s := &batchHeapPeak{stop: make(chan struct{}), done: make(chan struct{})}
-	sample := []metrics.Sample{{Name: "/memory/classes/heap/objects:bytes"}}
-	go func() {
-		defer close(s.done)
-		tick := time.NewTicker(time.Millisecond)
-		defer tick.Stop()
-		for {
-			metrics.Read(sample)
-			if v := sample[0].Value.Uint64(); v > s.peak.Load() {
-				s.peak.Store(v)
-			}
-			select {
-			case <-s.stop:
-				return
-			case <-tick.C:
-			}
-		}
-	}()
-	return s
-}
-
-func (s *batchHeapPeak) finish() uint64 {
-	close(s.stop)
-	<-s.done
-	return s.peak.Load()
-}
-
 // BenchmarkReadFit1M reads a long table of 20,000 profiles × 50 points
 // (10⁶ points, about 30 MB of text) with profile.Read and fits every
 // profile with Wald intervals. The memory target is under 300 MB for 10⁶
@@ -255,7 +217,7 @@ func BenchmarkReadFit1M(b *testing.B) {
 		b.Fatal(err)
 	}
 	runtime.GC()
-	sampler := startBatchHeapPeak()
+	sampler := measure.StartPeakHeap()
 	o := Options{CI: "wald"}
 	failed := 0
 	for b.Loop() {
@@ -274,7 +236,7 @@ func BenchmarkReadFit1M(b *testing.B) {
 			}
 		}
 	}
-	peak := sampler.finish()
+	peak := sampler.Stop()
 	if failed > 0 {
 		b.Errorf("%d of %d fits failed", failed, profiles)
 	}

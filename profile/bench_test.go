@@ -6,10 +6,8 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
-	"runtime/metrics"
 	"strconv"
 	"strings"
-	"sync/atomic"
 	"testing"
 	"time"
 
@@ -45,41 +43,6 @@ func longCSV(profiles, points int) []byte {
 	return b.Bytes()
 }
 
-// heapSampler records the largest heap-object footprint while running.
-type heapSampler struct {
-	peak atomic.Uint64
-	stop chan struct{}
-	done chan struct{}
-}
-
-func startHeapSampler() *heapSampler {
-	s := &heapSampler{stop: make(chan struct{}), done: make(chan struct{})}
-	sample := []metrics.Sample{{Name: "/memory/classes/heap/objects:bytes"}}
-	go func() {
-		defer close(s.done)
-		t := time.NewTicker(time.Millisecond)
-		defer t.Stop()
-		for {
-			metrics.Read(sample)
-			if v := sample[0].Value.Uint64(); v > s.peak.Load() {
-				s.peak.Store(v)
-			}
-			select {
-			case <-s.stop:
-				return
-			case <-t.C:
-			}
-		}
-	}()
-	return s
-}
-
-func (s *heapSampler) finish() uint64 {
-	close(s.stop)
-	<-s.done
-	return s.peak.Load()
-}
-
 // BenchmarkReadLongCSV reads a long table of 10⁴ profiles × 50 points
 // (and 2·10⁴ × 50 = 10⁶ points). Reported: ns per point, the heap the
 // result keeps (live-MB) and the largest heap seen while reading
@@ -93,7 +56,7 @@ func BenchmarkReadLongCSV(b *testing.B) {
 			runtime.GC()
 			var before runtime.MemStats
 			runtime.ReadMemStats(&before)
-			sampler := startHeapSampler()
+			sampler := measure.StartPeakHeap()
 			var ps []Profile
 			b.ResetTimer()
 			for b.Loop() {
@@ -103,7 +66,7 @@ func BenchmarkReadLongCSV(b *testing.B) {
 				}
 			}
 			b.StopTimer()
-			peak := sampler.finish()
+			peak := sampler.Stop()
 			runtime.GC()
 			var after runtime.MemStats
 			runtime.ReadMemStats(&after)
