@@ -1,6 +1,10 @@
 package fit
 
-import "math"
+import (
+	"math"
+
+	"github.com/fickfit/fickfit/internal/dense"
+)
 
 // The normal equations of a profile fit are tiny (2–6 parameters), so the
 // few dense operations needed are written out here: they allocate nothing
@@ -116,7 +120,7 @@ func invertSPDInto(a []float64, k int, old [][]float64) ([][]float64, bool) {
 	}
 	// Cholesky s = L Lᵀ; a pivot below 1e-15 of the unit diagonal means
 	// the matrix is numerically singular.
-	if !cholesky(s, k, 1e-15) {
+	if !dense.Cholesky(s, k, 1e-15) {
 		return nil, false
 	}
 	// Column c of the inverse solves L Lᵀ x = e_c.
@@ -125,7 +129,7 @@ func invertSPDInto(a []float64, k int, old [][]float64) ([][]float64, bool) {
 			e[i] = 0
 		}
 		e[c] = 1
-		cholSubst(s, e, inv[c*k:(c+1)*k], k)
+		dense.CholSubst(s, e, inv[c*k:(c+1)*k], k)
 	}
 	out := resize(old, k)
 	for i := range out {
@@ -135,48 +139,4 @@ func invertSPDInto(a []float64, k int, old [][]float64) ([][]float64, bool) {
 		}
 	}
 	return out, true
-}
-
-// cholesky overwrites the lower triangle of the k×k symmetric matrix a
-// (row-major) with its Cholesky factor L, a = L Lᵀ. It reports false when a
-// pivot falls to minPivot or below: the matrix is not (numerically)
-// positive definite.
-func cholesky(a []float64, k int, minPivot float64) bool {
-	for j := 0; j < k; j++ {
-		s := a[j*k+j]
-		for m := 0; m < j; m++ {
-			s -= a[j*k+m] * a[j*k+m]
-		}
-		if !(s > minPivot) {
-			return false
-		}
-		d := math.Sqrt(s)
-		a[j*k+j] = d
-		for i := j + 1; i < k; i++ {
-			t := a[i*k+j]
-			for m := 0; m < j; m++ {
-				t -= a[i*k+m] * a[j*k+m]
-			}
-			a[i*k+j] = t / d
-		}
-	}
-	return true
-}
-
-// cholSubst solves L Lᵀ x = b given the factor L in the lower triangle of l.
-func cholSubst(l, b, x []float64, k int) {
-	for i := 0; i < k; i++ {
-		t := b[i]
-		for m := 0; m < i; m++ {
-			t -= l[i*k+m] * x[m]
-		}
-		x[i] = t / l[i*k+i]
-	}
-	for i := k - 1; i >= 0; i-- {
-		t := x[i]
-		for m := i + 1; m < k; m++ {
-			t -= l[m*k+i] * x[m]
-		}
-		x[i] = t / l[i*k+i]
-	}
 }

@@ -1,6 +1,10 @@
 package fit
 
-import "math"
+import (
+	"math"
+
+	"github.com/fickfit/fickfit/internal/dense"
+)
 
 // The working state of one Solve: the normal equations, Moré's scaling,
 // the damped step, the move along a parameter that runs off, and the
@@ -160,10 +164,10 @@ func (st *lmState) step(lambda float64, fac, x []float64) bool {
 		}
 		fac[aa*k+aa] += lambda * d * d
 	}
-	if !cholesky(fac, k, 0) {
+	if !dense.Cholesky(fac, k, 0) {
 		return false
 	}
-	cholSubst(fac, st.g, x, k)
+	dense.CholSubst(fac, st.g, x, k)
 	return true
 }
 
@@ -241,7 +245,7 @@ func (st *lmState) test(cur, lambda float64, set Settings, full bool) bool {
 		}
 		st.u[aa] = d * rho
 	}
-	cholSubst(st.fac2, st.u, st.v, k)
+	dense.CholSubst(st.fac2, st.u, st.v, k)
 	var noise float64
 	for aa := 0; aa < k; aa++ {
 		noise += st.u[aa] * st.v[aa]

@@ -1,6 +1,10 @@
 package matano
 
-import "math"
+import (
+	"math"
+
+	"github.com/fickfit/fickfit/internal/dense"
+)
 
 // The smoother has its own small Levenberg–Marquardt rather than fit.Solve
 // for three reasons. The band refits the whole smoother (every number of
@@ -200,10 +204,10 @@ func damped(a, g, d []float64, lambda float64, chol, delta []float64, np int) bo
 		}
 		chol[j*np+j] += lambda * dj * dj
 	}
-	if !cholesky(chol, np) {
+	if !dense.Cholesky(chol, np, 0) {
 		return false
 	}
-	cholSubst(chol, g, delta, np)
+	dense.CholSubst(chol, g, delta, np)
 	return true
 }
 
@@ -223,7 +227,7 @@ func identified(a []float64, np int, scratch []float64) bool {
 			scratch[i*np+j] = a[i*np+j] / (di * dj)
 		}
 	}
-	if !cholesky(scratch, np) {
+	if !dense.Cholesky(scratch, np, 0) {
 		return false
 	}
 	for i := 0; i < np; i++ {
@@ -246,49 +250,6 @@ func predicted(a, g, delta []float64, np int) float64 {
 		pred += delta[aa] * (2*g[aa] - ad)
 	}
 	return pred
-}
-
-// cholesky overwrites the lower triangle of a (k×k, row-major, symmetric
-// positive definite) with its Cholesky factor; false when a pivot is not
-// positive.
-func cholesky(a []float64, k int) bool {
-	for j := 0; j < k; j++ {
-		s := a[j*k+j]
-		for m := 0; m < j; m++ {
-			s -= a[j*k+m] * a[j*k+m]
-		}
-		if !(s > 0) {
-			return false
-		}
-		l := math.Sqrt(s)
-		a[j*k+j] = l
-		for i := j + 1; i < k; i++ {
-			t := a[i*k+j]
-			for m := 0; m < j; m++ {
-				t -= a[i*k+m] * a[j*k+m]
-			}
-			a[i*k+j] = t / l
-		}
-	}
-	return true
-}
-
-// cholSubst solves L Lᵀ x = b with L in the lower triangle of l.
-func cholSubst(l, b, x []float64, k int) {
-	for i := 0; i < k; i++ {
-		t := b[i]
-		for m := 0; m < i; m++ {
-			t -= l[i*k+m] * x[m]
-		}
-		x[i] = t / l[i*k+i]
-	}
-	for i := k - 1; i >= 0; i-- {
-		t := x[i]
-		for m := i + 1; m < k; m++ {
-			t -= l[m*k+i] * x[m]
-		}
-		x[i] = t / l[i*k+i]
-	}
 }
 
 func allFinite(v []float64) bool {
