@@ -416,35 +416,7 @@ func simplex(pr Problem, from []float64) ([]float64, bool) {
 // typically leaves such long blocks. Data not in depth order are ranked
 // first.
 func fewRuns(d *Data, f []float64) bool {
-	n := len(d.X)
-	var order []int
-	if !sort.Float64sAreSorted(d.X) {
-		order = make([]int, n)
-		for i := range order {
-			order[i] = i
-		}
-		sort.SliceStable(order, func(a, b int) bool { return d.X[order[a]] < d.X[order[b]] })
-	}
-	var n1, n2, runs, prev int
-	for k := 0; k < n; k++ {
-		i := k
-		if order != nil {
-			i = order[k]
-		}
-		s := 0
-		switch r := d.Y[i] - f[i]; {
-		case r > 0:
-			s, n1 = 1, n1+1
-		case r < 0:
-			s, n2 = -1, n2+1
-		default:
-			continue
-		}
-		if s != prev {
-			runs++
-			prev = s
-		}
-	}
+	n1, n2, runs := signRuns(d.X, d.Y, f)
 	if n1 < 2 || n2 < 2 {
 		return false
 	}

@@ -132,7 +132,7 @@ func (r *Result) finish(sol *Solution, o Options) error {
 	for i := range d.X {
 		r.Residuals[i] = Residual{Depth: d.X[i], Observed: d.Y[i], Fitted: sol.F[i], Residual: d.Y[i] - sol.F[i]}
 	}
-	r.Stats.RunsP = runsOf(n, func(i int) (float64, float64) { return r.Residuals[i].Depth, r.Residuals[i].Residual })
+	r.Stats.RunsP = runsP(signRuns(d.X, d.Y, sol.F))
 
 	switch o.CI {
 	case "", CIProfile:
@@ -289,49 +289,12 @@ func aicc(rss float64, n, k int) float64 {
 // conditional distribution of the number of runs given the counts of
 // positive and negative residuals; zero residuals are dropped. Too few
 // signs of either kind give NaN.
-func runsTest(x, res []float64) float64 {
-	return runsOf(len(x), func(i int) (float64, float64) { return x[i], res[i] })
-}
+func runsTest(x, res []float64) float64 { return runsP(signRuns(x, res, nil)) }
 
-// runsOf is runsTest on n points given by at(i) = (depth, residual).
-func runsOf(n int, at func(i int) (depth, resid float64)) float64 {
-	var idx []int
-	for i := 1; i < n; i++ {
-		prev, _ := at(i - 1)
-		if cur, _ := at(i); cur < prev { // not in depth order: sort an index
-			idx = make([]int, n)
-			for j := range idx {
-				idx[j] = j
-			}
-			sort.SliceStable(idx, func(p, q int) bool {
-				dp, _ := at(idx[p])
-				dq, _ := at(idx[q])
-				return dp < dq
-			})
-			break
-		}
-	}
-	var n1, n2, runs int
-	prev := 0
-	for k := 0; k < n; k++ {
-		i := k
-		if idx != nil {
-			i = idx[k]
-		}
-		s := 0
-		switch _, e := at(i); {
-		case e > 0:
-			s, n1 = 1, n1+1
-		case e < 0:
-			s, n2 = -1, n2+1
-		default:
-			continue
-		}
-		if s != prev {
-			runs++
-			prev = s
-		}
-	}
+// runsP is the two-sided p-value of r runs among n1 positive and n2
+// negative signs from their exact null distribution; NaN when either
+// count is below 2.
+func runsP(n1, n2, runs int) float64 {
 	if n1 < 2 || n2 < 2 {
 		return math.NaN()
 	}
@@ -346,6 +309,47 @@ func runsOf(n int, at func(i int) (depth, resid float64)) float64 {
 		}
 	}
 	return math.Min(1, 2*math.Min(lo, hi))
+}
+
+// signRuns counts the positive and negative residuals y − f (f nil: y
+// itself) at depths x, and the runs of equal signs they form in depth
+// order (zero residuals dropped; points not in depth order ranked first).
+// It serves the exact runs test and the failure path's quick one.
+func signRuns(x, y, f []float64) (n1, n2, runs int) {
+	n := len(x)
+	var idx []int
+	if !sort.Float64sAreSorted(x) {
+		idx = make([]int, n)
+		for j := range idx {
+			idx[j] = j
+		}
+		sort.SliceStable(idx, func(p, q int) bool { return x[idx[p]] < x[idx[q]] })
+	}
+	prev := 0
+	for k := 0; k < n; k++ {
+		i := k
+		if idx != nil {
+			i = idx[k]
+		}
+		e := y[i]
+		if f != nil {
+			e -= f[i]
+		}
+		s := 0
+		switch {
+		case e > 0:
+			s, n1 = 1, n1+1
+		case e < 0:
+			s, n2 = -1, n2+1
+		default:
+			continue
+		}
+		if s != prev {
+			runs++
+			prev = s
+		}
+	}
+	return n1, n2, runs
 }
 
 // runsDist returns P(R = r) for r = 0…n1+n2 when n1 and n2 signs are in
