@@ -13,12 +13,12 @@ import (
 	"github.com/fickfit/fickfit/fit"
 )
 
-// TestReferenceTranscription: external check — every row of the built-in
+// TestReferenceTableRows: external check — every row of the built-in
 // table equals its row of Callister & Rethwisch, Table 5.2, printed page
-// 150, as transcribed in testdata/reference/diffusion_table.csv (see its
+// 150, as copied into testdata/reference/diffusion_table.csv (see its
 // header for the copy seen), and names the table's own primary source for
 // the row (the footnote letter). No row is written from memory.
-func TestReferenceTranscription(t *testing.T) {
+func TestReferenceTableRows(t *testing.T) {
 	f, err := os.Open("../testdata/reference/diffusion_table.csv")
 	if err != nil {
 		t.Fatal(err)
@@ -56,7 +56,7 @@ func TestReferenceTranscription(t *testing.T) {
 	}
 	for _, r := range References() {
 		if !seen[r.Name] {
-			t.Errorf("row %s is not in the transcribed table: a value nobody can check", r.Name)
+			t.Errorf("row %s is not in the copied table: a value nobody can check", r.Name)
 		}
 	}
 }

@@ -51,7 +51,7 @@ type ReferenceCheck struct {
 // but its rows (Cu self-diffusion 2.5e-5 m²/s, 200 kJ/mol; C in α-Fe
 // 1.1e-6 m²/s, 87.4 kJ/mol) and its tutorial-video margin notes are those
 // of the 9th (2014) and 10th (2018) editions, not of the 7th and 8th,
-// whose values differ. The transcription the tests compare with is
+// whose values differ. The copy of the table the tests compare with is
 // testdata/reference/diffusion_table.csv.
 const (
 	callister = "W. D. Callister Jr. & D. G. Rethwisch, Materials Science and Engineering: An Introduction (Wiley), Table 5.2 \"A Tabulation of Diffusion Data\", printed page 150 (9th/10th-edition layout; the edition is not printed on the page checked)"

@@ -46,7 +46,7 @@ func lre(est, cert float64) float64 {
 
 // TestNISTStRD checks the least-squares engine against the certified values
 // of the NIST Statistical Reference Datasets, nonlinear regression section
-// (data and certified values transcribed from memory and cross-checked with
+// (data and certified values written down from memory and cross-checked with
 // scipy, see testdata/nist/README.md). The bar is LRE ≥ 6 on parameters and
 // ≥ 4 on standard errors from both NIST starts; a start that the solver
 // cannot bring to the certified minimum must be reported as not converged.
