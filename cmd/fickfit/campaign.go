@@ -173,7 +173,8 @@ func newDemoCmd() *cobra.Command {
 fictional Harrow Vale Gear Co. qualifies its pit furnace F7 for gas
 carburizing two lots of case-hardening bar (coupons at 880–970 °C, three per
 lot and temperature) and asks what temperature a pinion saw during a
-controller fault. All numbers are made up for the demonstration.`,
+controller fault; each coupon's effective case depth is given at 0.35 wt%
+carbon (--case-threshold). All numbers are made up for the demonstration.`,
 		Args: cobra.NoArgs,
 		RunE: func(c *cobra.Command, args []string) error {
 			o, ro, err := cf.options(c, nil)
@@ -195,6 +196,11 @@ controller fault. All numbers are made up for the demonstration.`,
 		},
 	}
 	cf.register(c, "fickfit-demo")
+	// The demo shows the case depth a heat treater reads off a carburized
+	// coupon: the depth where carbon falls to 0.35 wt%.
+	ct := c.Flags().Lookup("case-threshold")
+	ct.DefValue = "0.35wt%"
+	_ = ct.Value.Set(ct.DefValue) // a string flag: Set cannot fail
 	return c
 }
 

@@ -182,8 +182,13 @@ func TestCampaignFolderSafety(t *testing.T) {
 	}
 	out := filepath.Join(t.TempDir(), "demo")
 	for run := 0; run < 2; run++ {
-		if code, _, stderr := runCLI(t, "demo", "--out", out, "--no-png", "--ci", "wald"); code != 0 {
+		code, summary, stderr := runCLI(t, "demo", "--out", out, "--no-png", "--ci", "wald")
+		if code != 0 {
 			t.Fatalf("demo run %d: exit %d: %s", run+1, code, stderr)
+		}
+		// The demo reads each coupon's effective case depth at 0.35 wt% C.
+		if !strings.Contains(summary, "case depth") || !strings.Contains(summary, "at 0.35wt%") {
+			t.Errorf("demo run %d: no case depth in the summary:\n%s", run+1, summary)
 		}
 	}
 }
