@@ -262,13 +262,30 @@ func (res *CampaignReport) WriteWorkbook(w io.Writer, o CampaignOptions) error {
 func (x *xlWriter) summarySheet(res *CampaignReport, u TempUnit) {
 	s := SheetSummary
 	level := Level(res.Options.Level)
-	cols := []string{"id", "lot", "T (" + u.Symbol() + ")", "T (K)", "t (h)", "model", "D (m²/s)",
-		"D " + level + " CI low (m²/s)", "D " + level + " CI high (m²/s)", "Dt (m²)", "Cs", "C0", "value unit",
-		"R²", "RMSE", "n", "warnings", "source"}
-	x.header(s, 1, cols...)
-	x.twoLines(s, 1)
-	row := 2
 	hasCase := false
+	for _, r := range res.Results {
+		hasCase = hasCase || r.CaseDepth != nil
+	}
+	cols := []string{"id", "lot", "T (" + u.Symbol() + ")", "T (K)", "t (h)", "model", "D (m²/s)",
+		"D " + level + " CI low (m²/s)", "D " + level + " CI high (m²/s)", "Dt (m²)"}
+	widths := []float64{18, 11, 9, 9, 7, 8, 12, 14, 14, 12}
+	// The case depth stands beside D, where a reader looks for a
+	// profile's result (columns K–O when any profile has one).
+	caseCol := len(cols) + 1
+	if hasCase {
+		cols = append(cols, "case depth (mm)", "case depth "+level+" CI low (mm)", "case depth "+level+" CI high (mm)",
+			"case depth from the points (mm)", "case threshold")
+		widths = append(widths, 10, 12, 12, 12, 12)
+	}
+	rest := len(cols) + 1 // Cs, C0, value unit, R², RMSE, n, warnings, source
+	cols = append(cols, "Cs", "C0", "value unit", "R²", "RMSE", "n", "warnings", "source")
+	widths = append(widths, 9, 9, 8, 8, 11, 5, 40, 28)
+	warnCol, srcCol := rest+6, rest+7
+	x.header(s, 1, cols...)
+	if x.err == nil { // the case-depth headers wrap to three lines
+		x.err = x.f.SetRowHeight(s, 1, 44)
+	}
+	row := 2
 	for _, r := range res.Results {
 		x.set(s, 1, row, r.ID, 0)
 		x.set(s, 2, row, r.Lot, 0)
@@ -291,56 +308,46 @@ func (x *xlWriter) summarySheet(res *CampaignReport, u TempUnit) {
 				x.set(s, 10, row, d.Value, ds)
 			}
 		}
+		if e := r.CaseDepth; e != nil {
+			mm := x.num(e.Depth*1e3, LastDigit(e.Depth*1e3, fit.Interval{Lo: e.CI.Lo * 1e3, Hi: e.CI.Hi * 1e3}))
+			x.set(s, caseCol, row, e.Depth*1e3, mm)
+			x.set(s, caseCol+1, row, e.CI.Lo*1e3, mm)
+			x.set(s, caseCol+2, row, e.CI.Hi*1e3, mm)
+			x.set(s, caseCol+3, row, e.FromData*1e3, x.sig(e.FromData*1e3, 4))
+			x.set(s, caseCol+4, row, e.Threshold, 0)
+		}
 		for k, name := range []string{"Cs", "C0"} {
 			if e := r.Param(name); e != nil {
-				x.set(s, 11+k, row, e.Value, x.num(e.Value, paramLast(e.Value, e.CI, e.Fixed)))
+				x.set(s, rest+k, row, e.Value, x.num(e.Value, paramLast(e.Value, e.CI, e.Fixed)))
 			}
 		}
-		x.set(s, 13, row, r.ValueUnit, 0)
-		x.set(s, 14, row, r.Stats.R2, x.st.fixed4)
-		x.set(s, 15, row, r.Stats.RMSE, x.sig(r.Stats.RMSE, 2))
-		x.set(s, 16, row, r.Stats.N, x.st.int0)
+		x.set(s, rest+2, row, r.ValueUnit, 0)
+		x.set(s, rest+3, row, r.Stats.R2, x.st.fixed4)
+		x.set(s, rest+4, row, r.Stats.RMSE, x.sig(r.Stats.RMSE, 2))
+		x.set(s, rest+5, row, r.Stats.N, x.st.int0)
 		var ws []string
 		for _, w := range r.Warnings {
 			ws = append(ws, warnText(w, u))
 		}
-		x.set(s, 17, row, strings.Join(ws, "\n"), x.st.text)
-		x.set(s, 18, row, r.Source, 0)
-		if e := r.CaseDepth; e != nil {
-			hasCase = true
-			mm := x.num(e.Depth*1e3, LastDigit(e.Depth*1e3, fit.Interval{Lo: e.CI.Lo * 1e3, Hi: e.CI.Hi * 1e3}))
-			x.set(s, 19, row, e.Depth*1e3, mm)
-			x.set(s, 20, row, e.CI.Lo*1e3, mm)
-			x.set(s, 21, row, e.CI.Hi*1e3, mm)
-			x.set(s, 22, row, e.FromData*1e3, x.sig(e.FromData*1e3, 4))
-			x.set(s, 23, row, e.Threshold, 0)
-		}
+		x.set(s, warnCol, row, strings.Join(ws, "\n"), x.st.text)
+		x.set(s, srcCol, row, r.Source, 0)
 		row++
-	}
-	if hasCase {
-		for i, h := range []string{"case depth (mm)", "case depth " + level + " CI low (mm)", "case depth " + level + " CI high (mm)",
-			"case depth from the points (mm)", "case threshold"} {
-			x.set(s, 19+i, 1, h, x.st.header)
-		}
 	}
 	for _, fl := range res.Failed {
 		x.set(s, 1, row, fl.ID, 0)
 		x.set(s, 2, row, fl.Lot, 0)
-		x.set(s, 17, row, "not fitted: "+fl.Error, x.st.text)
-		x.set(s, 18, row, fl.Source, 0)
+		x.set(s, warnCol, row, "not fitted: "+fl.Error, x.st.text)
+		x.set(s, srcCol, row, fl.Source, 0)
 		row++
 	}
-	x.widths(s, 18, 11, 9, 9, 7, 8, 12, 14, 14, 12, 9, 9, 8, 8, 11, 5, 48, 28)
+	x.widths(s, widths...)
 	x.freeze(s, 1)
 	if x.err == nil && row > 2 {
 		x.err = x.f.AutoFilter(s, "A1:"+cell(len(cols), row-1), nil)
 	}
-	// After the filter, which rewrites the sheet's properties.
-	lastCol := len(cols)
-	if hasCase {
-		lastCol = 23
-	}
-	x.pageSetup(s, lastCol, max(row-1, 1), true, 0, 1)
+	// After the filter, which rewrites the sheet's properties. The print
+	// area ends at the warnings: the source path is for the screen.
+	x.pageSetup(s, warnCol, max(row-1, 1), true, 0, 1)
 }
 
 func (x *xlWriter) profileSheet(s string, r *fit.Result, u TempUnit) {

@@ -120,7 +120,17 @@ func TestWorkbookInSpreadsheetApp(t *testing.T) {
 			t.Errorf("%s: Cs formatted %q, want fixed %q (the HTML's digits)", r.ID, got, want)
 		}
 	}
-	if got := format(SheetSummary, "P2"); got != "0" {
+	header, _ := f.GetRows(SheetSummary)
+	nCol := 0
+	for i, h := range header[0] {
+		if h == "n" {
+			nCol = i + 1
+		}
+	}
+	if nCol == 0 {
+		t.Fatalf("the summary has no column n: %q", header[0])
+	}
+	if got := format(SheetSummary, cell(nCol, 2)); got != "0" {
 		t.Errorf("summary n formatted %q, want an integer", got)
 	}
 	for _, col := range []int{9, 10, 11} { // points, temperatures, dof
