@@ -83,10 +83,12 @@ func newReferenceCmd() *cobra.Command {
 		Use:   "reference",
 		Short: "List the built-in table of published D0 and Q",
 		Long: `List the built-in reference rows (solute, host, D0, Q, the temperature range
-where they apply, and the published source). Rows marked "from memory" were
-written down from the named source without checking a copy: check the
-handbook before relying on them. Use a row with --reference NAME in
-backcalc and predict.`,
+where they apply, and the published table each row was checked against,
+with that table's own source). A row written down without checking a copy
+would be marked as such (none is today). Literature values are not your
+material: a back-calculation or prediction from a row carries the row's
+spread and says so; calibrate on your own coupons where it matters. Use a
+row with --reference NAME in backcalc and predict.`,
 		Args: cobra.NoArgs,
 		RunE: func(c *cobra.Command, args []string) error {
 			if err := out.check(nil); err != nil {

@@ -32,8 +32,8 @@ measured profile is first smoothed by a monotone sum of error functions
 stays small against the band; --terms N fixes N), then D is evaluated at the
 requested concentrations by the Boltzmann–Matano method (Matano plane from
 equal areas) or by Sauer–Freise (no Matano plane). The band is a seeded
-bootstrap of the whole procedure, the choice of the number of terms
-included. Near the end compositions the method is ill-conditioned and says
+bootstrap of the whole procedure, including the choice of the number of
+terms. Near the end compositions the method is ill-conditioned and says
 so.`,
 		Example: `  fickfit matano couple-NiCu.csv --time 100h
   fickfit matano couple.csv --method sauer-freise --at 0.2,0.4,0.6 --format json

@@ -23,7 +23,9 @@ metallography, let the applicable specifications decide acceptance, and defer
 to local codes and licensed engineering judgement.
 
 Exit status: 0 ok, 1 the data could not give an answer (no convergence,
-unidentifiable parameters), 2 bad input or usage.`,
+unidentifiable parameters), 2 bad input or usage, 3 an internal error of
+fickfit (a bug; please report it), 4 with --keep-going: results written but
+some inputs left out (listed), 130/143 stopped by SIGINT/SIGTERM.`,
 		Version:       fickfit.Version,
 		SilenceUsage:  true,
 		SilenceErrors: true,
