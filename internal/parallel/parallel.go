@@ -98,4 +98,5 @@ type Panic struct {
 	Stack []byte // the worker's stack at the panic
 }
 
+// Error writes the panic's value and the worker's stack.
 func (p *Panic) Error() string { return fmt.Sprintf("%v (in a worker)\n\n%s", p.Value, p.Stack) }
