@@ -596,16 +596,17 @@ func (x *xlWriter) arrheniusSheet(res *CampaignReport, u TempUnit) {
 		x.set(s, 13, row, scaled, 0)
 	}
 	pr := 4 + len(lines)
+	const seriesCol = 15 // the chart series' names
 	x.header(s, pr, "group", "id", "T ("+u.Symbol()+")", "T (K)", "10⁴/T (1/K)", "D (m²/s)", "D CI low (m²/s)", "D CI high (m²/s)",
-		"ln D", "ln D on line", "residual (ln D)", "chart series")
+		"ln D", "ln D on line", "residual (ln D)", "leverage", "studentized residual", "Cook's distance", "chart series")
 	x.twoLines(s, pr)
 	row := pr + 1
 	type span struct{ r0, r1 int }
 	var spans []span
 	for _, l := range lines {
 		r0 := row
-		x.set(s, 12, row, groupLabel(l), 0)
-		x.set(s, 12, row+1, groupLabel(l)+" line", 0)
+		x.set(s, seriesCol, row, groupLabel(l), 0)
+		x.set(s, seriesCol, row+1, groupLabel(l)+" line", 0)
 		for _, p := range l.Points {
 			lo, hi := pointCI(p.Point, l.Level)
 			x.set(s, 1, row, groupLabel(l), 0)
@@ -620,14 +621,20 @@ func (x *xlWriter) arrheniusSheet(res *CampaignReport, u TempUnit) {
 			x.set(s, 9, row, p.LnD, x.st.fixed4)
 			x.set(s, 10, row, p.Fitted, x.st.fixed4)
 			x.set(s, 11, row, p.Residual, x.st.fixed4)
+			// The point's influence on its line (empty where it is not
+			// defined: a line through two temperatures, or a point with
+			// leverage 1).
+			x.set(s, 12, row, p.Leverage, x.st.fixed4)
+			x.set(s, 13, row, p.Studentized, x.st.fixed2)
+			x.set(s, 14, row, p.Cook, x.st.fixed4)
 			row++
 		}
 		spans = append(spans, span{r0, row - 1})
 	}
-	x.widths(s, 16, 18, 10, 10, 12, 12, 14, 14, 10, 12, 14, 16, 8)
+	x.widths(s, 16, 18, 10, 10, 12, 12, 14, 14, 10, 12, 14, 10, 12, 10, 16)
 	// The chart below the tables, so that the sheet prints one page wide.
 	chartRow := row + 1
-	x.pageSetup(s, 13, chartRow+chartPrintRows(arrheniusChartPx), true, 0, 0)
+	x.pageSetup(s, seriesCol, chartRow+chartPrintRows(arrheniusChartPx), true, 0, 0)
 	if x.err != nil {
 		return
 	}
@@ -639,11 +646,11 @@ func (x *xlWriter) arrheniusSheet(res *CampaignReport, u TempUnit) {
 			continue
 		}
 		series = append(series,
-			excelize.ChartSeries{Name: fmt.Sprintf("%s!$L$%d", quoteSheet(s), sp.r0), Categories: rng(s, 5, sp.r0, sp.r1), Values: rng(s, 9, sp.r0, sp.r1),
+			excelize.ChartSeries{Name: fmt.Sprintf("%s!$%s$%d", quoteSheet(s), colName(seriesCol), sp.r0), Categories: rng(s, 5, sp.r0, sp.r1), Values: rng(s, 9, sp.r0, sp.r1),
 				Marker: excelize.ChartMarker{Symbol: chartMarkers[i%len(chartMarkers)], Size: 6, Fill: solid(col),
 					Border: excelize.LineOptions{Type: excelize.LineSolid, Fill: solid(col), Width: 0.75}},
 				Line: excelize.LineOptions{Type: excelize.LineNone}, Fill: solid(col)},
-			excelize.ChartSeries{Name: fmt.Sprintf("%s!$L$%d", quoteSheet(s), sp.r0+1), Categories: rng(s, 5, sp.r0, sp.r1), Values: rng(s, 10, sp.r0, sp.r1),
+			excelize.ChartSeries{Name: fmt.Sprintf("%s!$%s$%d", quoteSheet(s), colName(seriesCol), sp.r0+1), Categories: rng(s, 5, sp.r0, sp.r1), Values: rng(s, 10, sp.r0, sp.r1),
 				Marker: excelize.ChartMarker{Symbol: "none"}, Line: excelize.LineOptions{Type: excelize.LineSolid, Width: 1.5}, Fill: solid(col)})
 	}
 	x.addChart(s, cell(1, chartRow), &excelize.Chart{

@@ -108,6 +108,48 @@ func TestWorkbook(t *testing.T) {
 	if got := num(s, "L2"); !close(got, p.Residual) {
 		t.Errorf("residual %v, want %v", got, p.Residual)
 	}
+	// Arrhenius: each point's influence on its line beside its residual,
+	// the same numbers as the text, CSV and JSON (arrhenius.Influence).
+	arows, err := f.GetRows(SheetArrhenius)
+	if err != nil {
+		t.Fatal(err)
+	}
+	hdr := -1
+	for i, row := range arows {
+		if len(row) > 1 && row[0] == "group" && row[1] == "id" {
+			hdr = i
+		}
+	}
+	if hdr < 0 {
+		t.Fatal("Arrhenius sheet: no points table")
+	}
+	wantHdr := []string{"residual (ln D)", "leverage", "studentized residual", "Cook's distance", "chart series"}
+	if got := arows[hdr][10:]; strings.Join(got, "|") != strings.Join(wantHdr, "|") {
+		t.Errorf("Arrhenius points header ends %q, want %q", got, wantHdr)
+	}
+	checked := 0
+	row := hdr + 2 // 1-based row of the first point
+	for _, l := range res.Lines.Lines {
+		for _, p := range l.Points {
+			for col, want := range map[string]float64{"L": p.Leverage, "M": p.Studentized, "N": p.Cook} {
+				v, _ := f.GetCellValue(SheetArrhenius, col+strconv.Itoa(row), excelize.Options{RawCellValue: true})
+				if !finite(want) {
+					if v != "" {
+						t.Errorf("Arrhenius!%s%d = %q, want empty (not defined)", col, row, v)
+					}
+					continue
+				}
+				if got := num(SheetArrhenius, col+strconv.Itoa(row)); !close(got, want) {
+					t.Errorf("Arrhenius!%s%d = %v, want %v", col, row, got, want)
+				}
+				checked++
+			}
+			row++
+		}
+	}
+	if checked == 0 {
+		t.Error("no influence value on the Arrhenius sheet")
+	}
 	// Audit: every input with its SHA-256.
 	rows, _ := f.GetRows(SheetAudit)
 	var found int
