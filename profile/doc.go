@@ -74,7 +74,10 @@
 // the cells of one workbook deliver at most 256 MiB of text and cells (a
 // shared string counts at every cell that uses it); a worksheet part is
 // listed once. The profiles of one file keep at most 16 MiB of text (ids,
-// metadata and text columns, which every profile copies). Messages quote
+// metadata and text columns, which every profile copies) beyond, for a text
+// file, the size of the file itself: a long table of a million profiles
+// is read, a metadata line that every profile copies is not multiplied
+// without bound. Messages quote
 // at most 40 characters of a cell or line.
 //
 // # Errors

@@ -24,7 +24,7 @@ func readTableReference(r io.Reader, name string) ([]Profile, error) {
 	}
 	t, err := newTable(tr.header, tableOptions{org: tr.org, meta: &tr.meta, headerLine: tr.headerLine,
 		defaultID: baseID(name), comma: tr.comma, sepComma: tr.sep == ',', marks: tr.marks,
-		kept: &textBudget{limit: maxKeptText}})
+		kept: &textBudget{limit: maxKeptText, own: &tr.lim.total}})
 	if err != nil {
 		return nil, err
 	}
@@ -392,5 +392,45 @@ func TestIsBelowLimitQuickReject(t *testing.T) {
 		if got, want := IsBelowLimit(s), belowLimitRe.MatchString(s); got != want {
 			t.Fatalf("%q: %v, pattern %v", s, got, want)
 		}
+	}
+}
+
+// TestKeptTextBeyondFile: ids and text cells of the rows themselves may
+// exceed the kept-text limit (a long table of a million profiles keeps
+// tens of MiB of ids), a metadata line copied into every profile may not.
+// The limit is lowered to 1 KiB here to keep the files small.
+func TestKeptTextBeyondFile(t *testing.T) {
+	defer func(v int64) { maxKeptText = v }(maxKeptText)
+	maxKeptText = 1 << 10
+	table := func(meta string) []byte {
+		var b bytes.Buffer
+		if meta != "" {
+			fmt.Fprintf(&b, "# material: %s\n", meta)
+		}
+		b.WriteString("specimen,temperature_C,time_h,depth_um,C_wt%\n")
+		for p := 0; p < 200; p++ {
+			id := fmt.Sprintf("coupon-%033d", p) // 40 bytes: 8000 bytes of ids
+			for i := 0; i < 4; i++ {
+				fmt.Fprintf(&b, "%s,925,4,%d,%.3f\n", id, 50*i, 0.9-0.1*float64(i))
+			}
+		}
+		return b.Bytes()
+	}
+	ps, err := ReadCSV(bytes.NewReader(table("")), "ids.csv")
+	if err != nil || len(ps) != 200 {
+		t.Fatalf("a table whose ids exceed the limit but not the file: %d profiles, %v", len(ps), err)
+	}
+	// 200 copies of a 400-character material: 80 000 bytes, more than the
+	// file (about 45 kB) and the limit together.
+	_, err = ReadCSV(bytes.NewReader(table(strings.Repeat("m", 400))), "meta.csv")
+	if !errors.Is(err, ErrTooLarge) || !strings.Contains(err.Error(), "beyond the size of the file itself") {
+		t.Fatalf("metadata copied into every profile: %v, want ErrTooLarge", err)
+	}
+	// The same text once is no amplification.
+	var b bytes.Buffer
+	b.WriteString("# material: " + strings.Repeat("m", 400) + "\n")
+	b.WriteString("depth_um,C_wt%\n0,0.9\n50,0.8\n100,0.7\n")
+	if _, err := ReadCSV(bytes.NewReader(b.Bytes()), "once.csv"); err != nil {
+		t.Fatal(err)
 	}
 }

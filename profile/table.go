@@ -287,20 +287,32 @@ func (t *table) keep(n int64, line int) error {
 	if t.kept == nil {
 		return nil
 	}
-	if t.kept.used += n; t.kept.used <= t.kept.limit {
+	limit, beyond := t.kept.limit, ""
+	if t.kept.own != nil {
+		limit += *t.kept.own
+		beyond = " beyond the size of the file itself"
+	}
+	if t.kept.used += n; t.kept.used <= limit {
 		return nil
 	}
 	return t.org.errAt(line, -1, "", errorf(ErrTooLarge,
-		"the profiles of this file would keep more than %d MiB of text (ids, metadata and text columns, copied into every profile); it was not read",
-		t.kept.limit>>20), "shorten the long metadata or text cells, or split the file")
+		"the profiles of this file would keep more than %d MiB of text%s (ids, metadata and text columns, copied into every profile); it was not read",
+		t.kept.limit>>20, beyond), "shorten the long metadata or text cells, or split the file")
 }
 
-// textBudget counts bytes against a limit.
-type textBudget struct{ used, limit int64 }
+// textBudget counts bytes against a limit. With own set (a text file),
+// the limit grows by the bytes of the file read so far: ids and text
+// cells that the rows themselves hold are never an amplification, however
+// many profiles the file has; metadata copied into every profile is.
+type textBudget struct {
+	used, limit int64
+	own         *int64
+}
 
 // maxKeptText bounds the text the profiles of one file keep (ids,
-// metadata, text columns): a report repeats it for every profile.
-const maxKeptText = 16 << 20
+// metadata, text columns) beyond what the file itself holds: a report
+// repeats it for every profile. A variable only so that a test can lower it.
+var maxKeptText int64 = 16 << 20
 
 // add reads one data row (cells may be fewer than the header: missing
 // cells are blank). Blank rows are skipped.

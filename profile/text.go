@@ -264,6 +264,9 @@ type lineLimiter struct {
 	run  int // bytes since the last '\n'
 	line int // 1-based number of the line being read
 	err  error
+	// total counts the bytes read: the profiles' kept text is allowed
+	// this much beyond maxKeptText (textBudget.own).
+	total int64
 }
 
 func (l *lineLimiter) Read(p []byte) (int, error) {
@@ -274,6 +277,7 @@ func (l *lineLimiter) Read(p []byte) (int, error) {
 		l.line = 1
 	}
 	n, err := l.r.Read(p)
+	l.total += int64(n)
 	for i := 0; i < n; {
 		j := bytes.IndexByte(p[i:n], '\n')
 		if j < 0 {
@@ -368,7 +372,7 @@ func scanTable(r io.Reader, name, defaultID string, st *stream) ([]Profile, erro
 	}
 	t, err := newTable(tr.header, tableOptions{org: tr.org, meta: &tr.meta, headerLine: tr.headerLine,
 		defaultID: defaultID, comma: tr.comma, sepComma: tr.sep == ',', marks: tr.marks,
-		kept: &textBudget{limit: maxKeptText}})
+		kept: &textBudget{limit: maxKeptText, own: &tr.lim.total}})
 	if err != nil {
 		return nil, err
 	}

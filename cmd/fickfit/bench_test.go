@@ -2,7 +2,6 @@ package main
 
 import (
 	"bytes"
-	"fmt"
 	"io"
 	"os"
 	"path/filepath"
@@ -52,40 +51,28 @@ func BenchmarkFitCommand(b *testing.B) {
 	}
 }
 
-// BenchmarkStreamMillion streams 10⁶ profiles × 50 points (a folder of 50
-// generated tables of 20,000 profiles, 1.4 GB: one file of 10⁶ profiles
-// would exceed the 16 MiB of text a file's profiles may keep) through the
-// pipeline of fickfit fit --ci wald --format csv: profile.Each, fit.FitEach
-// with results reused, report.FitStream's CSV, written to io.Discard.
-// Reported: the time per profile (compare BenchmarkFitCommand's), the
-// largest heap seen (sampled every ms) and the input's size. Run alone,
-// with -benchtime 1x.
+// BenchmarkStreamMillion streams one generated long table of 10⁶ profiles
+// × 50 points (1.4 GB) through the pipeline of fickfit fit --ci wald
+// --format csv: profile.Each, fit.FitEach with results reused,
+// report.FitStream's CSV, written to io.Discard. Reported: the time per
+// profile (compare BenchmarkFitCommand's), the largest heap seen (sampled
+// every ms) and the input's size. Run alone, with -benchtime 1x.
 func BenchmarkStreamMillion(b *testing.B) {
-	const files, per = 50, 20000
+	const profiles = 1000000
 	dir := b.TempDir()
-	var size int64
-	for k := 0; k < files; k++ {
-		path := filepath.Join(dir, fmt.Sprintf("part%02d.csv", k))
-		f, err := os.Create(path)
-		if err != nil {
-			b.Fatal(err)
-		}
-		if err := longtable.Write(f, longtable.Options{Profiles: per, Points: 50, Seed: uint64(k), Prefix: fmt.Sprintf("F%02d-", k)}); err != nil {
-			b.Fatal(err)
-		}
-		if err := f.Close(); err != nil {
-			b.Fatal(err)
-		}
-		fi, _ := os.Stat(path)
-		size += fi.Size()
+	path := writeTable(b, dir, longtable.Options{Profiles: profiles, Points: 50, Seed: 5})
+	fi, err := os.Stat(path)
+	if err != nil {
+		b.Fatal(err)
 	}
+	size := fi.Size()
 	runtime.GC()
 	peak := measure.StartPeakHeap()
 	cpu0 := measure.CPU()
 	rows := 0
 	for b.Loop() {
 		doc := &report.FitStream{Run: func(keep bool, each func(*profile.Profile, *fit.Result, error) error) error {
-			read := func(yield func(*profile.Profile) error) error { return profile.Each([]string{dir}, yield) }
+			read := func(yield func(*profile.Profile) error) error { return profile.Each([]string{path}, yield) }
 			return fit.FitEach(read, fit.Options{CI: fit.CIWald}, &fit.BatchOptions{Reuse: !keep}, each)
 		}}
 		counter := &countWriter{}
@@ -97,12 +84,12 @@ func BenchmarkStreamMillion(b *testing.B) {
 		}
 		rows = counter.lines
 	}
-	if rows != files*per+1 {
-		b.Fatalf("%d lines written, want %d", rows, files*per+1)
+	if rows != profiles+1 {
+		b.Fatalf("%d lines written, want %d", rows, profiles+1)
 	}
-	b.ReportMetric(b.Elapsed().Seconds()/float64(b.N)/(files*per)*1e6, "µs/profile")
+	b.ReportMetric(b.Elapsed().Seconds()/float64(b.N)/profiles*1e6, "µs/profile")
 	if cpu := measure.CPU(); cpu > 0 {
-		b.ReportMetric((cpu-cpu0).Seconds()/float64(b.N)/(files*per)*1e6, "cpu-µs/profile")
+		b.ReportMetric((cpu-cpu0).Seconds()/float64(b.N)/profiles*1e6, "cpu-µs/profile")
 	}
 	b.ReportMetric(float64(peak.Stop())/(1<<20), "peak-heap-MB")
 	b.ReportMetric(float64(size)/(1<<20), "input-MB")
