@@ -13,6 +13,7 @@ import (
 	"strings"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/fit/numeric"
 	"github.com/fickfit/fickfit/internal/jsonx"
 	"github.com/fickfit/fickfit/profile"
 	"github.com/fickfit/fickfit/report"
@@ -79,6 +80,7 @@ type stateView struct {
 	Profiles   int             `json:"profiles"`
 	Settings   settings        `json:"settings"`
 	Models     []string        `json:"models"`
+	DCLaws     []string        `json:"dc_laws"`
 	CIMethods  []string        `json:"ci_methods"`
 	Done       int64           `json:"done"`
 	Total      int64           `json:"total"`
@@ -94,7 +96,7 @@ func (s *session) state() stateView {
 	s.mu.Lock()
 	defer s.mu.Unlock()
 	v := stateView{Version: s.version, Files: append([]*file{}, s.files...), Profiles: len(s.entries), Settings: s.st,
-		Models: append(modelNames(), "auto"), CIMethods: fit.CIMethods(), Done: done, Total: total, Running: running,
+		Models: append(modelNames(), "auto"), DCLaws: dcLaws(), CIMethods: fit.CIMethods(), Done: done, Total: total, Running: running,
 		Generation: s.optGen, Exclusions: []exclusionView{}, MaxBytes: profile.MaxFileSize}
 	for _, e := range s.excl.Rows {
 		v.Exclusions = append(v.Exclusions, exclusionView{File: e.File, Profile: e.Profile, DepthUM: num(e.Depth*1e6, false), Line: e.Line, Reason: e.Reason})
@@ -114,6 +116,14 @@ func (s *session) commandLocked() string {
 	st := s.st
 	if st.Model != "erf" {
 		args = append(args, "--model", st.Model)
+	}
+	if st.Model == numericName {
+		if st.DC != string(numeric.LawConst) {
+			args = append(args, "--dc", st.DC)
+		}
+		if st.Surface != surfaceFixed {
+			args = append(args, "--surface", st.Surface)
+		}
 	}
 	if st.CI != string(fit.CIProfile) {
 		args = append(args, "--ci", st.CI)

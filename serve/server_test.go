@@ -14,6 +14,7 @@ import (
 	"testing"
 
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/fit/numeric"
 	"github.com/fickfit/fickfit/profile"
 )
 
@@ -186,18 +187,78 @@ func TestUploadErrorsStayBesideTheFile(t *testing.T) {
 func TestSettingsRefused(t *testing.T) {
 	_, port := start(t, Options{})
 	for body, want := range map[string]string{
-		`{"model":"spline"}`:              `model \"spline\": choose one of`,
-		`{"ci":"jackknife"}`:              `jackknife`,
-		`{"level":1.5}`:                   `between 0 and 1`,
-		`{"fix":["Cs"]}`:                  `NAME=VALUE`,
-		`{"case_threshold":"deep"}`:       `case-depth threshold \"deep\" is not understood`,
-		`{"temperature_unit":"R"}`:        `R`,
-		`{"model":"erf","fix":["x0=1q"]}`: `not a number`,
+		`{"model":"spline"}`:                     `model \"spline\": choose one of`,
+		`{"ci":"jackknife"}`:                     `jackknife`,
+		`{"level":1.5}`:                          `between 0 and 1`,
+		`{"fix":["Cs"]}`:                         `NAME=VALUE`,
+		`{"case_threshold":"deep"}`:              `case-depth threshold \"deep\" is not understood`,
+		`{"temperature_unit":"R"}`:               `R`,
+		`{"model":"erf","fix":["x0=1q"]}`:        `not a number`,
+		`{"model":"numeric","dc":"table"}`:       `use the command line (--model numeric --dc table --dc-table FILE)`,
+		`{"model":"numeric","dc":"cubic"}`:       `cubic`,
+		`{"model":"numeric","surface":"porous"}`: `surface \"porous\": use fixed or masstransfer`,
 	} {
 		code, b := post(t, port, "/s/"+token+"/api/settings", []byte(body))
 		if code != 400 || !strings.Contains(string(b), want) {
 			t.Errorf("%s: %d %s", body, code, b)
 		}
+	}
+}
+
+// The numerical model chosen on the page gives the D that the command
+// line's --model numeric --dc exp gives (the same model built from the
+// same settings, fitted by fit.Fit), and the page's command line says so.
+func TestNumericModelOnThePage(t *testing.T) {
+	_, port := start(t, Options{Inputs: []string{"../testdata/demo/lims-export-BAR-2307.csv"}})
+	code, b := post(t, port, "/s/"+token+"/api/settings", []byte(`{"model":"Numeric","dc":"exp","ci":"wald"}`))
+	if code != 200 {
+		t.Fatalf("settings: %d %s", code, b)
+	}
+	var st stateView
+	if err := json.Unmarshal(b, &st); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(st.Command, " --model numeric --dc exp --ci wald") {
+		t.Errorf("command line %q does not reproduce the numerical model's settings", st.Command)
+	}
+	if strings.Join(st.DCLaws, ",") != "const,exp" {
+		t.Errorf("the page offers the laws %v", st.DCLaws)
+	}
+	const id = "F7-2307-940-2"
+	code, b = get(t, port, "/s/"+token+"/api/profile?id="+id)
+	if code != 200 {
+		t.Fatalf("profile: %d %s", code, b)
+	}
+	var v struct {
+		D     float64 `json:"D"`
+		Model string  `json:"model"`
+	}
+	if err := json.Unmarshal(b, &v); err != nil {
+		t.Fatal(err)
+	}
+	ps, err := profile.Read("../testdata/demo/lims-export-BAR-2307.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var p *profile.Profile
+	for i := range ps {
+		if ps[i].ID == id {
+			p = &ps[i]
+		}
+	}
+	m, err := numeric.NewModel(numeric.Config{DC: numeric.LawExp})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := fit.Fit(p, fit.Options{Model: "numeric", Custom: m, CI: fit.CIWald})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Param("k") == nil {
+		t.Fatal("the exp law has no parameter k")
+	}
+	if d := r.Param("D").Value; v.D != d || v.Model != "numeric" {
+		t.Errorf("page: D = %v (model %q); fit.Fit with the numerical model: %v", v.D, v.Model, d)
 	}
 }
 

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
+	"errors"
 	"fmt"
 	"math"
 	"os"
@@ -14,6 +15,7 @@ import (
 
 	"github.com/fickfit/fickfit/campaign"
 	"github.com/fickfit/fickfit/fit"
+	"github.com/fickfit/fickfit/fit/numeric"
 	"github.com/fickfit/fickfit/internal/parallel"
 	"github.com/fickfit/fickfit/profile"
 	"github.com/fickfit/fickfit/report"
@@ -34,6 +36,12 @@ type settings struct {
 	Calibration string `json:"calibration"`
 	By          string `json:"by"`
 	TempUnit    string `json:"temperature_unit"`
+	// DC and Surface configure the numerical model (model "numeric"): the
+	// concentration law of D (const or exp; a table law needs a file and
+	// stays on the command line) and the surface condition (fixed or
+	// masstransfer), as --dc and --surface do.
+	DC      string `json:"dc"`
+	Surface string `json:"surface"`
 }
 
 // Defaults of the command line (cmd/fickfit/fitflags.go): the page's
@@ -44,6 +52,9 @@ const (
 )
 
 func (st *settings) defaults() {
+	st.Model = strings.ToLower(strings.TrimSpace(st.Model))
+	st.DC = strings.ToLower(strings.TrimSpace(st.DC))
+	st.Surface = strings.ToLower(strings.TrimSpace(st.Surface))
 	if st.Model == "" {
 		st.Model = "erf"
 	}
@@ -58,6 +69,12 @@ func (st *settings) defaults() {
 	}
 	if st.TempUnit == "" {
 		st.TempUnit = "C"
+	}
+	if st.DC == "" {
+		st.DC = string(numeric.LawConst)
+	}
+	if st.Surface == "" {
+		st.Surface = surfaceFixed
 	}
 	if st.Fix == nil {
 		st.Fix = []string{}
@@ -78,11 +95,15 @@ func (st settings) options(cal *profile.Calibration) (fit.Options, report.TempUn
 	if !(st.Level > 0 && st.Level < 1) {
 		return o, "", fmt.Errorf("the confidence level %g must lie between 0 and 1, e.g. 0.95", st.Level)
 	}
-	m := strings.ToLower(strings.TrimSpace(st.Model))
-	if _, ok := fit.Lookup(m); !ok && m != "auto" || m == "numeric" {
+	m := st.Model
+	if !slices.Contains(modelNames(), m) && m != "auto" {
 		return o, "", fmt.Errorf("model %q: choose one of %s or auto", st.Model, strings.Join(modelNames(), ", "))
 	}
-	o = fit.Options{Model: m, Level: st.Level, CI: ci, Free: st.Free, Calibration: cal,
+	custom, err := st.numericModel(m)
+	if err != nil {
+		return o, "", err
+	}
+	o = fit.Options{Model: m, Custom: custom, Level: st.Level, CI: ci, Free: st.Free, Calibration: cal,
 		Bootstrap: fit.BootstrapOptions{Resamples: defaultResamples, Seed: defaultSeed}}
 	if len(st.Fix) > 0 {
 		o.Fixed = map[string]float64{}
@@ -105,10 +126,55 @@ func (st settings) options(cal *profile.Calibration) (fit.Options, report.TempUn
 	return o, u, err
 }
 
-// modelNames are the models the page offers (the numerical model needs
-// settings of its own and stays on the command line).
+// surfaceFixed and surfaceMassTransfer are the surface conditions of the
+// numerical model, named as --surface names them.
+const (
+	surfaceFixed        = "fixed"
+	surfaceMassTransfer = "masstransfer"
+)
+
+// numericModel builds the numerical model for model "numeric" as the
+// command line builds it from --dc and --surface; nil for other models.
+func (st settings) numericModel(model string) (fit.Model, error) {
+	if model != numericName {
+		return nil, nil
+	}
+	law, err := numeric.ParseLaw(st.DC)
+	if err != nil {
+		return nil, err
+	}
+	if law == numeric.LawTable {
+		return nil, errors.New("a tabulated D(C) is read from a file: use the command line (--model numeric --dc table --dc-table FILE)")
+	}
+	cfg := numeric.Config{DC: law}
+	switch st.Surface {
+	case surfaceFixed:
+	case surfaceMassTransfer:
+		cfg.Surface = numeric.SurfaceMassTransfer
+	default:
+		return nil, fmt.Errorf("surface %q: use %s or %s", st.Surface, surfaceFixed, surfaceMassTransfer)
+	}
+	m, err := numeric.NewModel(cfg)
+	if err != nil {
+		return nil, err
+	}
+	return m, nil
+}
+
+// numericName is the name of the numerical model (package fit/numeric),
+// which is built from settings of its own rather than from the registry.
+const numericName = "numeric"
+
+// modelNames are the models the page offers: the registered ones and the
+// numerical model.
 func modelNames() []string {
-	return slices.DeleteFunc(fit.ModelNames(), func(n string) bool { return n == "numeric" })
+	return append(fit.ModelNames(), numericName)
+}
+
+// dcLaws are the concentration laws of D the page offers for the
+// numerical model (a table needs a file: command line only).
+func dcLaws() []string {
+	return slices.DeleteFunc(numeric.Laws(), func(l string) bool { return l == string(numeric.LawTable) })
 }
 
 // file is one input file: read from disk at start or uploaded.

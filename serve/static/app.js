@@ -182,6 +182,9 @@ function showSettings(s) {
     sel.value = cur;
   };
   fill($("s-model"), s.models, st.model);
+  fill($("s-dc"), s.dc_laws, st.dc);
+  $("s-surface").value = st.surface;
+  showNumeric();
   fill($("s-ci"), s.ci_methods, st.ci);
   $("s-level").value = st.level;
   $("s-fix").value = st.fix.join(", ");
@@ -190,6 +193,11 @@ function showSettings(s) {
   $("s-by").value = st.by;
   $("s-unit").value = st.temperature_unit;
   $("s-cal").textContent = st.calibration || "none";
+}
+
+// The numerical model's own settings show only when it is chosen.
+function showNumeric() {
+  $("s-numeric").hidden = $("s-model").value !== "numeric";
 }
 
 function showExclusions(s) {
@@ -205,7 +213,7 @@ async function applySettings() {
   const st = {
     model: $("s-model").value, ci: $("s-ci").value, level: Number($("s-level").value), fix: split($("s-fix").value),
     free: split($("s-free").value), case_threshold: $("s-case").value.trim(), by: $("s-by").value.trim(),
-    temperature_unit: $("s-unit").value,
+    temperature_unit: $("s-unit").value, dc: $("s-dc").value, surface: $("s-surface").value,
   };
   $("s-error").hidden = true;
   try {
@@ -761,6 +769,7 @@ function wire() {
   document.body.addEventListener("drop", (e) => { e.preventDefault(); drop.classList.remove("over"); upload(e.dataTransfer.files); });
   $("pick").addEventListener("change", (e) => { upload(e.target.files); e.target.value = ""; });
   $("s-apply").addEventListener("click", applySettings);
+  $("s-model").addEventListener("change", showNumeric);
   $("s-calfile").addEventListener("change", async (e) => {
     const f = e.target.files[0];
     e.target.value = "";
