@@ -260,7 +260,7 @@ type DepthOptions struct {
 const HardnessProxyNote = "Hardness was fitted directly as a stand-in for concentration (proxy mode): the fitted curve and depths are fine as a smooth description of the traverse, but D is a diffusion coefficient only where hardness is close to linear in concentration over the whole range of the profile. Convert with a hardness–concentration calibration (--hardness-calibration) for a D to compare or to use in Arrhenius."
 
 // DepthCaution goes with every predicted depth.
-const DepthCaution = "Case and decarburization depths from a fitted model rest on its assumptions (constant D, the boundary condition of the model) and on the traverse measured; verify by metallographic examination or a hardness traverse as the applicable specification requires, and defer to that specification and to qualified engineering judgement before accepting parts."
+const DepthCaution = "Case and decarburization depths from a fitted model rest on its assumptions (D constant, or the stated function of concentration; the boundary condition of the model) and on the traverse measured; verify by metallographic examination or a hardness traverse as the applicable specification requires, and defer to that specification and to qualified engineering judgement before accepting parts."
 
 // CaseDepth returns the depth at which the fitted profile, and the
 // measured points, fall from the surface level to the threshold.

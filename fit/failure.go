@@ -9,7 +9,7 @@ import (
 // Cautions accompany every set of fitted diffusion coefficients, in every
 // output that reports them.
 var Cautions = []string{
-	"Each D is the estimate of a model: the stated solution of Fick's second law (constant D, the stated boundary condition and geometry) is assumed to describe the profile. The warnings say where these data do not support that.",
+	"Each D is the estimate of a model: the stated solution of Fick's second law (D constant, or the stated function of concentration; the stated boundary condition and geometry) is assumed to describe the profile. The warnings say where these data do not support that.",
 	"Intervals cover the statistical scatter of the measured points only, not bias of the measurement method, surface preparation or the depth scale.",
 	"Verify by metallography (microstructure, microhardness traverse or chemical profile) before acting on a number.",
 	"The applicable specifications decide acceptance; defer to local codes and to licensed engineering judgement.",
