@@ -54,6 +54,9 @@ type engine struct {
 	s, tmp               []float64 // sensitivities (np×n) and scratch
 	specBuf              []sensSpec
 	fixL                 float64 // when > 0, the truncation depth (tests only)
+	// rungs, when set (the model's evaluations for a fit), takes the
+	// truncation depth from the ladder 2^(k/8) m (see setup).
+	rungs bool
 
 	// Configuration of the current run.
 	law                 Diffusivity
@@ -248,6 +251,16 @@ func (e *engine) setup(p *Problem, sens []sensSpec) error {
 	L := phys
 	e.truncated = false
 	reach := e.opt.depth * math.Sqrt(dmax*e.tauEnd)
+	if e.rungs && reach > 0 && !math.IsInf(reach, 0) {
+		// A domain that moves with every parameter change moves the grid,
+		// and the solution then depends on the parameters non-smoothly at
+		// the level of the discretization error, which the sensitivities
+		// (exact for a fixed grid) do not see: a fit could not certify its
+		// optimum (a scaled gradient stuck near 1e-7). Taken from the
+		// ladder 2^(k/8) m, the domain stays put while the parameters move
+		// within a rung, at most 9 % longer than needed.
+		reach = math.Exp2(math.Ceil(8*math.Log2(reach)) / 8)
+	}
 	if e.fixL > 0 {
 		reach = e.fixL // frozen grid (tests of the sensitivities)
 	}

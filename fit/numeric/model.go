@@ -285,7 +285,7 @@ func (m *Model) Eval(p []float64, d *fit.Data, f, jac []float64) {
 		fail()
 		return
 	}
-	e.fixL = m.fixLength
+	e.fixL, e.rungs = m.fixLength, true
 	if err := e.setup(&pr, sp); err != nil {
 		fail()
 		return
