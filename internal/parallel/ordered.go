@@ -5,23 +5,33 @@ import (
 	"runtime"
 	"runtime/debug"
 	"sync"
+	"sync/atomic"
+	"time"
 )
 
 // errStopped is what yield returns once Ordered has stopped.
 var errStopped = errors.New("parallel: stopped")
 
-// orderedBatch is how many items Ordered hands a worker at once: a
-// channel operation and a wake-up cost about a microsecond, a fit tens.
+// orderedBatch is the most items Ordered hands a worker at once: a channel
+// operation and a wake-up cost about a microsecond, a fast fit ten or more.
 const orderedBatch = 16
+
+// batchWork is the work a batch should hold: Ordered sizes its batches
+// from the measured time per item (at least one item, at most
+// orderedBatch), so that items costing milliseconds (fits with profile
+// intervals, numerical models) go to the workers one by one and every
+// core gets some of a small input, while items costing microseconds travel
+// in batches that make the hand-over negligible.
+const batchWork = 200 * time.Microsecond
 
 // Ordered is a pipeline: source yields items one by one (reading a file,
 // say), work runs on up to runtime.GOMAXPROCS(0) goroutines while source
 // is still yielding, and done receives every item with its result in the
 // order source yielded them, on the calling goroutine, as soon as the
-// results before it are done. Items travel in batches of a few; at most
-// about window items (at least a batch per worker) are between yield and
-// done at any time, so the memory held is a window of items, however many
-// source yields.
+// results before it are done. Items travel in batches sized from the time
+// an item takes (batchWork); at most window items (at least a full batch
+// per worker) are between yield and done at any time, so the memory held
+// is a window of items, however many source yields.
 //
 // When done returns an error, or source does, the pipeline stops: yield
 // returns an error from then on (source should return it), items not yet
@@ -31,7 +41,7 @@ const orderedBatch = 16
 // goroutine once every goroutine has ended, as a *Panic (as For does).
 func Ordered[T, R any](window int, source func(yield func(T) error) error, work func(T) R, done func(T, R) error) error {
 	workers := runtime.GOMAXPROCS(0)
-	batches := max(window/orderedBatch, workers) // batches between yield and done
+	window = max(window, workers*orderedBatch) // items between yield and done
 	type job struct {
 		seq   int
 		items []T
@@ -41,12 +51,21 @@ func Ordered[T, R any](window int, source func(yield func(T) error) error, work 
 		res []R
 		ok  bool
 	}
-	jobs := make(chan job, batches)
-	results := make(chan result, batches)
-	slots := make(chan struct{}, batches) // one per batch between yield and done
+	// A batch holds at least one item, so at most window batches are out.
+	jobs := make(chan job, window)
+	results := make(chan result, window)
+	tokens := make(chan struct{}, window) // one per item between yield and done
 	stop := make(chan struct{})
 	var stopOnce sync.Once
 	halt := func() { stopOnce.Do(func() { close(stop) }) }
+	var perItem atomic.Int64 // ns an item took in the last batch worked (0: none yet)
+	batchSize := func() int {
+		c := perItem.Load()
+		if c <= 0 {
+			return 1 // nothing measured yet: the first items go out one by one
+		}
+		return int(min(max(int64(batchWork)/c, 1), orderedBatch))
+	}
 
 	var panicOnce sync.Once
 	var first *Panic
@@ -63,26 +82,25 @@ func Ordered[T, R any](window int, source func(yield func(T) error) error, work 
 		defer catch()
 		seq := 0
 		batch := make([]T, 0, orderedBatch)
-		send := func() error {
-			select {
-			case slots <- struct{}{}:
-			case <-stop:
-				return errStopped
-			}
+		send := func() {
 			jobs <- job{seq, batch}
 			seq++
 			batch = make([]T, 0, orderedBatch)
-			return nil
 		}
 		srcErr = source(func(item T) error {
+			select {
+			case tokens <- struct{}{}:
+			case <-stop:
+				return errStopped
+			}
 			batch = append(batch, item)
-			if len(batch) == orderedBatch {
-				return send()
+			if len(batch) >= batchSize() {
+				send()
 			}
 			return nil
 		})
 		if srcErr == nil && len(batch) > 0 {
-			srcErr = send()
+			send()
 		}
 		if srcErr != nil {
 			halt()
@@ -106,6 +124,7 @@ func Ordered[T, R any](window int, source func(yield func(T) error) error, work 
 					continue
 				}
 				res, ok := make([]R, len(j.items)), false
+				t0 := time.Now()
 				func() {
 					defer catch()
 					for k, it := range j.items {
@@ -113,6 +132,7 @@ func Ordered[T, R any](window int, source func(yield func(T) error) error, work 
 					}
 					ok = true
 				}()
+				perItem.Store(max(int64(time.Since(t0))/int64(len(j.items)), 1))
 				if ok {
 					results <- result{job: j, res: res}
 				}
@@ -124,15 +144,15 @@ func Ordered[T, R any](window int, source func(yield func(T) error) error, work 
 		close(results)
 	}()
 
-	ring := make([]result, batches)
+	ring := make([]result, window)
 	next := 0
 	var doneErr error
 	collect := func(r result) {
 		defer catch()
 		r.ok = true
-		ring[r.seq%batches] = r
+		ring[r.seq%window] = r
 		for !stopped() {
-			slot := &ring[next%batches]
+			slot := &ring[next%window]
 			if !slot.ok || slot.seq != next {
 				break
 			}
@@ -143,9 +163,11 @@ func Ordered[T, R any](window int, source func(yield func(T) error) error, work 
 					break
 				}
 			}
+			for range slot.items {
+				<-tokens
+			}
 			*slot = result{}
 			next++
-			<-slots
 		}
 	}
 	for r := range results {

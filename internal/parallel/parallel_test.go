@@ -4,6 +4,7 @@ import (
 	"errors"
 	"runtime"
 	"strings"
+	"sync"
 	"sync/atomic"
 	"testing"
 	"time"
@@ -198,5 +199,43 @@ func TestOrderedPanic(t *testing.T) {
 			})
 			t.Errorf("%s: Ordered returned normally", where)
 		}()
+	}
+}
+
+// TestOrderedSpreadsFewItems: the items of a short input reach different
+// workers (each of two items waits until both have started), so a handful
+// of slow fits (profile intervals, numerical models) use every core. With
+// batches of a fixed size both went to one worker (common practice, no
+// source).
+func TestOrderedSpreadsFewItems(t *testing.T) {
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(2))
+	var started sync.WaitGroup
+	started.Add(2)
+	both := make(chan struct{})
+	go func() { started.Wait(); close(both) }()
+	together := 0
+	err := Ordered(64, func(yield func(int) error) error {
+		for i := 0; i < 2; i++ {
+			if err := yield(i); err != nil {
+				return err
+			}
+		}
+		return nil
+	}, func(int) bool {
+		started.Done()
+		select {
+		case <-both:
+			return true
+		case <-time.After(10 * time.Second):
+			return false
+		}
+	}, func(_ int, ok bool) error {
+		if ok {
+			together++
+		}
+		return nil
+	})
+	if err != nil || together != 2 {
+		t.Errorf("%d of 2 items were worked on together (error %v)", together, err)
 	}
 }
