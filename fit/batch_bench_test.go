@@ -16,6 +16,19 @@ import (
 	"github.com/fickfit/fickfit/profile"
 )
 
+// source hands the profiles of ps to FitEach one by one, as profile.Each
+// hands those of files.
+func source(ps []profile.Profile) func(yield func(*profile.Profile) error) error {
+	return func(yield func(*profile.Profile) error) error {
+		for k := range ps {
+			if err := yield(&ps[k]); err != nil {
+				return err
+			}
+		}
+		return nil
+	}
+}
+
 // batchProfiles makes n seeded synthetic constant-surface profiles of
 // points points each (invented numbers for timing and self-checks, not check
 // values): D log-uniform in 1e-12…1e-10 m²/s, t = 4 h, Cs in 0.8–1.0,
@@ -79,14 +92,7 @@ func BenchmarkFitEach10k(b *testing.B) {
 			sum := 0.0
 			for b.Loop() {
 				failed = 0
-				err := FitEach(func(yield func(*profile.Profile) error) error {
-					for k := range ps {
-						if err := yield(&ps[k]); err != nil {
-							return err
-						}
-					}
-					return nil
-				}, o, &BatchOptions{Reuse: reuse}, func(p *profile.Profile, r *Result, err error) error {
+				err := FitEach(source(ps), o, &BatchOptions{Reuse: reuse}, func(p *profile.Profile, r *Result, err error) error {
 					if err != nil {
 						failed++
 						return nil
@@ -126,14 +132,7 @@ func BenchmarkFitLongTable20k(b *testing.B) {
 	failed := 0
 	for b.Loop() {
 		failed = 0
-		err := FitEach(func(yield func(*profile.Profile) error) error {
-			for k := range ps {
-				if err := yield(&ps[k]); err != nil {
-					return err
-				}
-			}
-			return nil
-		}, o, &BatchOptions{Reuse: true}, func(p *profile.Profile, r *Result, err error) error {
+		err := FitEach(source(ps), o, &BatchOptions{Reuse: true}, func(p *profile.Profile, r *Result, err error) error {
 			if err != nil {
 				failed++
 			}
@@ -266,14 +265,7 @@ func TestFitEachMatchesFitAll(t *testing.T) {
 		want, werrs := FitAll(ps, o, nil)
 		for _, reuse := range []bool{false, true} {
 			i, calls := 0, 0
-			err := FitEach(func(yield func(*profile.Profile) error) error {
-				for k := range ps {
-					if err := yield(&ps[k]); err != nil {
-						return err
-					}
-				}
-				return nil
-			}, o, &BatchOptions{Reuse: reuse, Progress: func(done, total int) { calls++ }}, func(p *profile.Profile, r *Result, err error) error {
+			err := FitEach(source(ps), o, &BatchOptions{Reuse: reuse, Progress: func(done, total int) { calls++ }}, func(p *profile.Profile, r *Result, err error) error {
 				if p != &ps[i] {
 					t.Fatalf("profile %d handed on as %s", i, p.ID)
 				}
