@@ -40,8 +40,10 @@ func (t *table) addFast(fields [][]byte, line int) bool {
 	}
 	cells := t.trimmed[:0] // the fields trimmed of white space, as cellAt trims
 	blank := true
-	for i, f := range fields {
-		c := bytes.TrimSpace(f)
+	for i, c := range fields {
+		if n := len(c); n > 0 && !(c[0] > ' ' && c[0] < 0x80 && c[n-1] > ' ' && c[n-1] < 0x80) {
+			c = bytes.TrimSpace(c) // only where an end may be white space
+		}
 		cells = append(cells, c)
 		if len(c) == 0 {
 			continue

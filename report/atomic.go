@@ -143,7 +143,7 @@ func (o Output) WriteFile(path string, write func(io.Writer) error) (err error) 
 			os.Remove(name)
 		}
 	}()
-	bw := bufio.NewWriterSize(tmp, 64<<10)
+	bw := bufio.NewWriterSize(newWriteback(tmp), 64<<10)
 	if err = write(bw); err != nil {
 		return fmt.Errorf("%s: %w", path, err)
 	}

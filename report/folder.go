@@ -408,7 +408,7 @@ func writeHashed(p string, write func(io.Writer) error) (manifestFile, error) {
 		return manifestFile{}, err
 	}
 	h := sha256.New()
-	cw := &countWriter{w: io.MultiWriter(fh, h)}
+	cw := &countWriter{w: io.MultiWriter(newWriteback(fh), h)}
 	bw := bufio.NewWriterSize(cw, 64<<10)
 	if err := write(bw); err != nil {
 		fh.Close()

@@ -334,3 +334,34 @@ func TestOutputWriteFile(t *testing.T) {
 		t.Error("writing over a folder: no error")
 	}
 }
+
+// TestOutputWriteFileLarge writes several writeback chunks in uneven
+// pieces: the file holds every byte once, in order (the early writeback
+// only advises the kernel).
+func TestOutputWriteFileLarge(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "big.csv")
+	want := make([]byte, 3*writebackChunk+12345)
+	for i := range want {
+		want[i] = byte('a' + i%26)
+	}
+	err := WriteFileAtomic(path, func(w io.Writer) error {
+		for rest := want; len(rest) > 0; {
+			n := min(len(rest), 70001)
+			if _, err := w.Write(rest[:n]); err != nil {
+				return err
+			}
+			rest = rest[n:]
+		}
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(got, want) {
+		t.Errorf("file of %d bytes differs from the %d written", len(got), len(want))
+	}
+}
