@@ -181,6 +181,10 @@ func randomTable(rng *rand.Rand) []byte {
 					cells[c] = "−" + cells[c]
 				case 7:
 					cells[c] = []string{"<0.01", "n.d.", "< 0,05"}[rng.IntN(3)] // below a detection limit
+				case 8:
+					cells[c] += "\u00a0" // white space that is not ASCII, at the end
+				case 9:
+					cells[c] += "\u2003\r"
 				}
 			}
 			b.WriteString(strings.Join(cells, sep))
