@@ -24,9 +24,18 @@ const (
 
 // markOf classifies a number that parseNumber accepted.
 func markOf(s string) mark {
-	t := strings.TrimLeft(strings.TrimSpace(s), "+-−")
-	i := strings.IndexAny(t, ",.")
-	if i < 0 {
+	return markOfDigits(strings.TrimLeft(strings.TrimSpace(s), "+-−"))
+}
+
+// markOfDigits classifies a number without white space or sign by its
+// first comma or point: "1,025" and "1.025" are ambiguous (a decimal mark
+// or a thousands separator), "1,5" and "0.025" are not.
+func markOfDigits[T ~string | ~[]byte](t T) mark {
+	i := 0
+	for i < len(t) && t[i] != ',' && t[i] != '.' {
+		i++
+	}
+	if i == len(t) {
 		return markNone
 	}
 	comma := t[i] == ','
@@ -43,7 +52,7 @@ func markOf(s string) mark {
 	return markDot
 }
 
-func allDigits(s string) bool {
+func allDigits[T ~string | ~[]byte](s T) bool {
 	for i := 0; i < len(s); i++ {
 		if s[i] < '0' || s[i] > '9' {
 			return false

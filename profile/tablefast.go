@@ -249,20 +249,5 @@ func markOfBytes(c []byte) mark {
 	for len(c) > 0 && (c[0] == '+' || c[0] == '-') {
 		c = c[1:]
 	}
-	i := bytes.IndexAny(c, ",.")
-	if i < 0 {
-		return markNone
-	}
-	comma := c[i] == ','
-	whole, frac := c[:i], c[i+1:]
-	ambiguous := len(whole) >= 1 && len(whole) <= 3 && whole[0] != '0' && len(frac) == 3 && allDigits(string(frac))
-	switch {
-	case comma && ambiguous:
-		return markCommaAmbiguous
-	case comma:
-		return markComma
-	case ambiguous:
-		return markDotAmbiguous
-	}
-	return markDot
+	return markOfDigits(c)
 }
