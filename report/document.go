@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"fmt"
 	"io"
+	"path/filepath"
 	"strconv"
 	"strings"
 
@@ -109,6 +110,17 @@ func ParseFormat(s string) (Format, error) {
 		}
 	}
 	return 0, fmt.Errorf("unknown output format %q: use %s", s, orList(FormatNames()))
+}
+
+// FormatOfPath returns the format an output file's extension names:
+// .txt text, .json JSON, .csv CSV (any case); ok is false for any other.
+func FormatOfPath(path string) (f Format, ok bool) {
+	ext := strings.ToLower(filepath.Ext(path))
+	if ext == ".txt" {
+		ext = ".text"
+	}
+	f, err := ParseFormat(strings.TrimPrefix(ext, "."))
+	return f, err == nil && ext != ""
 }
 
 // String is the format's name.

@@ -221,3 +221,45 @@ func TestFlagCompletion(t *testing.T) {
 		}
 	}
 }
+
+// TestOutputFormatFromExtension: without --format, -o FILE.csv, .json or
+// .txt (any case) chooses the format; any other name, or --format given,
+// keeps --format. Each file holds the bytes the same command writes to
+// standard output with that --format.
+func TestOutputFormatFromExtension(t *testing.T) {
+	in := filepath.Join("..", "..", "testdata", "demo", "coupons", "F7-2291-880-1.csv")
+	stdout := map[string]string{}
+	for _, f := range []string{"text", "json", "csv"} {
+		code, out, errs := runCLI(t, "fit", in, "--ci", "wald", "--format", f)
+		if code != 0 {
+			t.Fatalf("--format %s: exit %d: %s", f, code, errs)
+		}
+		stdout[f] = out
+	}
+	dir := t.TempDir()
+	for _, c := range []struct {
+		name, format, want string
+	}{
+		{"a.csv", "", "csv"},
+		{"b.JSON", "", "json"},
+		{"c.txt", "", "text"},
+		{"d.dat", "", "text"},
+		{"e.csv", "text", "text"},
+		{"f.json", "csv", "csv"},
+	} {
+		args := []string{"fit", in, "--ci", "wald", "-o", filepath.Join(dir, c.name)}
+		if c.format != "" {
+			args = append(args, "--format", c.format)
+		}
+		if code, _, errs := runCLI(t, args...); code != 0 {
+			t.Fatalf("%v: exit %d: %s", args, code, errs)
+		}
+		got, err := os.ReadFile(filepath.Join(dir, c.name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if string(got) != stdout[c.want] {
+			t.Errorf("-o %s --format %q: not the %s output:\n%.200s", c.name, c.format, c.want, got)
+		}
+	}
+}

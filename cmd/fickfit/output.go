@@ -41,7 +41,7 @@ func (o *outFlags) register(c *cobra.Command, stream bool) {
 	o.cmd = c
 	fl := c.Flags()
 	if stream {
-		fl.StringVar(&o.format, "format", "text", "output format: "+joinOr(report.FormatNames()))
+		fl.StringVar(&o.format, "format", "text", "output format: "+joinOr(report.FormatNames())+"; when not given, -o FILE.json, FILE.csv or FILE.txt chooses it")
 		fl.StringVarP(&o.path, "output", "o", "", "write to this file instead of standard output (written whole or not at all; never an input, a folder or a device; - is standard output)")
 		_ = c.RegisterFlagCompletionFunc("format", fixed(report.FormatNames()...))
 		markOutput(c, "output")
@@ -69,6 +69,9 @@ func (o *outFlags) check(args []string) error {
 	}
 	if o.fmt, err = report.ParseFormat(o.format); err != nil {
 		return usagef("--format: %v", err)
+	}
+	if f, ok := report.FormatOfPath(o.path); ok && !o.cmd.Flags().Changed("format") {
+		o.fmt = f // -o results.csv without --format: CSV, not text in a .csv file
 	}
 	if o.toStdout() {
 		return nil
